@@ -1,0 +1,221 @@
+"""Declarative recipe fields and the reader that validates a mapping against them.
+
+A kind (body or void) or a settings block lists its fields once; the same list drives
+validation, defaults, the error messages and the recipe reference in the README, so the
+three cannot drift apart. Units live in the field names (``_mm``, ``_deg``).
+"""
+
+from __future__ import annotations
+
+import difflib
+import math
+from collections.abc import Iterable
+from dataclasses import dataclass
+
+from ..errors import Problem
+from .yamlsource import Node
+
+#: No part of a cast actuator or its mold is larger than this (mm); far beyond any
+#: desktop printer, it only stops typos such as 1e9 from reaching the kernel.
+MAX_SIZE_MM = 1000.0
+
+_REQUIRED = object()
+
+
+def _fmt(x: float) -> str:
+    return f"{x:g}"
+
+
+@dataclass(frozen=True)
+class Field:
+    """One recipe key.
+
+    ``kind`` is ``"number"``, ``"integer"``, ``"choice"``, ``"text"`` or ``"pair"`` (two
+    numbers). ``lo``/``hi`` bound numbers (``lo_open`` makes the lower bound strict).
+    ``default`` is ``None`` when the key is optional with no value, or the module-level
+    ``REQUIRED`` sentinel when it must be given.
+    """
+
+    name: str
+    kind: str
+    doc: str
+    default: object = _REQUIRED
+    unit: str = ""
+    lo: float | None = None
+    hi: float | None = None
+    lo_open: bool = False
+    choices: tuple[str, ...] = ()
+
+    @property
+    def required(self) -> bool:
+        return self.default is _REQUIRED
+
+    def allowed(self) -> str:
+        """Human text for what this field accepts (used in errors and the README)."""
+        if self.kind == "choice":
+            return "one of " + ", ".join(self.choices)
+        if self.kind == "text":
+            return "text"
+        parts = []
+        if self.lo is not None:
+            parts.append(f"{_fmt(self.lo)} {'<' if self.lo_open else '<='} ")
+        parts.append("value" if self.kind != "pair" else "each value")
+        if self.hi is not None:
+            parts.append(f" <= {_fmt(self.hi)}")
+        unit = f" {self.unit}" if self.unit else ""
+        what = "a whole number" if self.kind == "integer" else "a number"
+        if self.kind == "pair":
+            what = "a list of two numbers"
+        return f"{what}, {''.join(parts)}{unit}"
+
+
+REQUIRED = _REQUIRED
+
+
+def number(name: str, doc: str, default: object = REQUIRED, *, unit: str = "mm",
+           lo: float | None = 0.0, hi: float | None = MAX_SIZE_MM, lo_open: bool = True) -> Field:
+    return Field(name, "number", doc, default, unit, lo, hi, lo_open)
+
+
+def integer(name: str, doc: str, default: object = REQUIRED, *, lo: int = 1, hi: int = 1000) -> Field:
+    return Field(name, "integer", doc, default, "", lo, hi, False)
+
+
+def choice(name: str, doc: str, choices: Iterable[str], default: object = REQUIRED) -> Field:
+    return Field(name, "choice", doc, default, choices=tuple(choices))
+
+
+def text(name: str, doc: str, default: object = REQUIRED) -> Field:
+    return Field(name, "text", doc, default)
+
+
+def pair(name: str, doc: str, default: object = REQUIRED, *, unit: str = "mm",
+         lo: float | None = -MAX_SIZE_MM, hi: float | None = MAX_SIZE_MM) -> Field:
+    return Field(name, "pair", doc, default, unit, lo, hi, False)
+
+
+def join_path(base: str, key: str | int) -> str:
+    if isinstance(key, int):
+        return f"{base}[{key}]"
+    return f"{base}.{key}" if base else key
+
+
+def _is_number(v: object) -> bool:
+    return isinstance(v, (int, float)) and not isinstance(v, bool)
+
+
+class MapReader:
+    """Reads one YAML mapping against a list of fields, collecting every problem.
+
+    Nothing raises here: problems accumulate in the shared list so the user sees all of
+    them in one run. Values that failed are returned as ``None``; the caller checks
+    ``ok`` (no new problems) before building a value object.
+    """
+
+    def __init__(self, node: Node | None, path: str, problems: list[Problem],
+                 fallback_line: int | None = None, what: str = "a mapping of settings"):
+        self.path = path
+        self.problems = problems
+        self._start = len(problems)
+        self.line = node.line if node is not None else fallback_line
+        if node is not None and node.key_line is not None:
+            self.line = node.key_line
+        self.items: dict[str, Node] = {}
+        self._seen: set[str] = set()
+        if node is None:
+            return
+        if not isinstance(node.value, dict):
+            self.problem(path, f"must be {what}", self.line, node.plain())
+            return
+        self.items = node.value
+
+    @property
+    def ok(self) -> bool:
+        return len(self.problems) == self._start
+
+    def problem(self, path: str, message: str, line: int | None, value: object = None,
+                allowed: str = "") -> None:
+        self.problems.append(Problem(path, message, line, value, allowed))
+
+    def node(self, name: str) -> Node | None:
+        self._seen.add(name)
+        return self.items.get(name)
+
+    def line_of(self, name: str) -> int | None:
+        n = self.items.get(name)
+        if n is None:
+            return self.line
+        return n.key_line if n.key_line is not None else n.line
+
+    def take(self, f: Field) -> object:
+        """Return the validated value of ``f`` (its default when absent, None when bad)."""
+        n = self.node(f.name)
+        path = join_path(self.path, f.name)
+        if n is None:
+            if f.required:
+                self.problem(path, "is required", self.line, None, f.allowed())
+                return None
+            return f.default
+        line = n.key_line if n.key_line is not None else n.line
+        v = n.value
+        if f.kind == "choice":
+            if not isinstance(v, str) or v not in f.choices:
+                hint = _suggest(str(v), f.choices)
+                self.problem(path, "is not a known value" + hint, line, n.plain(), f.allowed())
+                return None
+            return v
+        if f.kind == "text":
+            if not isinstance(v, str) or not v.strip():
+                self.problem(path, "must be non-empty text", line, n.plain(), f.allowed())
+                return None
+            return v.strip()
+        if f.kind == "pair":
+            items = v if isinstance(v, list) else None
+            if items is None or len(items) != 2 or not all(_is_number(i.value) for i in items):
+                self.problem(path, "must be a list of two numbers", line, n.plain(), f.allowed())
+                return None
+            out = []
+            for i in items:
+                out.append(self._check_number(f, path, line, i.value))
+            return None if None in out else (float(out[0]), float(out[1]))
+        if not _is_number(v):
+            self.problem(path, "must be a number" if f.kind == "number" else
+                         "must be a whole number", line, n.plain(), f.allowed())
+            return None
+        if f.kind == "integer" and (isinstance(v, float) and not float(v).is_integer()):
+            self.problem(path, "must be a whole number", line, v, f.allowed())
+            return None
+        checked = self._check_number(f, path, line, v)
+        if checked is None:
+            return None
+        return int(checked) if f.kind == "integer" else float(checked)
+
+    def _check_number(self, f: Field, path: str, line: int | None, v: object) -> float | None:
+        x = float(v)  # type: ignore[arg-type]
+        if not math.isfinite(x):
+            self.problem(path, "must be a finite number", line, v, f.allowed())
+            return None
+        low_bad = f.lo is not None and (x <= f.lo if f.lo_open else x < f.lo)
+        high_bad = f.hi is not None and x > f.hi
+        if low_bad or high_bad:
+            self.problem(path, "is out of range", line, v, f.allowed())
+            return None
+        return x
+
+    def take_all(self, fields: Iterable[Field]) -> dict[str, object]:
+        return {f.name: self.take(f) for f in fields}
+
+    def finish(self, extra_known: Iterable[str] = ()) -> None:
+        """Report keys nobody asked for, with the nearest valid key suggested."""
+        known = sorted(self._seen | set(extra_known))
+        for key, n in self.items.items():
+            if key in self._seen or key in known:
+                continue
+            line = n.key_line if n.key_line is not None else n.line
+            self.problem(join_path(self.path, key), "is not a known key" + _suggest(key, known),
+                         line, None, ", ".join(known) if known else "")
+
+
+def _suggest(word: str, options: Iterable[str]) -> str:
+    near = difflib.get_close_matches(word, list(options), n=1, cutoff=0.6)
+    return f" (did you mean '{near[0]}'?)" if near else ""

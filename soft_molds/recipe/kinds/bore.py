@@ -1,0 +1,49 @@
+"""Void kind ``bore``: one straight round bore along x (an extending or bulging tube)."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import ClassVar
+
+from ...errors import Problem
+from ..fields import Field, number, pair
+from ..primitives import Primitive, RoundedRod
+from ..registry import void_kind
+
+
+@void_kind("bore")
+@dataclass(frozen=True)
+class Bore:
+    """Spans x in [start, start + length] (mm) with its axis at ``center_mm`` = (y, z);
+    both ends are rounded with ``end_round_mm`` (the near end lies inside the inlet
+    socket, so only the far end's rounding shows in the cast)."""
+
+    FIELDS: ClassVar[tuple[Field, ...]] = (
+        number("diameter_mm", "bore diameter"),
+        number("length_mm", "bore length along x"),
+        number("start_mm", "x where the bore starts (inside the inlet socket)", 0.0,
+               lo=0.0, lo_open=False),
+        pair("center_mm", "position (y, z) of the bore axis", (0.0, 0.0)),
+        number("end_round_mm", "rounding of the far end (a hemisphere at diameter/2)", 0.0,
+               lo=0.0, lo_open=False),
+    )
+    diameter_mm: float
+    length_mm: float
+    start_mm: float
+    center_mm: tuple[float, float]
+    end_round_mm: float
+
+    @classmethod
+    def cross_check(cls, v: dict, path: str, line: int | None) -> list[Problem]:
+        limit = min(v["diameter_mm"] / 2.0, v["length_mm"] / 2.0)
+        if v["end_round_mm"] > limit:
+            return [Problem(f"{path}.end_round_mm", "is too large for the bore", line,
+                            v["end_round_mm"], f"at most {limit:g} mm")]
+        return []
+
+    def primitives(self, body_length_mm: float) -> tuple[Primitive, ...]:
+        return (RoundedRod("x", self.start_mm, self.length_mm, self.center_mm,
+                           self.diameter_mm / 2.0, self.end_round_mm),)
+
+    def entry(self) -> tuple[tuple[float, float], float, float]:
+        return self.center_mm, self.diameter_mm / 2.0, self.start_mm

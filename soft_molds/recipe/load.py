@@ -1,0 +1,150 @@
+"""Recipe file -> validated :class:`Recipe`, reporting every problem at once."""
+
+from __future__ import annotations
+
+import os
+import re
+from pathlib import Path
+
+from ..errors import Problem, RecipeError
+from .fields import MapReader, join_path
+from .model import Checks, Inlet, MeshSettings, MoldSettings, Parting, Recipe
+from .registry import body_kinds, void_kinds
+from .sanity import sanity_problems
+from .schema import BLOCKS, TOP_FIELDS
+from .yamlsource import Node, parse_recipe_text, read_recipe_file
+
+NAME_RE = re.compile(r"^[a-z0-9][a-z0-9_-]{0,63}$")
+LABEL_RE = re.compile(r"^[A-Z0-9][A-Z0-9-]{0,11}$")
+MAX_VOIDS = 16
+
+
+def load_recipe(path: str | os.PathLike) -> Recipe:
+    """Read, validate and sanity-check a recipe file; raise :class:`RecipeError` listing
+    every problem (field path, line, value found, what is allowed)."""
+    root, source = read_recipe_file(path)
+    return recipe_from_node(root, source, default_name=_stem_name(path))
+
+
+def recipe_from_text(text: str, source: str = "recipe", default_name: str = "recipe") -> Recipe:
+    return recipe_from_node(parse_recipe_text(text, source), source, default_name)
+
+
+def _stem_name(path: str | os.PathLike) -> str:
+    stem = Path(path).stem.lower()
+    stem = re.sub(r"[^a-z0-9_-]+", "-", stem).strip("-_") or "recipe"
+    return stem[:64]
+
+
+def _read_kind(node: Node | None, path: str, registry: dict, problems: list[Problem],
+               line: int | None, what: str):
+    r = MapReader(node, path, problems, line, what=f"a mapping describing the {what}")
+    if node is None or not isinstance(node.value, dict):
+        return None
+    kind_node = r.node("kind")
+    names = ", ".join(registry)
+    if kind_node is None:
+        r.problem(f"{path}.kind", "is required", r.line, None, names)
+        return None
+    cls = registry.get(kind_node.value) if isinstance(kind_node.value, str) else None
+    if cls is None:
+        from .fields import _suggest
+
+        hint = _suggest(str(kind_node.value), list(registry))
+        r.problem(f"{path}.kind", f"is not a known {what} kind{hint}",
+                  kind_node.key_line or kind_node.line, kind_node.plain(), names)
+        return None
+    values = r.take_all(cls.FIELDS)
+    r.finish()
+    if not r.ok:
+        return None
+    extra = cls.cross_check(values, path, r.line)
+    if extra:
+        problems.extend(extra)
+        return None
+    return cls(**values)
+
+
+def recipe_from_node(root: Node, source: str, default_name: str = "recipe") -> Recipe:
+    problems: list[Problem] = []
+    top = MapReader(root, "", problems, 1, what="a mapping (the recipe's top level)")
+    if not isinstance(root.value, dict):
+        raise RecipeError(problems, source)
+
+    vals = top.take_all(TOP_FIELDS)
+    name = vals["name"] if top.node("name") is not None else default_name
+    if isinstance(name, str) and not NAME_RE.match(name):
+        top.problem("name", "is not a usable folder name", top.line_of("name"), name,
+                    "lower case letters, digits, '-' and '_', 1-64 characters")
+    label = vals["label"]
+    if isinstance(label, str) and not LABEL_RE.match(label):
+        top.problem("label", "is not a valid label", top.line_of("label"), label,
+                    "upper case letters, digits and '-', starting with a letter or digit")
+
+    body = _read_kind(top.node("body"), "body", body_kinds(), problems, top.line, "body")
+    if top.items.get("body") is None:
+        top.problem("body", "is required", top.line, None, "a mapping with kind: "
+                    + " | ".join(body_kinds()))
+
+    voids = []
+    vnode = top.node("voids")
+    if vnode is None:
+        top.problem("voids", "is required", top.line, None,
+                    "a list of voids, each with kind: " + " | ".join(void_kinds()))
+    elif not isinstance(vnode.value, list) or not vnode.value:
+        top.problem("voids", "must be a non-empty list", vnode.key_line or vnode.line,
+                    vnode.plain(), f"1 to {MAX_VOIDS} void entries")
+    elif len(vnode.value) > MAX_VOIDS:
+        top.problem("voids", "has too many entries", vnode.key_line or vnode.line,
+                    len(vnode.value), f"at most {MAX_VOIDS}")
+    else:
+        for i, item in enumerate(vnode.value):
+            voids.append(_read_kind(item, join_path("voids", i), void_kinds(), problems,
+                                    item.line, "void"))
+
+    blocks = {}
+    for block, fields in BLOCKS.items():
+        r = MapReader(top.node(block), block, problems, top.line)
+        blocks[block] = r.take_all(fields)
+        r.finish()
+    top.finish()
+
+    if problems or body is None or any(v is None for v in voids):
+        raise RecipeError(problems, source)
+
+    inlet_v = blocks["inlet"]
+    if inlet_v["center_mm"] is None:
+        inlet_v["center_mm"] = voids[0].entry()[0]
+    parting_v = blocks["parting"]
+    if parting_v["axis"] is None:
+        _, w, h = body.size_mm()
+        parting_v["axis"] = "y" if w < h else "z"
+
+    recipe = Recipe(
+        name=name, label=label, description=vals["description"] or "", body=body,
+        voids=tuple(voids), inlet=Inlet(**inlet_v), parting=Parting(**parting_v),
+        mold=MoldSettings(**blocks["mold"]), checks=Checks(**blocks["checks"]),
+        mesh=MeshSettings(**blocks["mesh"]), source=source)
+
+    lines = _lines(root)
+    problems.extend(sanity_problems(recipe, lines))
+    if problems:
+        raise RecipeError(problems, source)
+    return recipe
+
+
+def _lines(root: Node) -> dict[str, int]:
+    """Field path -> source line, for problems found after validation."""
+    out: dict[str, int] = {}
+
+    def walk(n: Node, path: str) -> None:
+        out[path] = n.key_line if n.key_line is not None else n.line
+        if isinstance(n.value, dict):
+            for k, c in n.value.items():
+                walk(c, join_path(path, k))
+        elif isinstance(n.value, list):
+            for i, c in enumerate(n.value):
+                walk(c, join_path(path, i))
+
+    walk(root, "")
+    return out

@@ -1,0 +1,115 @@
+"""Frozen value objects of a validated recipe.
+
+Frame (all mm): the body's long axis is +x, starting at the inlet face x = 0; y and z are
+across it. The mold splits on a plane normal to the parting axis (y or z); in pour
+orientation that axis points up, the "upper" shell lies on its + side and pulls along +axis,
+the "lower" shell pulls along -axis, and the core pulls out along -x through the inlet.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+from dataclasses import asdict, dataclass
+from typing import Any
+
+from .primitives import Primitive, RoundedRod
+
+#: ISO 273 clearance holes, medium series (mm): the fit for a bolt through both shells.
+ISO273_MEDIUM_MM = {"M3": 3.4, "M4": 4.5, "M5": 5.5}
+
+
+@dataclass(frozen=True)
+class Inlet:
+    """Tube socket where the core leaves the body: a round hole into the -x face."""
+
+    socket_diameter_mm: float
+    socket_depth_mm: float
+    center_mm: tuple[float, float]  # (y, z) on the x = 0 face
+
+    def socket(self) -> RoundedRod:
+        return RoundedRod("x", 0.0, self.socket_depth_mm, self.center_mm,
+                          self.socket_diameter_mm / 2.0, 0.0)
+
+
+@dataclass(frozen=True)
+class Parting:
+    """Parting plane: normal to ``axis`` ("y" or "z") at ``offset_mm`` along it."""
+
+    axis: str
+    offset_mm: float
+
+
+@dataclass(frozen=True)
+class MoldSettings:
+    wall_mm: float            # mold material around the cavity, every side
+    flange_mm: float          # extra band around the cavity in the parting plane (keys, bolts)
+    clearance_mm: float       # per-side gap of every printed fit (keys, core key)
+    clamp_bolt: str           # "M3", "M4", "M5" or "none"
+    sprue_diameter_mm: float
+    funnel_diameter_mm: float
+    vent_diameter_mm: float
+    key_diameter_mm: float    # registration key base diameter
+    key_height_mm: float
+    core_handle_mm: float     # how far the core print stands out of the block
+
+    @property
+    def clamp_hole_mm(self) -> float | None:
+        return ISO273_MEDIUM_MM.get(self.clamp_bolt)
+
+
+@dataclass(frozen=True)
+class Checks:
+    min_wall_mm: float        # thinnest silicone wall accepted anywhere
+
+
+@dataclass(frozen=True)
+class MeshSettings:
+    chord_mm: float           # largest distance between a facet and the true surface
+    angle_deg: float          # largest angle between neighbouring facet normals on a curve
+
+
+@dataclass(frozen=True)
+class Recipe:
+    """A validated recipe. ``body`` and ``voids`` are instances of registered kinds."""
+
+    name: str
+    label: str
+    description: str
+    body: Any
+    voids: tuple[Any, ...]
+    inlet: Inlet
+    parting: Parting
+    mold: MoldSettings
+    checks: Checks
+    mesh: MeshSettings
+    source: str = ""
+
+    def body_primitives(self) -> tuple[Primitive, ...]:
+        return self.body.primitives()
+
+    def void_primitives(self) -> tuple[tuple[Primitive, ...], ...]:
+        """Primitives per void entry, in recipe order (without the inlet socket)."""
+        length = self.body.size_mm()[0]
+        return tuple(v.primitives(length) for v in self.voids)
+
+    def params(self) -> dict[str, Any]:
+        """Every value that shapes the output, as plain JSON-ready data."""
+        def kind_dict(obj: Any) -> dict[str, Any]:
+            return {"kind": obj.KIND, **asdict(obj)}
+
+        return {
+            "name": self.name,
+            "label": self.label,
+            "body": kind_dict(self.body),
+            "voids": [kind_dict(v) for v in self.voids],
+            "inlet": asdict(self.inlet),
+            "parting": asdict(self.parting),
+            "mold": asdict(self.mold),
+            "checks": asdict(self.checks),
+            "mesh": asdict(self.mesh),
+        }
+
+    def params_sha256(self) -> str:
+        canon = json.dumps(self.params(), sort_keys=True, separators=(",", ":"))
+        return hashlib.sha256(canon.encode()).hexdigest()

@@ -1,0 +1,99 @@
+"""Geometric sanity of a validated recipe, checked with exact distance functions before
+any kernel call: voids inside the body with the minimum silicone wall, every void
+reached from the inlet socket, the socket on the flat inlet face, and the parting plane
+through the socket axis (so the core print can be seated in both shell parts)."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..errors import Problem
+from .model import Recipe
+from .primitives import union_sdf
+
+#: Sample spacing on void surfaces (mm). Walls here are planes, cylinders and fillets,
+#: whose distance to the body varies smoothly, so 0.5 mm resolves a 0.05 mm reporting step
+#: well enough for a go/no-go before the kernel runs.
+SAMPLE_MM = 0.5
+EPS = 1e-6
+
+
+def _fmt_point(p: np.ndarray) -> str:
+    return "(" + ", ".join(f"{c:.2f}" for c in p) + ") mm"
+
+
+def sanity_problems(r: Recipe, lines: dict[str, int]) -> list[Problem]:
+    out: list[Problem] = []
+    body = r.body_primitives()
+    socket = r.inlet.socket()
+    min_wall = r.checks.min_wall_mm
+    sock_r = r.inlet.socket_diameter_mm / 2.0
+    cy, cz = r.inlet.center_mm
+
+    def line(path: str) -> int | None:
+        while path and path not in lines:
+            path = path.rsplit(".", 1)[0] if "." in path else ""
+        return lines.get(path)
+
+    # The socket mouth must sit on the flat x = 0 face with a wall around it.
+    ring = np.linspace(0.0, 2 * np.pi, 73)[:-1]
+    delta = 1e-3
+    rim = np.stack([np.full_like(ring, delta), cy + (sock_r + min_wall) * np.cos(ring),
+                    cz + (sock_r + min_wall) * np.sin(ring)], axis=1)
+    d = union_sdf(body, rim)
+    if np.any(d > -delta + 1e-7):
+        out.append(Problem("inlet.center_mm", "puts the socket off the flat inlet face (x = 0) "
+                           f"or closer than checks.min_wall_mm = {min_wall:g} mm to its edge",
+                           line("inlet.center_mm") or line("inlet"), [cy, cz],
+                           "a point of the x = 0 face at least socket radius + min wall from "
+                           "its rim"))
+
+    sock_samples = socket.surface_samples(SAMPLE_MM)
+    # The mouth is meant to be open, and the rim check above already bounds the wall
+    # around the socket's side (the body only widens away from x = 0); what is left to
+    # check is the socket's floor.
+    sock_samples = sock_samples[sock_samples[:, 0] > r.inlet.socket_depth_mm - EPS]
+    _wall_problems(out, "inlet", line("inlet") or line(""), body, sock_samples, min_wall)
+
+    for i, (void, prims) in enumerate(zip(r.voids, r.void_primitives())):
+        path = f"voids[{i}]"
+        samples = np.concatenate([p.surface_samples(SAMPLE_MM) for p in prims])
+        # Surface inside another primitive of the same void, or inside the socket, is not
+        # a cast surface; keep only points on the void set's own boundary.
+        inside_self = union_sdf(prims, samples) < -EPS
+        inside_socket = socket.sdf(samples) < EPS
+        samples = samples[~inside_self & ~inside_socket]
+        _wall_problems(out, path, line(path), body, samples, min_wall)
+
+        (ey, ez), er, ex = void.entry()
+        if np.hypot(ey - cy, ez - cz) + er > sock_r + EPS or ex > r.inlet.socket_depth_mm:
+            out.append(Problem(path, "is not reached from the inlet socket",
+                               line(path), None,
+                               f"its entry (y, z) = ({ey:g}, {ez:g}) mm, radius {er:g} mm and "
+                               f"start x = {ex:g} mm must lie inside the socket "
+                               f"(centre ({cy:g}, {cz:g}), radius {sock_r:g} mm, depth "
+                               f"{r.inlet.socket_depth_mm:g} mm)"))
+
+    inlet_on_axis = cz if r.parting.axis == "z" else cy
+    if abs(inlet_on_axis - r.parting.offset_mm) > EPS:
+        out.append(Problem("parting.offset_mm", "does not pass through the inlet socket axis",
+                           line("parting.offset_mm") or line("parting") or line(""),
+                           r.parting.offset_mm,
+                           f"{inlet_on_axis:g} mm (the socket centre's {r.parting.axis}), so "
+                           "the core print can be seated in both shell parts"))
+    return out
+
+
+def _wall_problems(out: list[Problem], path: str, line: int | None, body, samples: np.ndarray,
+                   min_wall: float) -> None:
+    if len(samples) == 0:
+        return
+    d = union_sdf(body, samples)
+    worst = int(np.argmax(d))
+    if d[worst] > -EPS:
+        out.append(Problem(path, f"breaks through the body surface at {_fmt_point(samples[worst])}",
+                           line, None, "voids entirely inside the body"))
+    elif -d[worst] < min_wall - 1e-6:
+        out.append(Problem(path, f"leaves a silicone wall of {-d[worst]:.2f} mm at "
+                           f"{_fmt_point(samples[worst])}", line, None,
+                           f"at least checks.min_wall_mm = {min_wall:g} mm"))

@@ -1,0 +1,68 @@
+"""The recipe's settings blocks (everything but the body and void kinds)."""
+
+from __future__ import annotations
+
+from .fields import Field, choice, number, pair, text
+
+TOP_FIELDS: tuple[Field, ...] = (
+    text("name", "recipe name: lower case letters, digits, - and _ (the output folder); "
+         "default: the file name", None),
+    text("label", "variant label stamped into the output path", "A"),
+    text("description", "free text for people", ""),
+)
+
+INLET_FIELDS: tuple[Field, ...] = (
+    number("socket_diameter_mm", "diameter of the tube socket left in the cast", 4.0, hi=30.0),
+    number("socket_depth_mm", "depth of the tube socket into the body from x = 0", 6.0, hi=50.0),
+    pair("center_mm", "(y, z) of the socket on the x = 0 face; default: where the first "
+         "void meets that face", None),
+)
+
+PARTING_FIELDS: tuple[Field, ...] = (
+    choice("axis", "normal of the parting plane (up in pour orientation); default: the "
+           "body's thinner cross direction (z on a tie)", ("y", "z"), None),
+    number("offset_mm", "position of the parting plane along its axis", 0.0,
+           lo=-500.0, hi=500.0, lo_open=False),
+)
+
+MOLD_FIELDS: tuple[Field, ...] = (
+    number("wall_mm", "mold material around the cavity on every side", 5.0, lo=4.0, hi=50.0,
+           lo_open=False),
+    number("flange_mm", "extra band around the cavity in the parting plane for keys and "
+           "clamp holes", 12.0, lo=8.0, hi=60.0, lo_open=False),
+    number("clearance_mm", "per-side gap of printed fits (common practice 0.2-0.5)", 0.3,
+           lo=0.1, hi=1.0, lo_open=False),
+    choice("clamp_bolt", "bolt for the clamp holes (ISO 273 medium clearance) or none",
+           ("M3", "M4", "M5", "none"), "M4"),
+    number("sprue_diameter_mm", "pour sprue diameter where it meets the cavity", 6.0,
+           lo=3.0, hi=15.0, lo_open=False),
+    number("funnel_diameter_mm", "pour funnel diameter at the top face", 14.0, lo=6.0,
+           hi=40.0, lo_open=False),
+    number("vent_diameter_mm", "vent diameter", 2.0, lo=1.0, hi=5.0, lo_open=False),
+    number("key_diameter_mm", "registration key base diameter", 6.0, lo=3.0, hi=15.0,
+           lo_open=False),
+    number("key_height_mm", "registration key height above the parting plane", 3.0, lo=1.5,
+           hi=10.0, lo_open=False),
+    number("core_handle_mm", "length of core print standing out of the mold", 10.0, lo=3.0,
+           hi=60.0, lo_open=False),
+)
+
+CHECKS_FIELDS: tuple[Field, ...] = (
+    number("min_wall_mm", "thinnest silicone wall accepted (common practice ~1 mm for small "
+           "actuators)", 1.0, lo=0.3, hi=20.0, lo_open=False),
+)
+
+MESH_FIELDS: tuple[Field, ...] = (
+    number("chord_mm", "largest facet-to-surface distance", 0.02, lo=0.002, hi=0.5,
+           lo_open=False),
+    number("angle_deg", "largest angle between neighbouring facets on a curve", 6.0,
+           unit="deg", lo=1.0, hi=30.0, lo_open=False),
+)
+
+BLOCKS: dict[str, tuple[Field, ...]] = {
+    "inlet": INLET_FIELDS,
+    "parting": PARTING_FIELDS,
+    "mold": MOLD_FIELDS,
+    "checks": CHECKS_FIELDS,
+    "mesh": MESH_FIELDS,
+}

@@ -1,0 +1,319 @@
+"""Tests for the safe, line-aware recipe reader.
+
+The independent reference for "what the data is" is PyYAML's own ``yaml.safe_load``; the
+reference for scalar typing is the YAML 1.1 type repository (yaml.org/type/*.html).
+Line numbers are asserted against documents written here, where they are known by
+construction.
+"""
+
+from __future__ import annotations
+
+import codecs
+import math
+import time
+
+import pytest
+import yaml
+
+from soft_molds.errors import RecipeError
+from soft_molds.recipe import yamlsource
+from soft_molds.recipe.yamlsource import (
+    MAX_EXPANDED_NODES,
+    MAX_RECIPE_BYTES,
+    Node,
+    parse_recipe_text,
+    read_recipe_file,
+)
+
+# Demo recipe from our own scenario: a greenhouse co-op's seedling-transplanting gripper.
+# Field names are illustrative only; this layer does not know the schema.
+GRIPPER = """\
+# seedling gripper finger, cast in platinum-cure silicone, Shore A10
+name: seedling-finger
+mold:
+  wall_mm: 3.0
+  draft_deg: 1.0
+  vents: [2.0, 2.0]
+chambers: &ch
+  count: 8
+  pitch_mm: 6.5
+voids:
+  - shape: box
+    pitch_mm: 6.5
+  - shape: channel
+    depth_mm: 2
+notes: |
+  fill from the bottom
+spare:
+  <<: *ch
+  count: 4
+inlet: null
+flat: yes
+"""
+
+
+def _problems(excinfo: pytest.ExceptionInfo[RecipeError]) -> list[tuple]:
+    return [(p.path, p.message, p.line) for p in excinfo.value.problems]
+
+
+def test_nested_values_and_list_items_carry_their_source_lines():
+    root = parse_recipe_text(GRIPPER)
+    assert root.line == 2  # the comment on line 1 holds no value
+    mold = root.value["mold"]
+    assert mold.line == 4  # a block mapping starts at its first key, under "mold:"
+    assert mold.value["wall_mm"].line == 4
+    assert mold.value["draft_deg"].line == 5
+    vents = mold.value["vents"]
+    assert (vents.line, [v.line for v in vents.value]) == (6, [6, 6])
+    voids = root.value["voids"].value
+    assert [v.line for v in voids] == [11, 13]
+    assert voids[1].value["depth_mm"].line == 14
+    assert root.value["notes"].line == 15  # a block scalar starts at its indicator
+
+
+def test_mapping_values_record_the_line_of_their_key():
+    root = parse_recipe_text(GRIPPER)
+    assert root.key_line is None
+    assert root.value["mold"].key_line == 3  # value starts on 4, the key is on 3
+    assert root.value["voids"].key_line == 10
+    assert root.value["mold"].value["wall_mm"].key_line == 4
+    assert root.value["voids"].value[0].key_line is None  # list items have no key
+    empty = parse_recipe_text("a:\nb: 1\n").value["a"]
+    assert (empty.value, empty.line, empty.key_line) == (None, 1, 1)
+
+
+def test_duplicate_keys_top_level_and_nested_are_all_reported_with_both_lines():
+    text = "mold:\n  wall_mm: 3\n  draft_deg: 1\n  wall_mm: 4\nname: a\nname: b\n"
+    with pytest.raises(RecipeError) as excinfo:
+        parse_recipe_text(text)
+    assert _problems(excinfo) == [
+        ("mold.wall_mm", "duplicate key 'wall_mm' (first at line 2)", 4),
+        ("name", "duplicate key 'name' (first at line 5)", 6),
+    ]
+    # yaml.safe_load silently keeps the last value: the reason this check exists.
+    assert yaml.safe_load(text)["mold"]["wall_mm"] == 4
+
+
+def test_duplicate_key_inside_list_item_uses_bracket_path():
+    with pytest.raises(RecipeError) as excinfo:
+        parse_recipe_text("voids:\n  - a: 1\n  - pitch_mm: 2\n    pitch_mm: 3\n")
+    assert _problems(excinfo) == [
+        ("voids[1].pitch_mm", "duplicate key 'pitch_mm' (first at line 3)", 4)]
+
+
+def _billion_laughs(levels: int = 9, fan: int = 9) -> str:
+    # "Billion laughs": nested anchors that each repeat the previous one -- a well-known
+    # entity-expansion attack pattern (common practice).
+    lines = ["l0: &l0 [" + ", ".join(['"lol"'] * fan) + "]"]
+    for i in range(1, levels + 1):
+        lines.append(f"l{i}: &l{i} [" + ", ".join([f"*l{i - 1}"] * fan) + "]")
+    return "\n".join(lines) + "\n"
+
+
+def test_billion_laughs_is_refused_quickly_at_the_alias_line():
+    text = _billion_laughs()  # 9 levels x 9 aliases: 9**10 strings if expanded
+    start = time.perf_counter()
+    with pytest.raises(RecipeError) as excinfo:
+        parse_recipe_text(text)
+    elapsed = time.perf_counter() - start
+    assert elapsed < 2.0  # sanity bound; the refusal takes well under a second
+    # Nodes per level when expanded: 10, 91, 820, 7381 (1 + 9 * previous), so the
+    # 20000 bound is crossed inside the second alias on line 5 (l4).
+    assert _problems(excinfo) == [
+        ("l4[1]", f"anchors/aliases expand beyond {MAX_EXPANDED_NODES} nodes", 5)]
+
+
+def test_small_legitimate_alias_and_merge_key_are_accepted():
+    root = parse_recipe_text(GRIPPER)
+    assert root.plain()["spare"] == {"count": 4, "pitch_mm": 6.5}  # explicit key wins
+    assert root.value["spare"].value["pitch_mm"].line == 9  # merged value keeps its line
+    alias = parse_recipe_text("a: &x [1, 2]\nb: *x\n").value["b"]
+    assert (alias.plain(), alias.line, [n.line for n in alias.value]) == ([1, 2], 2, [1, 1])
+
+
+def test_recursive_alias_is_refused():
+    with pytest.raises(RecipeError) as excinfo:
+        parse_recipe_text("a: &x\n  - 1\n  - *x\n")
+    assert _problems(excinfo) == [
+        ("a[1]", "alias '*x' is used inside its own anchor (recursive alias)", 3)]
+
+
+def test_syntax_error_reports_yaml_line_and_column():
+    with pytest.raises(RecipeError) as excinfo:
+        parse_recipe_text("name: a\nmold:\n  wall_mm: 3\n draft_deg: 1\n", source="r.yaml")
+    (problem,) = excinfo.value.problems
+    assert problem.line == 4
+    assert problem.message.startswith("YAML syntax error: ")
+    assert problem.message.endswith("(column 2)")  # where yaml's problem_mark points
+    assert excinfo.value.source == "r.yaml"
+
+
+@pytest.mark.parametrize("text", ["", "   \n\t\n", "# a comment\n\t# another\n", "---\n", "\ufeff"])
+def test_empty_whitespace_or_comment_only_recipe_is_empty(text):
+    with pytest.raises(RecipeError) as excinfo:
+        parse_recipe_text(text)
+    assert _problems(excinfo) == [("", "recipe is empty", None)]
+
+
+def test_several_documents_are_refused():
+    with pytest.raises(RecipeError) as excinfo:
+        parse_recipe_text("name: a\n---\nname: b\n")
+    (problem,) = excinfo.value.problems
+    assert (problem.line, problem.allowed) == (2, "a single document")
+    assert "more than one YAML document" in problem.message
+
+
+@pytest.mark.parametrize(("tagged", "line"), [
+    ("a: !!python/object/apply:os.system ['touch {marker}']\n", 1),
+    ("a: !!python/name:os.system\n", 1),
+    ("a: !!python/object/new:os.system\n  args: ['touch {marker}']\n", 1),
+    ("a: 1\nb:\n  c: !custom 3\n", 3),
+])
+def test_python_and_unknown_tags_are_refused_and_never_run(tagged, line, tmp_path):
+    marker = tmp_path / "ran"
+    with pytest.raises(RecipeError) as excinfo:
+        parse_recipe_text(tagged.format(marker=marker))
+    (problem,) = excinfo.value.problems
+    assert problem.message.startswith("tag '!")
+    assert problem.message.endswith("' is not allowed")
+    assert problem.line == line
+    assert not marker.exists()
+
+
+def test_non_text_keys_are_refused_with_their_line():
+    # YAML 1.1 reads unquoted on/1 as bool/int (yaml.org/type/bool.html, int.html).
+    with pytest.raises(RecipeError) as excinfo:
+        parse_recipe_text("mold:\n  on: 1\n  2: x\n  [a]: 3\n")
+    got = [(p.path, p.message, p.line, p.value) for p in excinfo.value.problems]
+    assert got == [
+        ("mold", "mapping key must be text", 2, True),
+        ("mold", "mapping key must be text", 3, 2),
+        ("mold", "mapping key must be text", 4, "a list"),
+    ]
+
+
+def test_scalars_keep_yaml_1_1_safe_typing():
+    text = "a: yes\nb: 0x1F\nc: 1_000\nd: 017\ne: .inf\nf: ~\ng: 1e3\nh: 1:30\ni: .NaN\n"
+    got = parse_recipe_text(text).plain()
+    # Values from the YAML 1.1 type repository (yaml.org/type/bool.html, int.html
+    # [hex, underscores, 0-prefixed octal, base 60], float.html [a "." is required],
+    # null.html); PyYAML's safe_load is the second, independent reader.
+    expected = {"a": True, "b": 31, "c": 1000, "d": 15, "e": math.inf, "f": None,
+                "g": "1e3", "h": 90}
+    assert {k: v for k, v in got.items() if k != "i"} == expected
+    assert math.isnan(got["i"])
+    reference = yaml.safe_load(text)
+    assert math.isnan(reference.pop("i"))
+    assert reference == expected
+
+
+def test_dates_stay_text_unlike_safe_load():
+    # Deliberate: a recipe holds no datetime values, and text hashes stably.
+    assert parse_recipe_text("cast_on: 2024-05-01\n").plain() == {"cast_on": "2024-05-01"}
+    assert yaml.safe_load("cast_on: 2024-05-01\n")["cast_on"].isoformat() == "2024-05-01"
+
+
+def test_plain_round_trip_equals_safe_load():
+    assert parse_recipe_text(GRIPPER).plain() == yaml.safe_load(GRIPPER)
+
+
+def test_too_many_values_without_aliases_are_refused():
+    text = "v: [" + ", ".join(["1"] * MAX_EXPANDED_NODES) + "]\n"
+    with pytest.raises(RecipeError) as excinfo:
+        parse_recipe_text(text)
+    assert _problems(excinfo) == [
+        ("v[19998]", f"recipe has more than {MAX_EXPANDED_NODES} values", 1)]
+
+
+def test_control_character_is_refused_with_its_line():
+    with pytest.raises(RecipeError) as excinfo:
+        parse_recipe_text("a: 1\nb: x\x07y\n")
+    assert _problems(excinfo) == [
+        ("", "recipe holds a character YAML does not accept (#x0007)", 2)]
+
+
+def test_file_is_read_with_the_path_as_label(tmp_path):
+    path = tmp_path / "finger.yaml"
+    path.write_text(GRIPPER, encoding="utf-8")
+    root, label = read_recipe_file(path)
+    assert label == str(path)
+    assert root.plain() == yaml.safe_load(GRIPPER)
+    path.write_text("a: 1\na: 2\n", encoding="utf-8")
+    with pytest.raises(RecipeError) as excinfo:
+        read_recipe_file(str(path))
+    assert excinfo.value.source == str(path)
+
+
+def test_oversize_file_is_refused_without_reading_it(tmp_path, monkeypatch):
+    path = tmp_path / "big.yaml"
+    path.write_bytes(b"#" * (MAX_RECIPE_BYTES + 1))
+
+    def no_open(*args, **kwargs):
+        raise AssertionError("the oversize file was opened")
+
+    monkeypatch.setattr(yamlsource, "open", no_open, raising=False)
+    with pytest.raises(RecipeError) as excinfo:
+        read_recipe_file(path)
+    (problem,) = excinfo.value.problems
+    assert problem.format("big.yaml") == (
+        "big.yaml: recipe file is 262145 bytes; allowed: at most 262144 bytes")
+
+
+def test_file_of_exactly_the_limit_is_read(tmp_path):
+    path = tmp_path / "edge.yaml"
+    path.write_bytes(b"a: 1\n" + b"#" * (MAX_RECIPE_BYTES - 5))
+    assert read_recipe_file(path)[0].plain() == {"a": 1}
+
+
+def test_missing_file_is_reported_with_its_path(tmp_path):
+    missing = tmp_path / "nope.yaml"
+    with pytest.raises(RecipeError) as excinfo:
+        read_recipe_file(missing)
+    (problem,) = excinfo.value.problems
+    assert (problem.message, problem.value) == ("recipe file not found", str(missing))
+
+
+def test_directory_is_refused(tmp_path):
+    with pytest.raises(RecipeError) as excinfo:
+        read_recipe_file(tmp_path)
+    (problem,) = excinfo.value.problems
+    assert (problem.message, problem.value) == (
+        "recipe path is a directory, not a file", str(tmp_path))
+
+
+def test_invalid_utf8_names_the_byte_offset_and_line(tmp_path):
+    path = tmp_path / "latin1.yaml"
+    path.write_bytes(b"name: a\nnote: caf\xe9\n")  # 0xE9 is Latin-1, not UTF-8
+    with pytest.raises(RecipeError) as excinfo:
+        read_recipe_file(path)
+    (problem,) = excinfo.value.problems
+    assert problem.message == "recipe file is not valid UTF-8: byte 0xe9 at offset 17"
+    assert problem.line == 2
+
+
+def test_leading_bom_is_accepted_and_lines_unchanged(tmp_path):
+    path = tmp_path / "bom.yaml"
+    path.write_bytes(codecs.BOM_UTF8 + b"name: a\nmold:\n  wall_mm: 3\n")
+    root, _ = read_recipe_file(path)
+    assert root.plain() == {"name": "a", "mold": {"wall_mm": 3}}
+    assert root.value["mold"].value["wall_mm"].line == 3
+    path.write_bytes(codecs.BOM_UTF8 + b"a: 1\nb: \xff\n")
+    with pytest.raises(RecipeError) as excinfo:
+        read_recipe_file(path)
+    assert "at offset 11" in excinfo.value.problems[0].message  # offset counts the BOM
+
+
+def test_node_is_an_immutable_value():
+    node = Node(3, 1)
+    with pytest.raises(AttributeError):
+        node.line = 2  # type: ignore[misc]
+    assert node == Node(3, 1, None)
+
+
+def test_aliases_that_nest_too_deeply_are_refused_not_crashed():
+    # Each anchor nests the previous one 200 lists deeper: few values, great depth.
+    lines = ["a0: &a0 " + "[" * 200 + "1" + "]" * 200]
+    lines += [f"a{i}: &a{i} " + "[" * 200 + f"*a{i - 1}" + "]" * 200 for i in range(1, 6)]
+    with pytest.raises(RecipeError) as excinfo:
+        parse_recipe_text("\n".join(lines) + "\n")
+    assert _problems(excinfo) == [("", "recipe nests too deeply (through aliases)", None)]
