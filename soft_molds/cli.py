@@ -1,0 +1,133 @@
+"""Command line: ``soft-molds build`` and ``soft-molds check``.
+
+Exit status: 0 success; 1 a mold could not be built or a mesh failed its integrity check;
+2 bad input (recipe problems, one line each, no traceback, nothing written).
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+import time
+from collections.abc import Sequence
+
+from .errors import RecipeError, SoftMoldsError
+from .version import __version__
+
+CAUTIONS = (
+    "Cautions: inflated silicone parts can balloon and burst - wear eye protection, use a "
+    "regulator and a relief valve, ramp pressure slowly and never exceed a pressure you have "
+    "tested.",
+    "Mix silicone with nitrile or vinyl gloves and good ventilation; follow the material "
+    "safety data sheets, local codes and licensed practice. Parts worn on a body are not "
+    "medical devices.",
+)
+
+
+def _fmt_part(p) -> str:
+    lo, hi = p.mesh.bbox_mm()
+    size = " x ".join(f"{h - l:.1f}" for l, h in zip(lo, hi))
+    pull = "-" if p.pull_dir is None else _axis_name(p.pull_dir)
+    verdict = "ok" if p.report.ok else "FAILED"
+    return (f"  {p.name:<12} {p.role:<5} {p.brep_volume_mm3:>11.1f} mm3 {p.mesh.triangle_count:>8} "
+            f"triangles  {size} mm  pull {pull:<3} {verdict}")
+
+
+def _axis_name(d: Sequence[float]) -> str:
+    for i, name in enumerate("xyz"):
+        if abs(d[i]) > 0.5:
+            return ("+" if d[i] > 0 else "-") + name
+    return "?"
+
+
+def _load(paths: Sequence[str]):
+    from .recipe import load_recipe
+
+    recipes, bad = [], False
+    for path in paths:
+        try:
+            recipes.append(load_recipe(path))
+        except RecipeError as exc:
+            bad = True
+            for line in exc.lines():
+                print(f"error: {line}", file=sys.stderr)
+    return recipes, bad
+
+
+def cmd_build(args: argparse.Namespace) -> int:
+    recipes, bad = _load([args.recipe])
+    if bad:
+        return 2
+    from .pipeline import build
+
+    r = recipes[0]
+    t = time.perf_counter()
+    try:
+        molds = build(r)
+        paths = molds.export(args.out)
+    except SoftMoldsError as exc:
+        print(f"error: {r.source}: {exc}", file=sys.stderr)
+        return 1
+    print(f"{r.name} {r.label}: built in {time.perf_counter() - t:.1f} s -> "
+          f"{molds.output_dir(args.out)}")
+    for p in molds.parts:
+        print(_fmt_part(p))
+    print(f"  silicone {molds.silicone_volume_mm3 / 1000.0:.2f} cm3; sprue and vents: "
+          + ", ".join(o.kind for o in molds.openings))
+    print(f"  wrote {len(paths)} files")
+    for line in CAUTIONS:
+        print(line)
+    return 0
+
+
+def cmd_check(args: argparse.Namespace) -> int:
+    recipes, bad = _load(args.recipes)
+    if bad:
+        return 2
+    from .pipeline import build
+
+    failed = 0
+    for r in recipes:
+        try:
+            molds = build(r)
+        except SoftMoldsError as exc:
+            failed += 1
+            print(f"FAIL {r.source}: {exc}")
+            continue
+        print(f"ok   {r.source}: {r.name} {r.label}, {len(molds.parts)} parts closed and "
+              f"consistent")
+        for p in molds.parts:
+            print(_fmt_part(p))
+    print(f"{len(recipes) - failed} of {len(recipes)} recipes passed")
+    return 1 if failed else 0
+
+
+def make_parser() -> argparse.ArgumentParser:
+    ap = argparse.ArgumentParser(
+        prog="soft-molds",
+        description="Turn a YAML recipe for a cast silicone actuator into a checked set of "
+                    "printable molds (two shell parts and a removable core).")
+    ap.add_argument("--version", action="version", version=f"soft-molds {__version__}")
+    sub = ap.add_subparsers(dest="command", required=True)
+    b = sub.add_parser("build", help="build one recipe and write its files",
+                       description="Build RECIPE and write STL, STEP and manifest.json "
+                                   "under DIR/<recipe>/<label>/.")
+    b.add_argument("recipe", metavar="RECIPE", help="path to a recipe YAML file")
+    b.add_argument("--out", default="out", metavar="DIR", help="output root (default: out)")
+    b.set_defaults(func=cmd_build)
+    c = sub.add_parser("check", help="build recipes in memory and check every mesh",
+                       description="Build each RECIPE in memory (nothing written) and check "
+                                   "that every part is a closed, consistent volume. Exit 1 "
+                                   "when any fails, 2 on bad input.")
+    c.add_argument("recipes", nargs="+", metavar="RECIPE", help="recipe YAML files")
+    c.set_defaults(func=cmd_check)
+    return ap
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    args = make_parser().parse_args(argv)
+    return int(args.func(args))
+
+
+if __name__ == "__main__":
+    sys.exit(main())

@@ -1,0 +1,183 @@
+"""Thin, checked wrappers over the CAD kernel (cadquery/OCCT): the only module that
+imports cadquery, so it is imported once per process.
+
+OCCT booleans can report success on invalid input and hand back a wrong solid, so every
+step here checks validity, solid count and, where known, the volume (kernel-notes).
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+
+import cadquery as cq
+
+from ..errors import GeometryError
+from ..recipe.primitives import AXES, Primitive, RoundedBox, RoundedRod
+
+Shape = cq.Shape
+_DIRS = {0: cq.Vector(1, 0, 0), 1: cq.Vector(0, 1, 0), 2: cq.Vector(0, 0, 1)}
+
+
+def solids_of(shape: cq.Shape) -> list[cq.Solid]:
+    return list(shape.Solids())
+
+
+def checked(shape: cq.Shape, part: str, step: str, solids: int | None = 1,
+            volume_mm3: float | None = None, rel_tol: float = 1e-6) -> cq.Shape:
+    """Return ``shape`` normalised to one Solid (when ``solids == 1``) after checking it."""
+    if shape is None or shape.isNull():
+        raise GeometryError(step, "the kernel returned an empty shape", part)
+    if not shape.isValid():
+        raise GeometryError(step, "the kernel returned an invalid solid", part)
+    found = solids_of(shape)
+    if solids is not None and len(found) != solids:
+        raise GeometryError(step, f"expected {solids} solid(s), got {len(found)}", part)
+    if solids == 1:
+        shape = found[0]
+    vol = shape.Volume()
+    if vol <= 0:
+        raise GeometryError(step, f"non-positive volume {vol:.6g} mm3", part)
+    if volume_mm3 is not None and abs(vol - volume_mm3) > rel_tol * max(abs(volume_mm3), 1.0):
+        raise GeometryError(step, f"volume {vol:.6f} mm3, expected {volume_mm3:.6f} mm3", part)
+    return shape
+
+
+def box(lo: Sequence[float], hi: Sequence[float]) -> cq.Solid:
+    lo_v = cq.Vector(*lo)
+    size = [h - l for l, h in zip(lo, hi)]
+    return cq.Solid.makeBox(size[0], size[1], size[2], pnt=lo_v)
+
+
+def cylinder(axis: int, start: Sequence[float], length: float, radius: float) -> cq.Solid:
+    return cq.Solid.makeCylinder(radius, length, cq.Vector(*start), _DIRS[axis])
+
+
+def frustum(axis: int, start: Sequence[float], height: float, r_base: float, r_top: float,
+            sign: float = 1.0) -> cq.Solid:
+    d = _DIRS[axis] * sign
+    return cq.Solid.makeCone(r_base, r_top, height, cq.Vector(*start), d)
+
+
+def _rounded_box(p: RoundedBox, part: str) -> cq.Shape:
+    c = cq.Vector(*p.center_mm)
+    sx, sy, sz = p.size_mm
+    solid = cq.Solid.makeBox(sx, sy, sz, pnt=c - cq.Vector(sx / 2, sy / 2, sz / 2))
+    if p.radius_mm <= 0:
+        return solid
+    # Fillet the primitive before any boolean: fillets on fused results fail (kernel-notes).
+    rounded = solid.fillet(p.radius_mm, solid.Edges())
+    return checked(rounded, part, "round box edges")
+
+
+def _rounded_rod(p: RoundedRod, part: str) -> cq.Shape:
+    """Revolve the rounded (t, rho) rectangle: one recipe handles every end rounding from
+    sharp to full hemispheres without a fillet operation."""
+    a = AXES[p.axis]
+    r, f, length = p.radius_mm, p.end_radius_mm, p.length_mm
+    if f <= 0:
+        start = [0.0, 0.0, 0.0]
+        start[a] = p.start_mm
+        others = [i for i in range(3) if i != a]
+        for k, i in enumerate(others):
+            start[i] = p.center_mm[k]
+        return cylinder(a, start, length, r)
+    # Profile in the local XY plane: X along the rod axis, Y radial; revolved about X.
+    wp = cq.Workplane("XY").moveTo(0, 0)
+    if r - f > 1e-9:
+        wp = wp.lineTo(0, r - f)
+    wp = wp.radiusArc((f, r), -f)
+    if length - 2 * f > 1e-9:
+        wp = wp.lineTo(length - f, r)
+    wp = wp.radiusArc((length, r - f), -f)
+    if r - f > 1e-9:
+        wp = wp.lineTo(length, 0)
+    solid = wp.close().revolve(360, (0, 0, 0), (1, 0, 0)).val()
+    solid = checked(solid, part, "revolve rounded rod")
+    # Local X -> world axis a; then move to the start and the axis position.
+    if a == 1:
+        solid = solid.rotate(cq.Vector(0, 0, 0), cq.Vector(0, 0, 1), 90)
+    elif a == 2:
+        solid = solid.rotate(cq.Vector(0, 0, 0), cq.Vector(0, 1, 0), -90)
+    offset = [0.0, 0.0, 0.0]
+    offset[a] = p.start_mm
+    others = [i for i in range(3) if i != a]
+    for k, i in enumerate(others):
+        offset[i] = p.center_mm[k]
+    return solid.translate(cq.Vector(*offset))
+
+
+def build_primitive(p: Primitive, part: str) -> cq.Shape:
+    if isinstance(p, RoundedBox):
+        return _rounded_box(p, part)
+    if isinstance(p, RoundedRod):
+        return _rounded_rod(p, part)
+    raise GeometryError("build primitive", f"unknown primitive {type(p).__name__}", part)
+
+
+def fuse(shapes: Sequence[cq.Shape], part: str, step: str) -> cq.Shape:
+    """Fuse many solids in one boolean (one by one grows quadratically, kernel-notes)."""
+    if not shapes:
+        raise GeometryError(step, "nothing to fuse", part)
+    if len(shapes) == 1:
+        return checked(shapes[0], part, step)
+    try:
+        out = shapes[0].fuse(*shapes[1:])
+    except Exception as exc:  # OCCT raises bare Standard_Failure subclasses
+        raise GeometryError(step, f"fuse failed: {exc}", part) from exc
+    return checked(_clean(out), part, step)
+
+
+def cut(base: cq.Shape, tools: Sequence[cq.Shape], part: str, step: str,
+        solids: int | None = 1, volume_mm3: float | None = None) -> cq.Shape:
+    """Cut every tool from ``base`` in one boolean."""
+    if not tools:
+        return base
+    try:
+        raw = base.cut(*tools)
+    except Exception as exc:
+        raise GeometryError(step, f"cut failed: {exc}", part) from exc
+    return checked(_clean(raw), part, step, solids, volume_mm3)
+
+
+def _clean(raw: cq.Shape) -> cq.Shape:
+    """Unify same-domain faces, but keep the raw result when cleaning corrupts it (known
+    upstream failure mode, kernel-notes)."""
+    try:
+        cleaned = raw.clean()
+        if cleaned.isValid() and abs(cleaned.Volume() - raw.Volume()) <= 1e-7 * abs(raw.Volume()):
+            return cleaned
+    except Exception:
+        pass
+    return raw
+
+
+def split_at(shape: cq.Shape, axis: int, offset: float, part: str) -> tuple[cq.Shape, cq.Shape]:
+    """Split at the plane ``coord[axis] = offset``; return (below, above)."""
+    bb = shape.BoundingBox()
+    size = 4 * max(bb.xlen, bb.ylen, bb.zlen)
+    centre = [bb.center.x, bb.center.y, bb.center.z]
+    centre[axis] = offset
+    face = cq.Face.makePlane(size, size, cq.Vector(*centre), _DIRS[axis])
+    try:
+        pieces = solids_of(shape.split(face))
+    except Exception as exc:
+        raise GeometryError("split at parting plane", f"split failed: {exc}", part) from exc
+    if len(pieces) != 2:
+        raise GeometryError("split at parting plane",
+                            f"expected 2 solids, got {len(pieces)}", part)
+    pieces.sort(key=lambda s: [s.Center().x, s.Center().y, s.Center().z][axis])
+    below, above = (checked(p, part, "split at parting plane") for p in pieces)
+    total = below.Volume() + above.Volume()
+    if abs(total - shape.Volume()) > 1e-6 * shape.Volume():
+        raise GeometryError("split at parting plane",
+                            f"halves hold {total:.3f} mm3 of {shape.Volume():.3f} mm3", part)
+    return below, above
+
+
+def volume(shape: cq.Shape) -> float:
+    return float(shape.Volume())
+
+
+def deg(x: float) -> float:
+    return math.radians(x)

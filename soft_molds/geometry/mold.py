@@ -1,0 +1,142 @@
+"""Recipe -> BRep solids: cast part, removable core and the two shell parts.
+
+Pour orientation: the parting axis w points up; the lower shell pulls along -w, the
+upper shell along +w and carries the sprue and vents; the core pulls out along -x through
+the inlet socket. All lengths mm.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from typing import Protocol
+
+from ..errors import GeometryError
+from ..recipe.model import Recipe
+from . import kernel as k
+from .layout import Layout, plan_layout
+
+#: The cut tools for sprue and vents start this far inside the cavity so they always
+#: open into it (the overlap is cavity, already empty), mm.
+CAVITY_OVERLAP_MM = 0.3
+#: Wall left on each side of the core key pocket (mm), toward the cavity and outside.
+KEY_LAND_MM = 1.5
+
+
+@dataclass(frozen=True)
+class CastSolids:
+    body: k.Shape
+    void_set: k.Shape      # voids + inlet socket: the air inside the cast
+    core: k.Shape
+    cast: k.Shape
+    core_key_box: tuple[tuple[float, float, float], tuple[float, float, float]]
+
+
+class Opening(Protocol):
+    """A sprue or vent: where it meets the cavity (world mm) and its radius (the
+    analysis stage plans them; any object with these attributes will do)."""
+
+    kind: str
+    center_mm: tuple[float, float, float]
+    radius_mm: float
+
+
+@dataclass(frozen=True)
+class ShellSolids:
+    lower: k.Shape
+    upper: k.Shape
+    layout: Layout
+    peg_volume_mm3: float
+
+
+def frustum_volume(h: float, r1: float, r2: float) -> float:
+    return math.pi * h / 3.0 * (r1 * r1 + r1 * r2 + r2 * r2)
+
+
+def build_cast(r: Recipe) -> CastSolids:
+    body = k.fuse([k.build_primitive(p, "body") for p in r.body_primitives()], "body",
+                  "build body")
+    void_prims = [p for group in r.void_primitives() for p in group]
+    voids = k.fuse([k.build_primitive(p, "voids") for p in void_prims], "voids", "fuse voids")
+    socket = k.build_primitive(r.inlet.socket(), "voids")
+    void_set = k.fuse([voids, socket], "voids", "join voids to the inlet socket")
+
+    layout = plan_layout(r)
+    cy, cz = r.inlet.center_mm
+    rs = r.inlet.socket_diameter_mm / 2.0
+    # One cylinder is both the socket plug inside the body and the core print outside it.
+    x0 = layout.core_start_x
+    print_cyl = k.cylinder(0, (x0, cy, cz), r.inlet.socket_depth_mm - x0, rs)
+    wall_x = layout.block_lo[0]  # the block's outer -x face (negative)
+    key_len = min(6.0, -wall_x - 2 * KEY_LAND_MM)
+    if key_len < 2.0:
+        raise GeometryError("place core key", "the block wall at the inlet is too thin", "core")
+    kx0 = wall_x / 2.0 - key_len / 2.0
+    half = rs + 1.5
+    key_lo = (kx0, cy - half, cz - half)
+    key_hi = (kx0 + key_len, cy + half, cz + half)
+    key_box = k.box(key_lo, key_hi)
+    core = k.fuse([voids, print_cyl, key_box], "core", "build core")
+    cast = k.cut(body, [core], "cast", "cut voids from body",
+                 volume_mm3=body.Volume() - void_set.Volume())
+    return CastSolids(body, void_set, core, cast, (key_lo, key_hi))
+
+
+def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> ShellSolids:
+    lay = plan_layout(r)
+    f = lay.frame
+    m = r.mold
+    wa = f.w_axis
+    block = k.box(lay.block_lo, lay.block_hi)
+    c = m.clearance_mm
+    (klo, khi) = cs.core_key_box
+    pocket = k.box(tuple(a - c for a in klo), tuple(b + c for b in khi))
+    w_lo, w_hi = lay.block_lo[wa], lay.block_hi[wa]
+    tools = [cs.body, cs.core, pocket]
+    if m.clamp_hole_mm is not None:
+        for u, v in lay.bolts_uv:
+            tools.append(k.cylinder(wa, f.world(u, v, w_lo - 1.0), w_hi - w_lo + 2.0,
+                                    m.clamp_hole_mm / 2.0))
+    for (u, v, du, dv) in lay.notches:
+        lo = f.world(u - du / 2, v - dv / 2, lay.parting_w - 1.5)
+        hi = f.world(u + du / 2, v + dv / 2, lay.parting_w + 1.5)
+        tools.append(k.box(tuple(min(a, b) for a, b in zip(lo, hi)),
+                           tuple(max(a, b) for a, b in zip(lo, hi))))
+    shell = k.cut(block, tools, "shell", "cut cavity, core seat, clamp holes, pry notches")
+    lower, upper = k.split_at(shell, wa, lay.parting_w, "shell")
+
+    # Registration keys: drafted pegs on the lower part, sockets with clearance above.
+    rk, h = m.key_diameter_mm / 2.0, m.key_height_mm
+    rt = 0.7 * rk
+    pegs, sockets = [], []
+    for u, v in lay.keys_uv:
+        pegs.append(k.frustum(wa, f.world(u, v, lay.parting_w), h, rk, rt))
+        sockets.append(k.frustum(wa, f.world(u, v, lay.parting_w - 0.01), h + c + 0.01,
+                                 rk + c, rt + c))
+    peg_vol = sum(frustum_volume(h, rk, rt) for _ in pegs)
+    before = k.volume(lower)
+    lower = k.fuse([lower, *pegs], "shell-lower", "add registration keys")
+    k.checked(lower, "shell-lower", "add registration keys", volume_mm3=before + peg_vol)
+
+    up_tools = list(sockets)
+    top = w_hi
+    for op in openings:
+        p = list(op.center_mm)
+        start_w = p[wa] - CAVITY_OVERLAP_MM
+        u, v = p[0], p[f.v_axis]
+        if op.kind == "sprue":
+            depth = 0.6 * (top - p[wa])
+            cone_r = max(m.funnel_diameter_mm / 2.0, op.radius_mm + 0.5)
+            up_tools.append(k.frustum(wa, f.world(u, v, top + 0.1), depth + 0.1, cone_r,
+                                      op.radius_mm, sign=-1.0))
+            up_tools.append(k.cylinder(wa, f.world(u, v, start_w), top - start_w - depth + 0.2,
+                                       op.radius_mm))
+        else:
+            up_tools.append(k.cylinder(wa, f.world(u, v, start_w), top - start_w + 0.1,
+                                       op.radius_mm))
+    before = k.volume(upper)
+    upper = k.cut(upper, up_tools, "shell-upper", "cut key sockets, sprue and vents")
+    if not k.volume(upper) < before:
+        raise GeometryError("cut key sockets, sprue and vents", "nothing was removed",
+                            "shell-upper")
+    return ShellSolids(lower, upper, lay, peg_vol)

@@ -1,0 +1,215 @@
+"""The one place that runs the stages in order: recipe -> geometry -> analysis -> export.
+
+Stages never import each other backwards; this module hands each one the numbers the
+previous produced (for instance, the analysis stage plans the sprue and vents on the cast
+part's mesh, and the geometry stage then cuts them into the upper shell).
+"""
+
+from __future__ import annotations
+
+import os
+import time
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from .analysis.integrity import MeshReport, check_mesh, require_ok
+from .errors import GeometryError, SoftMoldsError
+from .meshdata import TriMesh
+from .recipe.model import Recipe
+from .version import __version__
+
+#: Part name -> (role, pull direction description). Directions are unit vectors in the
+#: world frame: the lower shell pulls along -w, the upper along +w, the core along -x.
+ROLES = ("shell", "core", "cast")
+
+
+@dataclass(frozen=True, eq=False)
+class Part:
+    """One solid of the mold set with its mesh and integrity report.
+
+    ``pull_dir`` is the unit vector (world frame) along which the part leaves the cast,
+    ``None`` for the cast itself. ``brep`` is the kernel's solid (opaque here).
+    """
+
+    name: str
+    role: str
+    brep: Any
+    mesh: TriMesh
+    brep_volume_mm3: float
+    pull_dir: tuple[float, float, float] | None
+    report: MeshReport
+
+    @property
+    def stl_name(self) -> str:
+        return f"{self.name}.stl"
+
+    @property
+    def step_name(self) -> str:
+        return f"{self.name}.step"
+
+
+@dataclass(frozen=True, eq=False)
+class MoldSet:
+    """Everything built from one recipe; :meth:`export` writes it."""
+
+    recipe: Recipe
+    parts: tuple[Part, ...]
+    openings: tuple[Any, ...]
+    layout: Any
+    void_volume_mm3: float
+    timings_s: dict[str, float] = field(default_factory=dict)
+
+    def part(self, name: str) -> Part:
+        for p in self.parts:
+            if p.name == name:
+                return p
+        raise KeyError(name)
+
+    @property
+    def silicone_volume_mm3(self) -> float:
+        return self.part("cast").brep_volume_mm3
+
+    def output_dir(self, root: str | os.PathLike) -> Path:
+        return Path(root) / self.recipe.name / self.recipe.label
+
+    def manifest(self) -> dict[str, Any]:
+        r = self.recipe
+        lay = self.layout
+        parts = []
+        for p in self.parts:
+            lo, hi = p.mesh.bbox_mm()
+            parts.append({
+                "name": p.name,
+                "role": p.role,
+                "file": p.stl_name,
+                "step": p.step_name,
+                "volume_mm3": round(p.brep_volume_mm3, 3),
+                "mesh_volume_mm3": round(p.report.volume_mm3, 3),
+                "bbox_mm": [[round(x, 4) for x in lo], [round(x, 4) for x in hi]],
+                "triangles": p.mesh.triangle_count,
+                "pull_dir": list(p.pull_dir) if p.pull_dir is not None else None,
+                "printable": p.role != "cast",
+                "watertight": p.report.watertight,
+            })
+        return {
+            "recipe": r.name,
+            "label": r.label,
+            "tool_version": __version__,
+            "units": "mm",
+            "params_sha256": r.params_sha256(),
+            "parts": parts,
+            "silicone_volume_mm3": round(self.silicone_volume_mm3, 3),
+            "void_volume_mm3": round(self.void_volume_mm3, 3),
+            "pour": {
+                "up": _up(r),
+                "openings": [{"kind": o.kind,
+                              "at_mm": [round(c, 4) for c in o.center_mm],
+                              "diameter_mm": round(2 * o.radius_mm, 4)} for o in self.openings],
+            },
+            "parting": {"axis": r.parting.axis, "offset_mm": r.parting.offset_mm},
+            "registration_keys_uv_mm": [[round(a, 4) for a in k] for k in lay.keys_uv],
+            "clamp": {"bolt": r.mold.clamp_bolt, "hole_diameter_mm": r.mold.clamp_hole_mm,
+                      "holes_uv_mm": [[round(a, 4) for a in b] for b in lay.bolts_uv]},
+            "params": r.params(),
+        }
+
+    def files(self) -> dict[str, bytes]:
+        """File name -> bytes of every output, manifest last."""
+        from .export.files import json_bytes
+        from .export.stl import encode_binary_stl
+        from .geometry.tessellate import step_bytes
+
+        out: dict[str, bytes] = {}
+        for p in self.parts:
+            out[p.stl_name] = encode_binary_stl(p.mesh, f"{self.recipe.name} {self.recipe.label} "
+                                                f"{p.name}")
+            out[p.step_name] = step_bytes(p.brep, f"{self.recipe.name}-{self.recipe.label}-{p.name}")
+        out["manifest.json"] = json_bytes(self.manifest())
+        return out
+
+    def export(self, root: str | os.PathLike = "out") -> list[Path]:
+        """Write every part (STL + STEP) and ``manifest.json`` under
+        ``root/<recipe>/<label>/``; each file appears complete or not at all."""
+        from .export.files import write_file_set
+
+        t = time.perf_counter()
+        files = self.files()
+        paths = write_file_set(self.output_dir(root), files, last="manifest.json")
+        self.timings_s["write"] = time.perf_counter() - t
+        return paths
+
+
+def _up(r: Recipe) -> list[float]:
+    return [0.0, 0.0, 1.0] if r.parting.axis == "z" else [0.0, 1.0, 0.0]
+
+
+@contextmanager
+def _stage(timings: dict[str, float], name: str, label: str) -> Iterator[None]:
+    t = time.perf_counter()
+    try:
+        yield
+    except GeometryError as exc:
+        raise exc.with_variant(label) from exc
+    except SoftMoldsError:
+        raise
+    except Exception as exc:  # a kernel exception with no useful type: name the step
+        raise GeometryError(name, f"{type(exc).__name__}: {exc}", variant=label) from exc
+    finally:
+        timings[name] = timings.get(name, 0.0) + time.perf_counter() - t
+
+
+def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> MoldSet:
+    """Build, tessellate and check every part of the mold set for ``recipe``.
+
+    Raises :class:`GeometryError` naming the variant and step when the kernel fails, and
+    :class:`MeshIntegrityError` when a part's mesh is not a closed, consistent volume within
+    0.5 % of its BRep volume.
+    """
+    from .analysis.highpoints import plan_openings
+    from .geometry import mold
+    from .geometry.tessellate import tessellate
+
+    say = progress or (lambda _msg: None)
+    timings: dict[str, float] = {}
+    label = recipe.label
+    chord, angle = recipe.mesh.chord_mm, recipe.mesh.angle_deg
+    up = tuple(_up(recipe))
+
+    say("body, voids and core")
+    with _stage(timings, "core", label):
+        cs = mold.build_cast(recipe)
+    with _stage(timings, "tessellate", label):
+        cast_mesh = tessellate(cs.cast, chord, angle, "cast")
+    say("sprue and vents")
+    with _stage(timings, "features", label):
+        openings = plan_openings(cast_mesh, up, recipe.mold.sprue_diameter_mm / 2.0,
+                                 recipe.mold.vent_diameter_mm / 2.0)
+    say("shell parts")
+    with _stage(timings, "shell", label):
+        shells = mold.build_shells(recipe, cs, openings)
+
+    w = 2 if recipe.parting.axis == "z" else 1
+    down = [0.0, 0.0, 0.0]
+    down[w] = -1.0
+    rise = [0.0, 0.0, 0.0]
+    rise[w] = 1.0
+    solids = (
+        ("shell-lower", "shell", shells.lower, tuple(down)),
+        ("shell-upper", "shell", shells.upper, tuple(rise)),
+        ("core", "core", cs.core, (-1.0, 0.0, 0.0)),
+        ("cast", "cast", cs.cast, None),
+    )
+    parts = []
+    say("tessellate and check")
+    for name, role, solid, pull in solids:
+        with _stage(timings, "tessellate", label):
+            mesh = cast_mesh if name == "cast" else tessellate(solid, chord, angle, name)
+            vol = float(solid.Volume())
+            report = check_mesh(mesh, name, vol)
+        require_ok(report, label)
+        parts.append(Part(name, role, solid, mesh, vol, pull, report))  # type: ignore[arg-type]
+    return MoldSet(recipe, tuple(parts), tuple(openings), shells.layout,
+                   float(cs.void_set.Volume()), timings)
