@@ -86,10 +86,10 @@ def _rounded_rod(p: RoundedRod, part: str) -> cq.Shape:
     wp = cq.Workplane("XY").moveTo(0, 0)
     if r - f > 1e-9:
         wp = wp.lineTo(0, r - f)
-    wp = wp.radiusArc((f, r), -f)
+    wp = wp.radiusArc((f, r), f)
     if length - 2 * f > 1e-9:
         wp = wp.lineTo(length - f, r)
-    wp = wp.radiusArc((length, r - f), -f)
+    wp = wp.radiusArc((length, r - f), f)
     if r - f > 1e-9:
         wp = wp.lineTo(length, 0)
     solid = wp.close().revolve(360, (0, 0, 0), (1, 0, 0)).val()

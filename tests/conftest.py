@@ -1,0 +1,55 @@
+"""Shared fixtures: each bundled recipe is built once per test session, because a build
+costs seconds of CAD kernel time and many tests look at the same parts."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parents[1]
+RECIPES = ROOT / "recipes"
+
+_cache: dict[str, object] = {}
+
+
+def recipe_path(name: str) -> Path:
+    return RECIPES / f"{name}.yaml"
+
+
+def built(name: str):
+    """The MoldSet of bundled recipe ``name`` (built on first use, then shared)."""
+    if name not in _cache:
+        from soft_molds import build, load_recipe
+
+        _cache[name] = build(load_recipe(recipe_path(name)))
+    return _cache[name]
+
+
+@pytest.fixture(scope="session")
+def finger():
+    return built("seedling-finger")
+
+
+@pytest.fixture(scope="session")
+def pusher():
+    return built("tray-pusher")
+
+
+@pytest.fixture(scope="session")
+def cushion():
+    return built("stem-cushion")
+
+
+@pytest.fixture(scope="session")
+def twister():
+    return built("wrist-twister")
+
+
+BUNDLED = sorted(p.stem for p in RECIPES.glob("*.yaml"))
+
+
+@pytest.fixture(scope="session")
+def bundled():
+    """Callable: bundled recipe name -> its shared MoldSet."""
+    return built
