@@ -4,16 +4,16 @@ Input is the *cast part* mesh: the silicone body including its internal voids (t
 core occupies), wound so that normals point out of the silicone. Frame: millimetres; ``up`` is
 the unit pour direction (default +z), heights are ``vertex · up``.
 
-Model. A facet whose outward normal points upward (``n·up > 0.1``) is a ceiling for the liquid
-beneath it; a facet with ``n·up > -0.1`` (ceilings and walls) is one a rising bubble can slide
-along. Facets facing down (floors, where silicone lies above) are not traversable: a bubble
-leaves the surface there and rises freely through the liquid. Air is trapped where the
-traversable surface offers no way up: a local maximum of height on the graph of traversable
-edges. Small bumps of the tessellation are ignored by 0-dimensional persistence (a maximum
-counts only if it stands at least ``persistence_mm`` above the saddle where its region joins a
-higher one), and a maximum counts only if the flat-ish region around it (its *plateau*, within
-``plateau_mm`` of the peak) touches a genuine ceiling, because the top rim of a wall with
-nothing over it (e.g. the upper edge of a core's side wall) lets the bubble go on rising.
+Model. A facet whose outward normal points upward (``n·up > 0``) is a ceiling for the liquid
+beneath it. A rising bubble slides along the surface, upward; where a ceiling turns into a
+wall and then a floor (the rim of a core, the top edge of a chamber) the bubble rounds the
+corner and goes on rising, so every facet is part of the path and air is trapped only at a
+local maximum of height on the surface graph. Small bumps of the tessellation are ignored by
+0-dimensional persistence (a maximum counts only if it stands at least ``persistence_mm``
+above the saddle where its region joins a higher one), and a maximum counts only if the
+region around it (its *plateau*, within ``plateau_mm`` of the peak) faces up on average
+(area-weighted), because the top of a core seen from the silicone is a floor: the bubble
+leaves it and rises on through the liquid.
 """
 
 from __future__ import annotations
@@ -25,11 +25,11 @@ import numpy as np
 
 from soft_molds.meshdata import TriMesh
 
-TRAVERSABLE_MIN_UP = -0.1
-"""Facets with ``n·up`` above this guide a rising bubble (ceilings and walls)."""
-
 CEILING_MIN_UP = 0.1
-"""Facets with ``n·up`` above this hold a bubble against them (ceilings)."""
+"""A plateau whose area-weighted mean normal has ``n·up`` above this holds a bubble."""
+
+MAX_EXTRA_VENTS = 12
+"""At most this many coverage vents on one flat high region."""
 
 SERVE_RADIAL_SLACK_MM = 0.05
 """Extra radius when deciding whether an opening reaches a plateau vertex (float noise)."""
@@ -56,6 +56,8 @@ class HighPoint:
     height_mm: float
     plateau_mm: np.ndarray = field(compare=False, repr=False)
     persistence_mm: float
+    plateau_triangles_mm: np.ndarray = field(compare=False, repr=False,
+                                             default_factory=lambda: np.empty((0, 3, 3)))
 
 
 @dataclass(frozen=True)
@@ -128,30 +130,74 @@ class _Surface:
     h: np.ndarray  # (n,) heights along up, mm, descending
     hi: np.ndarray  # (e,) rank of each edge's earlier (higher) endpoint
     lo: np.ndarray  # (e,) rank of each edge's entering (lower) endpoint; edges sorted by lo
-    ceiling: np.ndarray  # (n,) bool: the vertex is a corner of a ceiling facet
+    faces: np.ndarray  # (m, 3) facets in rank space
+    area_up: np.ndarray  # (m,) facet area times n·up, mm^2
+    area: np.ndarray  # (m,) facet area, mm^2
 
 
 def _surface(mesh: TriMesh, up: np.ndarray) -> _Surface:
     v, f = _weld(mesh)
     n = len(v)
-    nu = _face_up(v, f, up)
+    t = v[f]
+    cross = np.cross(t[:, 1] - t[:, 0], t[:, 2] - t[:, 0])
+    area = 0.5 * np.linalg.norm(cross, axis=1)
     h = v @ up
     # Descending height, ties by index: a total, reproducible order.
     order = np.lexsort((np.arange(n), -h))
     rank = np.empty(n, dtype=np.int64)
     rank[order] = np.arange(n)
 
-    fr = rank[f[nu > TRAVERSABLE_MIN_UP]]
+    fr = rank[f]
     e = fr[:, [0, 1, 1, 2, 2, 0]].reshape(-1, 2)
     hi = e.min(axis=1)
     lo = e.max(axis=1)
     # One sort of (lo, hi) keys both removes shared edges and orders edges by entering vertex.
     key = np.sort(lo[lo != hi] * np.int64(n) + hi[lo != hi])
     key = key[np.r_[True, key[1:] != key[:-1]]] if len(key) else key
+    return _Surface(pos=v[order], h=h[order], hi=key % n, lo=key // n, faces=fr,
+                    area_up=0.5 * (cross @ up), area=area)
 
-    ceiling = np.zeros(n, dtype=bool)
-    ceiling[rank[f[nu > CEILING_MIN_UP].ravel()]] = True
-    return _Surface(pos=v[order], h=h[order], hi=key % n, lo=key // n, ceiling=ceiling)
+
+def _plateau_facets(s: _Surface, ranks: np.ndarray) -> tuple[np.ndarray, bool]:
+    """Indices of facets with every corner on the plateau, and True; or, for a pointed peak
+    with no such facet, the facets around the peak vertex, and False."""
+    member = np.zeros(len(s.h), dtype=bool)
+    member[ranks] = True
+    inside = member[s.faces].all(axis=1)
+    if inside.any():
+        return np.flatnonzero(inside), True
+    return np.flatnonzero((s.faces == ranks[0]).any(axis=1)), False
+
+
+def _centre_on(s: _Surface, facets: np.ndarray, up: np.ndarray) -> np.ndarray | None:
+    """The plateau's area-weighted centroid moved along ``up`` onto the plateau facet whose
+    shadow contains it, or None when no facet lies under it (a ring-shaped plateau)."""
+    tri = s.pos[s.faces[facets]]
+    a = s.area[facets]
+    if a.sum() <= 0:
+        return None
+    c = (tri.mean(axis=1) * a[:, None]).sum(axis=0) / a.sum()
+    # 2-D barycentric test in the plane normal to up.
+    e1 = np.cross(up, [1.0, 0.0, 0.0])
+    if np.linalg.norm(e1) < 1e-6:
+        e1 = np.cross(up, [0.0, 1.0, 0.0])
+    e1 /= np.linalg.norm(e1)
+    e2 = np.cross(up, e1)
+    p2 = np.stack([tri @ e1, tri @ e2], axis=2)  # (k, 3, 2)
+    q = np.array([c @ e1, c @ e2])
+    v0, v1 = p2[:, 1] - p2[:, 0], p2[:, 2] - p2[:, 0]
+    w = q - p2[:, 0]
+    den = v0[:, 0] * v1[:, 1] - v0[:, 1] * v1[:, 0]
+    ok = np.abs(den) > 1e-12
+    safe = np.where(ok, den, 1.0)
+    b1 = (w[:, 0] * v1[:, 1] - w[:, 1] * v1[:, 0]) / safe
+    b2 = (v0[:, 0] * w[:, 1] - v0[:, 1] * w[:, 0]) / safe
+    hit = np.flatnonzero(ok & (b1 >= -1e-9) & (b2 >= -1e-9) & (b1 + b2 <= 1 + 1e-9))
+    if len(hit) == 0:
+        return None
+    k = int(hit[np.argmax((tri[hit].mean(axis=1)) @ up)])  # the highest facet above/below c
+    b1k, b2k = b1[k], b2[k]
+    return tri[k, 0] + b1k * (tri[k, 1] - tri[k, 0]) + b2k * (tri[k, 2] - tri[k, 0])
 
 
 def _persistence(s: _Surface) -> tuple[np.ndarray, np.ndarray]:
@@ -283,23 +329,94 @@ def find_high_points(
         if adj is None:
             adj = _Adjacency(s)
         ranks = _plateau(adj, peak, cut)
-        if not s.ceiling[ranks].any():
+        facets, flat = _plateau_facets(s, ranks)
+        if s.area_up[facets].sum() <= CEILING_MIN_UP * s.area[facets].sum():
             continue
         pts = s.pos[ranks]
-        centre = pts.mean(axis=0)
-        i = _pick(pts, np.linalg.norm(pts - centre, axis=1), largest=False)
+        # A plateau with area: its centroid, on its surface. A pointed peak: the peak itself.
+        centre = _centre_on(s, facets, u) if flat else s.pos[peak]
+        if centre is None:
+            i = _pick(pts, np.linalg.norm(pts - pts.mean(axis=0), axis=1), largest=False)
+            centre = pts[i]
+        elif flat:
+            # Summation order follows the input's vertex order; round off that float noise
+            # so the same part always gives the same position.
+            centre = np.round(centre, 6) + 0.0
+        tris = np.ascontiguousarray(s.pos[s.faces[facets]]) if flat else np.empty((0, 3, 3))
+        tris.flags.writeable = False
         plateau = np.ascontiguousarray(pts)
         plateau.flags.writeable = False
         found.append(
             HighPoint(
-                position_mm=(float(pts[i, 0]), float(pts[i, 1]), float(pts[i, 2])),
+                position_mm=(float(centre[0]), float(centre[1]), float(centre[2])),
                 height_mm=top,
                 plateau_mm=plateau,
                 persistence_mm=persistence,
+                plateau_triangles_mm=tris,
             )
         )
     found.sort(key=lambda hp: (-hp.height_mm, hp.position_mm))
     return tuple(found)
+
+
+def _reaching(
+    hp: HighPoint, centres: np.ndarray, radii: np.ndarray, u: np.ndarray, plateau_mm: float
+) -> np.ndarray:
+    """For each opening (centres (k, 3), radii (k,)), whether it reaches the plateau of ``hp``:
+    a plateau vertex within its radius of its axis, or its axis through a plateau facet;
+    either within the plateau's height band.
+
+    Openings outside the plateau's height band are dropped first (cheap), so a cavity with
+    hundreds of high points does not cost hundreds squared distance matrices.
+    """
+    pts = np.asarray(hp.plateau_mm, dtype=np.float64)
+    out = np.zeros(len(centres), dtype=bool)
+    if len(centres) == 0 or len(pts) == 0:
+        return out
+    band = plateau_mm + SERVE_HEIGHT_SLACK_MM
+    ph = pts @ u
+    ch = centres @ u
+    cand = np.flatnonzero((ch >= ph.min() - band) & (ch <= ph.max() + band))
+    # Chunks keep the (plateau x openings) matrices small on big plateaus.
+    step = max(1, 2_000_000 // (3 * len(pts)))
+    for s0 in range(0, len(cand), step):
+        j = cand[s0 : s0 + step]
+        d = pts[:, None, :] - centres[None, j, :]
+        along = d @ u
+        radial = np.linalg.norm(d - along[..., None] * u, axis=2)
+        near = (radial <= radii[j] + SERVE_RADIAL_SLACK_MM) & (np.abs(along) <= band)
+        out[j] = near.any(axis=0)
+    rest = cand[~out[cand]]
+    if len(rest) and len(hp.plateau_triangles_mm):
+        out[rest] = _in_shadow(hp.plateau_triangles_mm, centres[rest], u)
+    return out
+
+
+def _in_shadow(tris: np.ndarray, points: np.ndarray, u: np.ndarray) -> np.ndarray:
+    """Whether each point's projection along ``u`` falls inside one of ``tris`` (k, 3, 3)."""
+    e1 = np.cross(u, [1.0, 0.0, 0.0])
+    if np.linalg.norm(e1) < 1e-6:
+        e1 = np.cross(u, [0.0, 1.0, 0.0])
+    e1 /= np.linalg.norm(e1)
+    e2 = np.cross(u, e1)
+    a = np.stack([tris @ e1, tris @ e2], axis=2)  # (k, 3, 2)
+    v0, v1 = a[:, 1] - a[:, 0], a[:, 2] - a[:, 0]
+    den = v0[:, 0] * v1[:, 1] - v0[:, 1] * v1[:, 0]
+    ok = np.abs(den) > 1e-12
+    safe = np.where(ok, den, 1.0)
+    out = np.zeros(len(points), dtype=bool)
+    for i, p in enumerate(points):
+        w = np.array([p @ e1, p @ e2]) - a[:, 0]
+        b1 = (w[:, 0] * v1[:, 1] - w[:, 1] * v1[:, 0]) / safe
+        b2 = (v0[:, 0] * w[:, 1] - v0[:, 1] * w[:, 0]) / safe
+        out[i] = bool((ok & (b1 >= -1e-9) & (b2 >= -1e-9) & (b1 + b2 <= 1 + 1e-9)).any())
+    return out
+
+
+def _arrays(openings: Sequence[Opening]) -> tuple[np.ndarray, np.ndarray]:
+    centres = np.array([o.center_mm for o in openings], dtype=np.float64).reshape(-1, 3)
+    radii = np.array([o.radius_mm for o in openings], dtype=np.float64)
+    return centres, radii
 
 
 def serves(
@@ -309,17 +426,12 @@ def serves(
     """True when ``opening`` reaches the plateau of ``hp`` (mm, world frame).
 
     Some plateau vertex must lie within ``opening.radius_mm`` (+0.05 mm) of the opening's axis
-    (the line through its centre along ``up``) and within ``plateau_mm`` + 0.5 mm in height of
-    the opening's centre.
+    (the line through its centre along ``up``), or that axis must pass through a plateau
+    facet; and the opening's centre must lie within ``plateau_mm`` + 0.5 mm in height of the
+    plateau.
     """
-    u = _unit(up)
-    d = np.asarray(hp.plateau_mm, dtype=np.float64) - np.asarray(opening.center_mm)
-    along = d @ u
-    radial = np.linalg.norm(d - along[:, None] * u, axis=1)
-    near = (radial <= opening.radius_mm + SERVE_RADIAL_SLACK_MM) & (
-        np.abs(along) <= plateau_mm + SERVE_HEIGHT_SLACK_MM
-    )
-    return bool(near.any())
+    centres, radii = _arrays([opening])
+    return bool(_reaching(hp, centres, radii, _unit(up), plateau_mm)[0])
 
 
 def plan_openings(
@@ -334,10 +446,10 @@ def plan_openings(
     """Sprue and vents for the cavity of ``mesh`` (mm, world frame); sprue first.
 
     The sprue goes at the highest high point, a vent at every other high point no opening
-    serves yet, and then, filling at one end and venting at the other (common practice), one
-    more vent on every high point whose plateau reaches farther than ``far_vent_min_mm`` from
-    the nearest opening on it, at the plateau vertex farthest from those openings. Returns ()
-    when the cavity has no high point.
+    serves yet, and then, since a flat ceiling sends air to wherever the liquid arrives last
+    (common practice: vent the far end from the sprue), vents at the plateau vertices
+    farthest from every opening until no plateau vertex is farther than ``far_vent_min_mm``
+    from one (straight-line distances in mm; at most MAX_EXTRA_VENTS per high point). Returns () when the cavity has no high point.
     """
     for name, value in (("sprue_radius_mm", sprue_radius_mm), ("vent_radius_mm", vent_radius_mm)):
         if not (np.isfinite(value) and value > 0.0):
@@ -347,18 +459,36 @@ def plan_openings(
     if not hps:
         return ()
     openings = [Opening("sprue", hps[0].position_mm, float(sprue_radius_mm))]
+    # At most one vent per high point from the first pass and MAX_EXTRA_VENTS from the second:
+    # preallocate the arrays the reach tests run on instead of rebuilding them every time.
+    centres = np.empty(((MAX_EXTRA_VENTS + 1) * len(hps) + 1, 3))
+    radii = np.empty((MAX_EXTRA_VENTS + 1) * len(hps) + 1)
+    centres[0], radii[0] = hps[0].position_mm, sprue_radius_mm
+
+    def add(where: tuple[float, float, float]) -> None:
+        centres[len(openings)], radii[len(openings)] = where, vent_radius_mm
+        openings.append(Opening("vent", where, float(vent_radius_mm)))
+
     for hp in hps[1:]:
-        if not any(serves(o, hp, u, plateau_mm) for o in openings):
-            openings.append(Opening("vent", hp.position_mm, float(vent_radius_mm)))
+        k = len(openings)
+        if not _reaching(hp, centres[:k], radii[:k], u, plateau_mm).any():
+            add(hp.position_mm)
     for hp in hps:
-        on_it = [o for o in openings if serves(o, hp, u, plateau_mm)]
+        k = len(openings)
+        on_it = centres[:k][_reaching(hp, centres[:k], radii[:k], u, plateau_mm)]
+        if len(on_it) == 0:  # cannot happen (each high point got an opening above); be safe
+            continue
         pts = hp.plateau_mm
-        centres = np.array([o.center_mm for o in on_it], dtype=np.float64)
-        gap = np.linalg.norm(pts[:, None, :] - centres[None, :, :], axis=2).min(axis=1)
-        if gap.max() > far_vent_min_mm:
+        gap = np.linalg.norm(pts[:, None, :] - on_it[None, :, :], axis=2).min(axis=1)
+        # Farthest-point coverage: a flat ceiling pushes air to wherever the liquid front
+        # reaches last, so keep adding vents until no part of it is far from an opening.
+        for _ in range(MAX_EXTRA_VENTS):
+            if gap.max() <= far_vent_min_mm:
+                break
             i = _pick(pts, gap, largest=True)
             where = (float(pts[i, 0]), float(pts[i, 1]), float(pts[i, 2]))
-            openings.append(Opening("vent", where, float(vent_radius_mm)))
+            add(where)
+            gap = np.minimum(gap, np.linalg.norm(pts - pts[i], axis=1))
     return tuple(openings)
 
 
@@ -371,8 +501,9 @@ def unserved(
 ) -> tuple[HighPoint, ...]:
     """High points of ``mesh`` that none of ``openings`` serves (see :func:`serves`)."""
     u = _unit(up)
+    centres, radii = _arrays(list(openings))
     return tuple(
         hp
         for hp in find_high_points(mesh, u, persistence_mm, plateau_mm)
-        if not any(serves(o, hp, u, plateau_mm) for o in openings)
+        if not _reaching(hp, centres, radii, u, plateau_mm).any()
     )

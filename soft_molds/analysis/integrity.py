@@ -47,13 +47,14 @@ class _EdgeCounts:
     same_direction: int  # used twice in the same direction (a face flipped against its neighbour)
 
 
-def _edge_counts(faces: np.ndarray) -> _EdgeCounts:
+def _edge_counts(faces: np.ndarray, n_vertices: int) -> _EdgeCounts:
     if len(faces) == 0:
         return _EdgeCounts(0, 0, 0)
     directed = faces[:, [0, 1, 1, 2, 2, 0]].reshape(-1, 2)
-    undirected = np.sort(directed, axis=1)
-    _, counts = np.unique(undirected, axis=0, return_counts=True)
-    _, dcounts = np.unique(directed, axis=0, return_counts=True)
+    n = np.int64(max(n_vertices, 1))
+    # Integer keys: much faster than np.unique(axis=0) on row pairs.
+    _, counts = np.unique(directed.min(axis=1) * n + directed.max(axis=1), return_counts=True)
+    _, dcounts = np.unique(directed[:, 0] * n + directed[:, 1], return_counts=True)
     return _EdgeCounts(
         open=int((counts == 1).sum()),
         non_manifold=int((counts > 2).sum()),
@@ -114,7 +115,7 @@ def check_mesh(
     volume = float(tm.volume) if not nonfinite else float("nan")
     is_volume = bool(tm.is_volume) if not nonfinite else False
     bodies = _body_count(tm)
-    edges = _edge_counts(f)
+    edges = _edge_counts(f, len(v))
 
     if not watertight:
         parts = []
