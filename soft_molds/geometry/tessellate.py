@@ -118,5 +118,6 @@ def step_bytes(shape: Shape, name: str) -> bytes:
     out, n = _HEADER_RE.subn(header, data, count=1)
     if n != 1:
         raise GeometryError("write STEP", "unexpected STEP header", name)
-    # Product names inside the data section carry the kernel's default text.
-    return out.replace(b"'Open CASCADE STEP translator 7.9 1'", b"'" + safe.encode() + b"'")
+    # The kernel names each product after a per-process counter; name it after the part
+    # instead, so the bytes do not depend on what else the process has written.
+    return re.sub(rb"'Open CASCADE STEP translator[^']*'", b"'" + safe.encode() + b"'", out)
