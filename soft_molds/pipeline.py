@@ -178,9 +178,12 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     chord, angle = recipe.mesh.chord_mm, recipe.mesh.angle_deg
     up = tuple(_up(recipe))
 
-    say("body, voids and core")
+    say("body")
+    with _stage(timings, "body", label):
+        body = mold.build_body(recipe)
+    say("voids and core")
     with _stage(timings, "core", label):
-        cs = mold.build_cast(recipe)
+        cs = mold.build_cast(recipe, body)
     with _stage(timings, "tessellate", label):
         cast_mesh = tessellate(cs.cast, chord, angle, "cast")
     say("sprue and vents")
@@ -207,9 +210,9 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     for name, role, solid, pull in solids:
         with _stage(timings, "tessellate", label):
             mesh = cast_mesh if name == "cast" else tessellate(solid, chord, angle, name)
-            vol = float(solid.Volume())
+            vol = cs.volumes_mm3.get(name) or float(solid.Volume())
             report = check_mesh(mesh, name, vol)
         require_ok(report, label)
         parts.append(Part(name, role, solid, mesh, vol, pull, report))  # type: ignore[arg-type]
     return MoldSet(recipe, tuple(parts), tuple(openings), shells.layout,
-                   float(cs.void_set.Volume()), timings)
+                   cs.volumes_mm3["void_set"], timings)

@@ -7,6 +7,7 @@ step here checks validity, solid count and, where known, the volume (kernel-note
 
 from __future__ import annotations
 
+import functools
 import math
 from collections.abc import Sequence
 
@@ -24,18 +25,20 @@ def solids_of(shape: cq.Shape) -> list[cq.Solid]:
 
 
 def checked(shape: cq.Shape, part: str, step: str, solids: int | None = 1,
-            volume_mm3: float | None = None, rel_tol: float = 1e-6) -> cq.Shape:
-    """Return ``shape`` normalised to one Solid (when ``solids == 1``) after checking it."""
+            volume_mm3: float | None = None, rel_tol: float = 1e-6,
+            known_valid: bool = False, known_volume: float | None = None) -> cq.Shape:
+    """Return ``shape`` normalised to one Solid (when ``solids == 1``) after checking it:
+    valid, the expected number of solids, positive volume, and ``volume_mm3`` when given."""
     if shape is None or shape.isNull():
         raise GeometryError(step, "the kernel returned an empty shape", part)
-    if not shape.isValid():
+    if not known_valid and not shape.isValid():
         raise GeometryError(step, "the kernel returned an invalid solid", part)
     found = solids_of(shape)
     if solids is not None and len(found) != solids:
         raise GeometryError(step, f"expected {solids} solid(s), got {len(found)}", part)
     if solids == 1:
         shape = found[0]
-    vol = shape.Volume()
+    vol = shape.Volume() if known_volume is None else known_volume
     if vol <= 0:
         raise GeometryError(step, f"non-positive volume {vol:.6g} mm3", part)
     if volume_mm3 is not None and abs(vol - volume_mm3) > rel_tol * max(abs(volume_mm3), 1.0):
@@ -59,15 +62,24 @@ def frustum(axis: int, start: Sequence[float], height: float, r_base: float, r_t
     return cq.Solid.makeCone(r_base, r_top, height, cq.Vector(*start), d)
 
 
-def _rounded_box(p: RoundedBox, part: str) -> cq.Shape:
-    c = cq.Vector(*p.center_mm)
-    sx, sy, sz = p.size_mm
-    solid = cq.Solid.makeBox(sx, sy, sz, pnt=c - cq.Vector(sx / 2, sy / 2, sz / 2))
-    if p.radius_mm <= 0:
+@functools.lru_cache(maxsize=64)
+def _rounded_box_at_origin(size: tuple[float, float, float], radius: float) -> cq.Shape:
+    sx, sy, sz = size
+    solid = cq.Solid.makeBox(sx, sy, sz, pnt=cq.Vector(-sx / 2, -sy / 2, -sz / 2))
+    if radius <= 0:
         return solid
     # Fillet the primitive before any boolean: fillets on fused results fail (kernel-notes).
-    rounded = solid.fillet(p.radius_mm, solid.Edges())
-    return checked(rounded, part, "round box edges")
+    return checked(solid.fillet(radius, solid.Edges()), "primitive", "round box edges")
+
+
+def _rounded_box(p: RoundedBox, part: str) -> cq.Shape:
+    """Chambers of one row are equal: fillet one and place copies (the fillet is the costly
+    step, and copies of one checked solid need no new check)."""
+    try:
+        base = _rounded_box_at_origin(tuple(p.size_mm), p.radius_mm)
+    except GeometryError as exc:
+        raise GeometryError(exc.step, exc.detail, part) from exc
+    return base.translate(cq.Vector(*p.center_mm))
 
 
 def _rounded_rod(p: RoundedRod, part: str) -> cq.Shape:
@@ -125,7 +137,8 @@ def fuse(shapes: Sequence[cq.Shape], part: str, step: str) -> cq.Shape:
         out = shapes[0].fuse(*shapes[1:])
     except Exception as exc:  # OCCT raises bare Standard_Failure subclasses
         raise GeometryError(step, f"fuse failed: {exc}", part) from exc
-    return checked(_clean(out), part, step)
+    shape, valid, vol = _clean(out)
+    return checked(shape, part, step, known_valid=valid, known_volume=vol)
 
 
 def cut(base: cq.Shape, tools: Sequence[cq.Shape], part: str, step: str,
@@ -137,19 +150,25 @@ def cut(base: cq.Shape, tools: Sequence[cq.Shape], part: str, step: str,
         raw = base.cut(*tools)
     except Exception as exc:
         raise GeometryError(step, f"cut failed: {exc}", part) from exc
-    return checked(_clean(raw), part, step, solids, volume_mm3)
+    shape, valid, vol = _clean(raw)
+    return checked(shape, part, step, solids, volume_mm3, known_valid=valid, known_volume=vol)
 
 
-def _clean(raw: cq.Shape) -> cq.Shape:
+def _clean(raw: cq.Shape) -> tuple[cq.Shape, bool, float | None]:
     """Unify same-domain faces, but keep the raw result when cleaning corrupts it (known
-    upstream failure mode, kernel-notes)."""
+    upstream failure mode, kernel-notes). Returns the shape, whether it was found valid and,
+    when measured, its volume (mm3; volume integration is costly on filleted shapes)."""
     try:
         cleaned = raw.clean()
-        if cleaned.isValid() and abs(cleaned.Volume() - raw.Volume()) <= 1e-7 * abs(raw.Volume()):
-            return cleaned
     except Exception:
-        pass
-    return raw
+        return raw, False, None
+    if not cleaned.isValid():
+        return raw, False, None
+    raw_vol = raw.Volume()
+    vol = cleaned.Volume()
+    if abs(vol - raw_vol) <= 1e-7 * abs(raw_vol):
+        return cleaned, True, vol
+    return raw, False, raw_vol
 
 
 def split_at(shape: cq.Shape, axis: int, offset: float, part: str) -> tuple[cq.Shape, cq.Shape]:

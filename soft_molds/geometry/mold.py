@@ -30,6 +30,7 @@ class CastSolids:
     core: k.Shape
     cast: k.Shape
     core_key_box: tuple[tuple[float, float, float], tuple[float, float, float]]
+    volumes_mm3: dict[str, float]  # exact (BRep) volumes: body, void_set, core, cast
 
 
 class Opening(Protocol):
@@ -53,9 +54,15 @@ def frustum_volume(h: float, r1: float, r2: float) -> float:
     return math.pi * h / 3.0 * (r1 * r1 + r1 * r2 + r2 * r2)
 
 
-def build_cast(r: Recipe) -> CastSolids:
-    body = k.fuse([k.build_primitive(p, "body") for p in r.body_primitives()], "body",
+def build_body(r: Recipe) -> k.Shape:
+    return k.fuse([k.build_primitive(p, "body") for p in r.body_primitives()], "body",
                   "build body")
+
+
+def build_cast(r: Recipe, body: k.Shape | None = None) -> CastSolids:
+    """Void set, core and cast part (the body minus the core) for ``r``."""
+    if body is None:
+        body = build_body(r)
     void_prims = [p for group in r.void_primitives() for p in group]
     voids = k.fuse([k.build_primitive(p, "voids") for p in void_prims], "voids", "fuse voids")
     socket = k.build_primitive(r.inlet.socket(), "voids")
@@ -77,9 +84,11 @@ def build_cast(r: Recipe) -> CastSolids:
     key_hi = (kx0 + key_len, cy + half, cz + half)
     key_box = k.box(key_lo, key_hi)
     core = k.fuse([voids, print_cyl, key_box], "core", "build core")
+    vols = {"body": k.volume(body), "void_set": k.volume(void_set), "core": k.volume(core)}
     cast = k.cut(body, [core], "cast", "cut voids from body",
-                 volume_mm3=body.Volume() - void_set.Volume())
-    return CastSolids(body, void_set, core, cast, (key_lo, key_hi))
+                 volume_mm3=vols["body"] - vols["void_set"])
+    vols["cast"] = k.volume(cast)
+    return CastSolids(body, void_set, core, cast, (key_lo, key_hi), vols)
 
 
 def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> ShellSolids:

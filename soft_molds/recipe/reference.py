@@ -1,6 +1,7 @@
 """The recipe reference (every key, unit, default, allowed range) as Markdown, generated
 from the same field lists that validate recipes; README.md embeds it and a test keeps the
-two identical (``python -m soft_molds.recipe.reference`` prints it)."""
+two identical (``python -m soft_molds.recipe.reference`` prints it, ``--update README.md``
+rewrites the README's copy)."""
 
 from __future__ import annotations
 
@@ -43,5 +44,25 @@ def reference_markdown() -> str:
     return "\n".join(out).rstrip() + "\n"
 
 
+START = "<!-- recipe-reference:start (generated: python -m soft_molds.recipe.reference) -->"
+END = "<!-- recipe-reference:end -->"
+
+
+def splice(document: str) -> str:
+    """``document`` with the text between the reference markers replaced by the current
+    reference."""
+    head, rest = document.split(START, 1)
+    _, tail = rest.split(END, 1)
+    return f"{head}{START}\n\n{reference_markdown()}\n{END}{tail}"
+
+
 if __name__ == "__main__":
-    print(reference_markdown(), end="")
+    import sys
+
+    if sys.argv[1:2] == ["--update"]:
+        from pathlib import Path
+
+        path = Path(sys.argv[2] if len(sys.argv) > 2 else "README.md")
+        path.write_text(splice(path.read_text()))
+    else:
+        print(reference_markdown(), end="")

@@ -55,7 +55,7 @@ CHECKS_FIELDS: tuple[Field, ...] = (
 MESH_FIELDS: tuple[Field, ...] = (
     number("chord_mm", "largest facet-to-surface distance", 0.02, lo=0.002, hi=0.5,
            lo_open=False),
-    number("angle_deg", "largest angle between neighbouring facets on a curve", 6.0,
+    number("angle_deg", "largest angle between neighbouring facets on a curve", 12.0,
            unit="deg", lo=1.0, hi=30.0, lo_open=False),
 )
 

@@ -48,15 +48,25 @@ def test_no_two_parts_interpenetrate(name, bundled):
 
 @pytest.mark.parametrize("name", NAMES)
 def test_cast_surface_lies_on_mold_or_core_surfaces(name, bundled):
-    """Every sampled point of the silicone part's surface is within 0.05 mm of a shell or
-    core surface (trimesh proximity), except the small sprue and vent mouths."""
+    """Sampled points of the silicone part's surface lie within 0.05 mm of a shell or core
+    surface (trimesh proximity): at least 99.5 % of those away from the sprue and vent
+    mouths (open on purpose), which themselves take at most 2 % of the surface."""
     molds = bundled(name)
     cast = molds.part("cast").mesh.to_trimesh()
     tools = trimesh.util.concatenate([p.mesh.to_trimesh() for p in molds.parts
                                       if p.role != "cast"])
-    pts, _ = trimesh.sample.sample_surface_even(cast, 2000, seed=7)
+    pts, _ = trimesh.sample.sample_surface_even(cast, 3000, seed=7)
     _, dist, _ = trimesh.proximity.closest_point(tools, pts)
-    assert np.mean(dist <= 0.05) >= 0.99, np.mean(dist <= 0.05)
+    on = dist <= 0.05
+    w = molds.layout.frame.w_axis
+    mouth = np.zeros(len(pts), dtype=bool)
+    for o in molds.openings:
+        c = np.asarray(o.center_mm)
+        d = pts - c
+        radial = np.linalg.norm(np.delete(d, w, axis=1), axis=1)
+        mouth |= (radial <= o.radius_mm + 0.1) & (d[:, w] > -1.0)
+    assert np.mean(on[~mouth]) >= 0.995, np.mean(on[~mouth])
+    assert np.mean(mouth) <= 0.02
 
 
 def _rays_down(mesh, xy: np.ndarray, top: float, w: int) -> np.ndarray:
