@@ -45,6 +45,7 @@ class Layout:
     keys_uv: tuple[tuple[float, float], ...]
     notches: tuple[tuple[float, float, float, float], ...]  # (u, v, along-u size, along-v size)
     core_start_x: float  # outer end of the core print (x < 0)
+    core_key_box: tuple[tuple[float, float, float], tuple[float, float, float]]  # (lo, hi)
 
     @property
     def block_center_uv(self) -> tuple[float, float]:
@@ -86,7 +87,24 @@ def plan_layout(r: Recipe) -> Layout:
         (mid_last, hi[va], notch_len, 2 * 3.0),        # +v face, where no key sits
     )
     return Layout(frame, r.parting.offset_mm, tuple(lo), tuple(hi), body_lo, body_hi,  # type: ignore[arg-type]
-                  bolts, keys, notches, lo[0] - m.core_handle_mm)
+                  bolts, keys, notches, lo[0] - m.core_handle_mm, _core_key(r, lo[0]))
+
+
+#: Wall left on each side of the core key pocket (mm), toward the cavity and outside.
+KEY_LAND_MM = 1.5
+#: How far the square key stands out beyond the round print on each side (mm).
+KEY_SHOULDER_MM = 1.5
+
+
+def _core_key(r: Recipe, wall_x: float) -> tuple[tuple[float, float, float],
+                                                  tuple[float, float, float]]:
+    """The square key on the core print, centred in the block's inlet wall (x from
+    ``wall_x`` < 0 to 0): its flats stop the core turning, its shoulders stop it sliding."""
+    cy, cz = r.inlet.center_mm
+    key_len = min(6.0, -wall_x - 2 * KEY_LAND_MM)
+    x0 = wall_x / 2.0 - key_len / 2.0
+    half = r.inlet.socket_diameter_mm / 2.0 + KEY_SHOULDER_MM
+    return (x0, cy - half, cz - half), (x0 + key_len, cy + half, cz + half)
 
 
 def key_symmetry_clashes(keys_uv: tuple[tuple[float, float], ...],

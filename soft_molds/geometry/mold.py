@@ -19,8 +19,6 @@ from .layout import Layout, plan_layout
 #: The cut tools for sprue and vents start this far inside the cavity so they always
 #: open into it (the overlap is cavity, already empty), mm.
 CAVITY_OVERLAP_MM = 0.3
-#: Wall left on each side of the core key pocket (mm), toward the cavity and outside.
-KEY_LAND_MM = 1.5
 
 
 @dataclass(frozen=True)
@@ -29,7 +27,6 @@ class CastSolids:
     void_set: k.Shape      # voids + inlet socket: the air inside the cast
     core: k.Shape
     cast: k.Shape
-    core_key_box: tuple[tuple[float, float, float], tuple[float, float, float]]
     volumes_mm3: dict[str, float]  # exact (BRep) volumes: body, void_set, core, cast
 
 
@@ -74,21 +71,14 @@ def build_cast(r: Recipe, body: k.Shape | None = None) -> CastSolids:
     # One cylinder is both the socket plug inside the body and the core print outside it.
     x0 = layout.core_start_x
     print_cyl = k.cylinder(0, (x0, cy, cz), r.inlet.socket_depth_mm - x0, rs)
-    wall_x = layout.block_lo[0]  # the block's outer -x face (negative)
-    key_len = min(6.0, -wall_x - 2 * KEY_LAND_MM)
-    if key_len < 2.0:
-        raise GeometryError("place core key", "the block wall at the inlet is too thin", "core")
-    kx0 = wall_x / 2.0 - key_len / 2.0
-    half = rs + 1.5
-    key_lo = (kx0, cy - half, cz - half)
-    key_hi = (kx0 + key_len, cy + half, cz + half)
+    key_lo, key_hi = layout.core_key_box
     key_box = k.box(key_lo, key_hi)
     core = k.fuse([voids, print_cyl, key_box], "core", "build core")
     vols = {"body": k.volume(body), "void_set": k.volume(void_set), "core": k.volume(core)}
     cast = k.cut(body, [core], "cast", "cut voids from body",
                  volume_mm3=vols["body"] - vols["void_set"])
     vols["cast"] = k.volume(cast)
-    return CastSolids(body, void_set, core, cast, (key_lo, key_hi), vols)
+    return CastSolids(body, void_set, core, cast, vols)
 
 
 def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> ShellSolids:
@@ -98,7 +88,7 @@ def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> Sh
     wa = f.w_axis
     block = k.box(lay.block_lo, lay.block_hi)
     c = m.clearance_mm
-    (klo, khi) = cs.core_key_box
+    (klo, khi) = lay.core_key_box
     pocket = k.box(tuple(a - c for a in klo), tuple(b + c for b in khi))
     w_lo, w_hi = lay.block_lo[wa], lay.block_hi[wa]
     tools = [cs.body, cs.core, pocket]
