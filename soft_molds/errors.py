@@ -66,7 +66,8 @@ class GeometryError(SoftMoldsError):
     def _text(self) -> str:
         who = " ".join(x for x in (f"variant {self.variant}" if self.variant else "",
                                    f"part {self.part}" if self.part else "") if x)
-        return f"geometry failed{(' for ' + who) if who else ''} at step '{self.step}': {self.detail}"
+        lead = f"geometry failed for {who}" if who else "geometry failed"
+        return f"{lead} at step '{self.step}': {self.detail}"
 
     def with_variant(self, variant: str) -> GeometryError:
         return GeometryError(self.step, self.detail, self.part, variant)

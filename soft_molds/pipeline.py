@@ -126,7 +126,8 @@ class MoldSet:
         for p in self.parts:
             out[p.stl_name] = encode_binary_stl(p.mesh, f"{self.recipe.name} {self.recipe.label} "
                                                 f"{p.name}")
-            out[p.step_name] = step_bytes(p.brep, f"{self.recipe.name}-{self.recipe.label}-{p.name}")
+            tag = f"{self.recipe.name}-{self.recipe.label}-{p.name}"
+            out[p.step_name] = step_bytes(p.brep, tag)
         out["manifest.json"] = json_bytes(self.manifest())
         return out
 

@@ -449,7 +449,8 @@ def plan_openings(
     serves yet, and then, since a flat ceiling sends air to wherever the liquid arrives last
     (common practice: vent the far end from the sprue), vents at the plateau vertices
     farthest from every opening until no plateau vertex is farther than ``far_vent_min_mm``
-    from one (straight-line distances in mm; at most MAX_EXTRA_VENTS per high point). Returns () when the cavity has no high point.
+    from one (straight-line distances in mm; at most MAX_EXTRA_VENTS per high point).
+    Returns () when the cavity has no high point.
     """
     for name, value in (("sprue_radius_mm", sprue_radius_mm), ("vent_radius_mm", vent_radius_mm)):
         if not (np.isfinite(value) and value > 0.0):

@@ -48,7 +48,7 @@ def checked(shape: cq.Shape, part: str, step: str, solids: int | None = 1,
 
 def box(lo: Sequence[float], hi: Sequence[float]) -> cq.Solid:
     lo_v = cq.Vector(*lo)
-    size = [h - l for l, h in zip(lo, hi)]
+    size = [b - a for a, b in zip(lo, hi)]
     return cq.Solid.makeBox(size[0], size[1], size[2], pnt=lo_v)
 
 

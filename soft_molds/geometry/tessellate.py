@@ -84,7 +84,8 @@ def merge_vertices(v: np.ndarray, f: np.ndarray, tol: float = MERGE_MM) -> TriMe
             parent = parent[parent]
     used, inverse = np.unique(parent, return_inverse=True)
     faces = inverse[f]
-    keep = (faces[:, 0] != faces[:, 1]) & (faces[:, 1] != faces[:, 2]) & (faces[:, 0] != faces[:, 2])
+    a, b, c = faces[:, 0], faces[:, 1], faces[:, 2]
+    keep = (a != b) & (b != c) & (a != c)
     faces = faces[keep]
     # Zero-area slivers (three distinct collinear points) are left in on purpose: dropping
     # them would open the mesh; the integrity check reports what remains.

@@ -4,7 +4,6 @@ read the same meshes with their own code) and with closed-form geometry."""
 from __future__ import annotations
 
 import itertools
-import math
 
 import manifold3d as m3
 import numpy as np
