@@ -6,10 +6,16 @@ Public API::
     recipe = load_recipe("recipes/seedling-finger.yaml")
     molds = build(recipe)          # MoldSet: shells, core, cast preview, all checked
     molds.export("out")            # out/<recipe>/<label>/*.stl, *.step, manifest.json
+
+``build``, ``MoldSet`` and ``Part`` load the mesh and CAD libraries on first use, so a bad
+recipe is reported without paying for them.
 """
 
+from __future__ import annotations
+
+from typing import Any
+
 from .errors import GeometryError, MeshIntegrityError, RecipeError, SoftMoldsError
-from .pipeline import MoldSet, Part, build
 from .recipe import Recipe, load_recipe
 from .version import __version__
 
@@ -17,3 +23,13 @@ __all__ = [
     "GeometryError", "MeshIntegrityError", "MoldSet", "Part", "Recipe", "RecipeError",
     "SoftMoldsError", "__version__", "build", "load_recipe",
 ]
+
+_LAZY = {"build", "MoldSet", "Part"}
+
+
+def __getattr__(name: str) -> Any:
+    if name in _LAZY:
+        from . import pipeline
+
+        return getattr(pipeline, name)
+    raise AttributeError(f"module 'soft_molds' has no attribute {name!r}")

@@ -26,7 +26,7 @@ CAUTIONS = (
 
 def _fmt_part(p) -> str:
     lo, hi = p.mesh.bbox_mm()
-    size = " x ".join(f"{h - l:.1f}" for l, h in zip(lo, hi))
+    size = " x ".join(f"{h - a:.1f}" for a, h in zip(lo, hi))
     pull = "-" if p.pull_dir is None else _axis_name(p.pull_dir)
     verdict = "ok" if p.report.ok else "FAILED"
     return (f"  {p.name:<12} {p.role:<5} {p.brep_volume_mm3:>11.1f} mm3 {p.mesh.triangle_count:>8} "

@@ -77,7 +77,8 @@ def number(name: str, doc: str, default: object = REQUIRED, *, unit: str = "mm",
     return Field(name, "number", doc, default, unit, lo, hi, lo_open)
 
 
-def integer(name: str, doc: str, default: object = REQUIRED, *, lo: int = 1, hi: int = 1000) -> Field:
+def integer(name: str, doc: str, default: object = REQUIRED, *, lo: int = 1,
+            hi: int = 1000) -> Field:
     return Field(name, "integer", doc, default, "", lo, hi, False)
 
 
@@ -191,7 +192,11 @@ class MapReader:
         return int(checked) if f.kind == "integer" else float(checked)
 
     def _check_number(self, f: Field, path: str, line: int | None, v: object) -> float | None:
-        x = float(v)  # type: ignore[arg-type]
+        try:
+            x = float(v)  # type: ignore[arg-type]
+        except OverflowError:  # a YAML int of hundreds of digits: beyond any float
+            self.problem(path, "is out of range", line, v, f.allowed())
+            return None
         if not math.isfinite(x):
             self.problem(path, "must be a finite number", line, v, f.allowed())
             return None
@@ -200,7 +205,8 @@ class MapReader:
         if low_bad or high_bad:
             self.problem(path, "is out of range", line, v, f.allowed())
             return None
-        return x
+        # -0.0 + 0.0 is +0.0 (IEEE 754): "-0.0" and "0" then hash alike in params_sha256.
+        return x + 0.0
 
     def take_all(self, fields: Iterable[Field]) -> dict[str, object]:
         return {f.name: self.take(f) for f in fields}

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import os
 import re
+from dataclasses import replace
 from pathlib import Path
 
 from ..errors import Problem, RecipeError
@@ -60,7 +61,13 @@ def _read_kind(node: Node | None, path: str, registry: dict, problems: list[Prob
         return None
     extra = cls.cross_check(values, path, r.line)
     if extra:
-        problems.extend(extra)
+        # A kind's cross-check only knows the block's line; point at the field's own key
+        # when the recipe wrote it (a default keeps the block's line).
+        prefix = path + "."
+        problems.extend(
+            replace(p, line=r.line_of(p.path[len(prefix):]))
+            if p.path.startswith(prefix) and p.path[len(prefix):] in r.items else p
+            for p in extra)
         return None
     return cls(**values)
 

@@ -92,13 +92,18 @@ Primitive = RoundedBox | RoundedRod
 
 def union_sdf(prims: tuple[Primitive, ...], p: np.ndarray) -> np.ndarray:
     """Signed distance bound of a union (exact outside, a bound inside; min of members)."""
-    return np.min(np.stack([q.sdf(p) for q in prims]), axis=0)
+    # Running minimum, not a stacked array: a row of 200 chambers must not hold
+    # 200 distance arrays at once.
+    out = prims[0].sdf(p)
+    for q in prims[1:]:
+        np.minimum(out, q.sdf(p), out=out)
+    return out
 
 
 def _box_shell_grid(lo: np.ndarray, hi: np.ndarray, spacing: float) -> np.ndarray:
     """Grid points on the six faces of a box: starting points for projection."""
-    counts = [max(2, int(np.ceil((h - l) / spacing)) + 1) for l, h in zip(lo, hi)]
-    axes = [np.linspace(l, h, n) for l, h, n in zip(lo, hi, counts)]
+    counts = [max(2, int(np.ceil((h - a) / spacing)) + 1) for a, h in zip(lo, hi)]
+    axes = [np.linspace(a, h, n) for a, h, n in zip(lo, hi, counts)]
     pts = []
     for a in range(3):
         b, c = [i for i in range(3) if i != a]

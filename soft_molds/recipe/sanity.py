@@ -9,13 +9,29 @@ import numpy as np
 
 from ..errors import Problem
 from .model import Recipe
-from .primitives import union_sdf
+from .primitives import Primitive, union_sdf
 
 #: Sample spacing on void surfaces (mm). Walls here are planes, cylinders and fillets,
 #: whose distance to the body varies smoothly, so 0.5 mm resolves a 0.05 mm reporting step
 #: well enough for a go/no-go before the kernel runs.
 SAMPLE_MM = 0.5
+#: Sample budget per void entry: fields allow parts up to 1000 mm, and a 1000 mm bore at
+#: 0.5 mm spacing would need ~24 million samples (gigabytes). Voids whose bounding shells
+#: exceed ~25 000 mm2 are sampled more coarsely instead; flat and cylindrical walls still
+#: give their exact distance.
+MAX_SAMPLES = 100_000
 EPS = 1e-6
+
+
+def _spacing(prims: tuple[Primitive, ...]) -> float:
+    """Sample spacing (mm) for a set of primitives: SAMPLE_MM, or coarser so that their
+    bounding-box shells hold about MAX_SAMPLES grid points."""
+    area = 0.0
+    for p in prims:
+        lo, hi = p.bounds()
+        a, b, c = np.maximum(hi - lo, SAMPLE_MM)
+        area += 2.0 * (a * b + b * c + a * c)
+    return max(SAMPLE_MM, float(np.sqrt(area / MAX_SAMPLES)))
 
 
 def _fmt_point(p: np.ndarray) -> str:
@@ -48,7 +64,7 @@ def sanity_problems(r: Recipe, lines: dict[str, int]) -> list[Problem]:
                            "a point of the x = 0 face at least socket radius + min wall from "
                            "its rim"))
 
-    sock_samples = socket.surface_samples(SAMPLE_MM)
+    sock_samples = socket.surface_samples(_spacing((socket,)))
     # The mouth is meant to be open, and the rim check above already bounds the wall
     # around the socket's side (the body only widens away from x = 0); what is left to
     # check is the socket's floor.
@@ -57,7 +73,8 @@ def sanity_problems(r: Recipe, lines: dict[str, int]) -> list[Problem]:
 
     for i, (void, prims) in enumerate(zip(r.voids, r.void_primitives())):
         path = f"voids[{i}]"
-        samples = np.concatenate([p.surface_samples(SAMPLE_MM) for p in prims])
+        spacing = _spacing(prims)
+        samples = np.concatenate([p.surface_samples(spacing) for p in prims])
         # Surface inside another primitive of the same void, or inside the socket, is not
         # a cast surface; keep only points on the void set's own boundary.
         inside_self = union_sdf(prims, samples) < -EPS

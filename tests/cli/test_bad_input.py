@@ -1,0 +1,432 @@
+"""Bad input at the command line: exit status 2, one located line per problem, no
+traceback, nothing written, and no CAD kernel loaded.
+
+Outside references: the YAML 1.1 spec and type repository (yaml.org/spec/1.1,
+yaml.org/type/*.html) for what the text means, elementary geometry for the walls, and the
+"billion laughs" expansion attack (a well-known pattern; common practice to refuse it).
+Line numbers are those of the documents written here, known by construction.
+"""
+
+from __future__ import annotations
+
+import os
+import subprocess
+import sys
+import time
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import pytest
+
+from soft_molds.cli import main
+
+ROOT = Path(__file__).resolve().parents[2]
+GOOD = ROOT / "recipes" / "seedling-finger.yaml"
+
+# Demo recipe from our own scenario: one finger of a greenhouse co-op's seedling gripper.
+# Bar x in [0, 70], y in [-8, 8], z in [-7, 7]; chambers 12 (y) by 8 (z) on the axis.
+BASE = """\
+# one finger of the co-op's seedling gripper, platinum-cure silicone, Shore A10
+name: finger-test
+body:
+  kind: bar
+  length_mm: 70
+  width_mm: 16
+  height_mm: 14
+  edge_radius_mm: 2
+voids:
+  - kind: chambers
+    count: 3
+    pitch_mm: 8
+    depth_mm: 5
+    width_mm: 12
+    height_mm: 8
+    corner_radius_mm: 1
+    center_mm: [0, 0]
+    feed_diameter_mm: 2
+inlet:
+  socket_diameter_mm: 4
+  socket_depth_mm: 6
+parting:
+  axis: z
+  offset_mm: 0
+mold:
+  wall_mm: 5
+  clamp_bolt: M4
+checks:
+  min_wall_mm: 1.0
+"""
+
+# "Billion laughs": nine levels of nine-fold aliases would expand to 9**9 strings.
+BOMB = """\
+a: &a ["lol", "lol", "lol", "lol", "lol", "lol", "lol", "lol", "lol"]
+b: &b [*a, *a, *a, *a, *a, *a, *a, *a, *a]
+c: &c [*b, *b, *b, *b, *b, *b, *b, *b, *b]
+d: &d [*c, *c, *c, *c, *c, *c, *c, *c, *c]
+e: &e [*d, *d, *d, *d, *d, *d, *d, *d, *d]
+f: &f [*e, *e, *e, *e, *e, *e, *e, *e, *e]
+g: &g [*f, *f, *f, *f, *f, *f, *f, *f, *f]
+h: &h [*g, *g, *g, *g, *g, *g, *g, *g, *g]
+i: &i [*h, *h, *h, *h, *h, *h, *h, *h, *h]
+"""
+# Values counted while expanding: a 10, b 91, c 820, d 7381 (each 1 + 9 x the previous);
+# then e's list (1) and e[0] (7381) reach 15 685 (with the top mapping), and e[1] would
+# pass the 20 000 limit, so the refusal points at e[1] on e's line.
+
+
+def edit(text: str, old: str, new: str) -> str:
+    assert text.count(old) == 1, f"{old!r} occurs {text.count(old)} times"
+    return text.replace(old, new)
+
+
+def line_of(text: str, needle: str) -> int:
+    hits = [i for i, ln in enumerate(text.splitlines(), 1) if needle in ln]
+    assert len(hits) == 1, f"{needle!r} on lines {hits}"
+    return hits[0]
+
+
+@dataclass(frozen=True)
+class Expect:
+    """One stderr line: ``error: FILE[:LINE]:[ PATH:] MESSAGE... [(got GOT)][; allowed: ...]``.
+    ``path`` "" is a problem of the document itself; ``line`` None where no line exists
+    (no file, or nothing in it)."""
+
+    path: str
+    line: int | None
+    message: str
+    got: str | None = None
+    allowed: str | None = None
+
+
+@dataclass(frozen=True)
+class Case:
+    name: str
+    text: str | bytes | None  # None: no file at that path
+    expect: tuple[Expect, ...] = field(default_factory=tuple)
+
+
+def _case(name: str, text: str | bytes | None, *expect: Expect) -> Case:
+    return Case(name, text, tuple(expect))
+
+
+NUMBER = "a number, 0 < value <= 1000 mm"
+
+_syntax = edit(BASE, "  length_mm: 70", "  length_mm: 70: 5")
+_dup = edit(BASE, "  width_mm: 16", "  width_mm: 16\n  width_mm: 17")
+_unknown = edit(BASE, "  wall_mm: 5", "  wal_mm: 5")
+_text = edit(BASE, "  length_mm: 70", "  length_mm: seventy")
+_neg = edit(BASE, "  length_mm: 70", "  length_mm: -70")
+_zero = edit(BASE, "  height_mm: 14", "  height_mm: 0")
+_through = edit(BASE, "    height_mm: 8", "    height_mm: 15")
+_thin = edit(edit(BASE, "    width_mm: 12", "    width_mm: 14.04"), "    height_mm: 8",
+             "    height_mm: 6")
+_body_kind = edit(BASE, "  kind: bar", "  kind: bars")
+_void_kind = edit(BASE, "  - kind: chambers", "  - kind: chamber")
+_far_inlet = edit(BASE, "  socket_depth_mm: 6", "  socket_depth_mm: 6\n  center_mm: [0, 30]")
+_rim = """\
+# the co-op gripper's stem pad: a flat bar with one bore
+name: pad-test
+body: {kind: bar, length_mm: 40, width_mm: 24, height_mm: 12, edge_radius_mm: 2}
+voids:
+  - {kind: bore, diameter_mm: 2, length_mm: 30, center_mm: [0, 1.5]}
+inlet:
+  socket_diameter_mm: 4
+  center_mm: [0, 1.5]
+parting: {axis: y, offset_mm: 0}
+"""
+_absurd = edit(BASE, "  length_mm: 70", "  length_mm: 1000000000.0")
+_huge_int = edit(BASE, "  length_mm: 70", "  length_mm: 1" + "0" * 400)
+_yes = edit(BASE, "  length_mm: 70", "  length_mm: yes")
+_nan = edit(BASE, "  length_mm: 70", "  length_mm: .nan")
+_list = edit(BASE, "mold:\n  wall_mm: 5\n  clamp_bolt: M4\n", "mold: [5, M4]\n")
+_many = edit(BASE, "count: 3", "count: 12")
+_missing_field = edit(BASE, "  width_mm: 16\n", "")
+_bolt = edit(BASE, "clamp_bolt: M4", "clamp_bolt: M6")
+_tag = edit(BASE, "  kind: bar", "  kind: !!python/object/apply:os.system ['touch pwned']")
+_three = edit(edit(_text, "  - kind: chambers", "  - kind: chamber"), "  wall_mm: 5",
+              "  wal_mm: 5")
+_seventeen = edit(BASE, BASE[BASE.index("voids:"):BASE.index("inlet:")],
+                  "voids:\n" + "  - {kind: bore, diameter_mm: 2, length_mm: 30}\n" * 17)
+
+CASES = [
+    # YAML 1.1 spec: a plain scalar may not contain ": " in block context.
+    _case("yaml-syntax-error", _syntax,
+          Expect("", line_of(_syntax, "70: 5"),
+                 "YAML syntax error: mapping values are not allowed here (column 16)")),
+    _case("empty-file", "", Expect("", None, "recipe is empty")),
+    _case("comments-only", "# a recipe for the co-op, to be written\n\n",
+          Expect("", None, "recipe is empty")),
+    _case("top-level-is-a-list", "- kind: bar\n- kind: rod\n",
+          Expect("", 1, "must be a mapping (the recipe's top level)",
+                 got="[{'kind': 'bar'}, {'kind': 'rod'}]")),
+    # YAML 1.1 spec: mapping keys are unique.
+    _case("duplicate-key", _dup,
+          Expect("body.width_mm", line_of(_dup, "width_mm: 17"),
+                 f"duplicate key 'width_mm' (first at line {line_of(_dup, 'width_mm: 16')})")),
+    _case("unknown-key-with-suggestion", _unknown,
+          Expect("mold.wal_mm", line_of(_unknown, "wal_mm"),
+                 "is not a known key (did you mean 'wall_mm'?)", allowed="wall_mm")),
+    _case("text-where-a-number-belongs", _text,
+          Expect("body.length_mm", line_of(_text, "seventy"), "must be a number",
+                 got="'seventy'", allowed=NUMBER)),
+    _case("negative-size", _neg,
+          Expect("body.length_mm", line_of(_neg, "-70"), "is out of range", got="-70",
+                 allowed=NUMBER)),
+    _case("zero-size", _zero,
+          Expect("body.height_mm", line_of(_zero, "height_mm: 0"), "is out of range", got="0",
+                 allowed=NUMBER)),
+    # elementary geometry: chambers 15 high in a 14 high bar stick out 0.5 mm each side.
+    _case("void-breaks-through-the-body", _through,
+          Expect("voids[0]", line_of(_through, "- kind"), "breaks through the body surface",
+                 allowed="voids entirely inside the body")),
+    # elementary geometry: (16 - 14.04)/2 = 0.98 mm < checks.min_wall_mm = 1.0 mm.
+    _case("wall-below-minimum", _thin,
+          Expect("voids[0]", line_of(_thin, "- kind"), "leaves a silicone wall of 0.98 mm",
+                 allowed="at least checks.min_wall_mm = 1 mm")),
+    _case("unknown-body-kind", _body_kind,
+          Expect("body.kind", line_of(_body_kind, "kind: bars"),
+                 "is not a known body kind (did you mean 'bar'?)", got="'bars'",
+                 allowed="bar, rod")),
+    _case("unknown-void-kind", _void_kind,
+          Expect("voids[0].kind", line_of(_void_kind, "kind: chamber"),
+                 "is not a known void kind (did you mean 'chambers'?)", got="'chamber'",
+                 allowed="bore, chambers")),
+    # Socket 23 mm above the bar's top face: the socket, the chambers' bare mouth on the
+    # inlet face, the lost connection and the parting plane are each wrong.
+    _case("inlet-off-the-surface", _far_inlet,
+          Expect("inlet.center_mm", line_of(_far_inlet, "center_mm: [0, 30]"),
+                 "puts the socket off the flat inlet face (x = 0)", got="[0.0, 30.0]"),
+          Expect("inlet", line_of(_far_inlet, "inlet:"), "breaks through the body surface"),
+          Expect("voids[0]", line_of(_far_inlet, "- kind"),
+                 "breaks through the body surface at (0.00,"),
+          Expect("voids[0]", line_of(_far_inlet, "- kind"),
+                 "is not reached from the inlet socket"),
+          Expect("parting.offset_mm", line_of(_far_inlet, "offset_mm"),
+                 "does not pass through the inlet socket axis", got="0.0",
+                 allowed="30 mm (the socket centre's z)")),
+    # elementary geometry: flat face half-height 12/2 - 2 = 4 mm; 1.5 + 2 + 1 = 4.5 > 4.
+    _case("inlet-rim-leaves-the-flat-face", _rim,
+          Expect("inlet.center_mm", line_of(_rim, "  center_mm"),
+                 "puts the socket off the flat inlet face", got="[0.0, 1.5]")),
+    _case("alias-bomb", BOMB,
+          Expect("e[1]", line_of(BOMB, "e: &e"), "anchors/aliases expand beyond 20000 nodes")),
+    _case("absurd-size", _absurd,
+          Expect("body.length_mm", line_of(_absurd, "1000000000.0"), "is out of range",
+                 got="1000000000.0", allowed=NUMBER)),
+    _case("integer-beyond-any-float", _huge_int,
+          Expect("body.length_mm", line_of(_huge_int, "length_mm: 1000"), "is out of range",
+                 got="1" + "0" * 400, allowed=NUMBER)),
+    _case("missing-file", None, Expect("", None, "recipe file not found")),
+    # YAML 1.1 bool (yaml.org/type/bool.html): yes is true, not a number.
+    _case("yes-where-a-number-belongs", _yes,
+          Expect("body.length_mm", line_of(_yes, "yes"), "must be a number", got="True",
+                 allowed=NUMBER)),
+    # YAML 1.1 float (yaml.org/type/float.html): .nan is not-a-number.
+    _case("nan", _nan,
+          Expect("body.length_mm", line_of(_nan, ".nan"), "must be a finite number",
+                 got="nan", allowed=NUMBER)),
+    _case("list-where-a-mapping-belongs", _list,
+          Expect("mold", line_of(_list, "mold:"), "must be a mapping of settings",
+                 got="[5, 'M4']")),
+    # elementary geometry: 12 chambers span 11 x 8 + 5 = 93 mm > 70 mm; centred, the row
+    # starts at x = (70 - 93)/2 = -11.5.
+    _case("too-many-chambers-for-the-body", _many,
+          Expect("voids[0]", line_of(_many, "- kind"),
+                 "breaks through the body surface at (-11.50,")),
+    _case("too-many-void-entries", _seventeen,
+          Expect("voids", line_of(_seventeen, "voids:"), "has too many entries", got="17",
+                 allowed="at most 16")),
+    _case("missing-required-field", _missing_field,
+          Expect("body.width_mm", line_of(_missing_field, "body:"), "is required",
+                 allowed=NUMBER)),
+    _case("unknown-choice", _bolt,
+          Expect("mold.clamp_bolt", line_of(_bolt, "M6"), "is not a known value", got="'M6'",
+                 allowed="one of M3, M4, M5, none")),
+    # YAML 1.1 spec: !!python/... is a language-specific tag a safe loader must refuse.
+    _case("python-tag-is-never-run", _tag,
+          Expect("body.kind", line_of(_tag, "!!python"),
+                 "tag '!!python/object/apply:os.system' is not allowed")),
+    _case("not-utf8", b"name: finger\nbody: \xff\n",
+          Expect("", 2, "recipe file is not valid UTF-8: byte 0xff at offset 19",
+                 allowed="UTF-8 text")),
+    _case("three-mistakes-at-once", _three,
+          Expect("body.length_mm", line_of(_three, "seventy"), "must be a number"),
+          Expect("voids[0].kind", line_of(_three, "kind: chamber"), "is not a known void kind"),
+          Expect("mold.wal_mm", line_of(_three, "wal_mm"), "is not a known key")),
+]
+
+
+def write_case(case: Case, directory: Path, name: str = "recipe.yaml") -> Path:
+    path = directory / name
+    if isinstance(case.text, bytes):
+        path.write_bytes(case.text)
+    elif case.text is not None:
+        path.write_text(case.text, encoding="utf-8")
+    return path
+
+
+def assert_reported(stderr: str, label: str, expect: tuple[Expect, ...]) -> None:
+    assert "Traceback" not in stderr
+    lines = stderr.splitlines()
+    assert len(lines) == len(expect), stderr
+    for text, e in zip(lines, expect):
+        where = f"{label}:{e.line}:" if e.line is not None else f"{label}:"
+        prefix = f"error: {where}" + (f" {e.path}:" if e.path else "") + " "
+        assert text.startswith(prefix), (text, prefix)
+        body = text[len(prefix):]
+        assert body.startswith(e.message), (body, e.message)
+        if e.got is not None:
+            assert f"(got {e.got})" in body, body
+        if e.allowed is not None:
+            assert "; allowed: " in body, body
+            assert e.allowed in body.split("; allowed: ", 1)[1], body
+
+
+def test_at_least_fifteen_distinct_bad_inputs_are_covered():
+    assert len({c.name for c in CASES}) == len(CASES) >= 15
+
+
+@pytest.mark.parametrize("case", CASES, ids=[c.name for c in CASES])
+def test_bad_recipe_exits_2_with_one_located_line_per_problem_and_writes_nothing(
+        case, tmp_path, capsys, monkeypatch):
+    monkeypatch.chdir(tmp_path)  # anything written relative to the cwd would show here
+    path = write_case(case, tmp_path)
+    out = tmp_path / "out"
+    t = time.perf_counter()
+    status = main(["build", str(path), "--out", str(out)])
+    elapsed = time.perf_counter() - t
+    cap = capsys.readouterr()
+    assert status == 2
+    assert cap.out == ""
+    assert_reported(cap.err, str(path), case.expect)
+    assert not out.exists()
+    assert sorted(p.name for p in tmp_path.iterdir()) == ([] if case.text is None
+                                                          else ["recipe.yaml"])
+    # Bad input is refused before any CAD work, even the alias bomb.
+    assert elapsed < 3.0
+
+
+def test_directory_instead_of_a_recipe_is_refused(tmp_path, capsys):
+    out = tmp_path / "out"
+    assert main(["build", str(tmp_path), "--out", str(out)]) == 2
+    assert_reported(capsys.readouterr().err, str(tmp_path),
+                    (Expect("", None, "recipe path is a directory, not a file"),))
+    assert not out.exists()
+
+
+# --- real processes -------------------------------------------------------------------
+
+CHECK_SCRIPT = """\
+import sys
+from soft_molds.cli import main
+status = main(["check", sys.argv[1], sys.argv[2]])
+print("status", status, "cadquery" in sys.modules, "OCP" in sys.modules)
+"""
+
+SUBPROCESS_CASES = ("yaml-syntax-error", "alias-bomb", "missing-file")
+
+
+class Runs:
+    """Subprocesses started together; each result is collected on first use."""
+
+    def __init__(self) -> None:
+        self.started: dict[str, tuple[subprocess.Popen, Path]] = {}
+        self.done: dict[str, tuple[subprocess.CompletedProcess, Path]] = {}
+
+    def start(self, name: str, cmd: list[str], where: Path) -> None:
+        env = {**os.environ, "PYTHONPATH": str(ROOT)}
+        self.started[name] = (subprocess.Popen(cmd, cwd=where, env=env,
+                                               stdout=subprocess.PIPE,
+                                               stderr=subprocess.PIPE, text=True), where)
+
+    def get(self, name: str) -> tuple[subprocess.CompletedProcess, Path]:
+        if name not in self.done:
+            proc, where = self.started[name]
+            stdout, stderr = proc.communicate(timeout=120)
+            self.done[name] = (subprocess.CompletedProcess(proc.args, proc.returncode,
+                                                           stdout, stderr), where)
+        return self.done[name]
+
+    def close(self) -> None:
+        for proc, _ in self.started.values():
+            if proc.poll() is None:
+                proc.kill()
+                proc.communicate()
+
+
+@pytest.fixture(scope="module", autouse=True)
+def processes(tmp_path_factory):
+    """Every subprocess of this module, started with its first test: each imports the
+    package afresh (seconds), which then overlaps the in-process tests."""
+    runs = Runs()
+    for name in SUBPROCESS_CASES:
+        where = tmp_path_factory.mktemp(name)
+        write_case(next(c for c in CASES if c.name == name), where)
+        runs.start(name, [sys.executable, "-m", "soft_molds", "build", "recipe.yaml",
+                          "--out", "out"], where)
+    where = tmp_path_factory.mktemp("check")
+    bad = write_case(next(c for c in CASES if c.name == "unknown-key-with-suggestion"), where)
+    runs.start("check", [sys.executable, "-c", CHECK_SCRIPT, str(GOOD), str(bad)], where)
+    yield runs
+    runs.close()
+
+
+@pytest.mark.parametrize("name", SUBPROCESS_CASES)
+def test_bad_recipe_in_a_real_process_exits_2_without_traceback(processes, name):
+    run, where = processes.get(name)
+    case = next(c for c in CASES if c.name == name)
+    assert run.returncode == 2
+    assert run.stdout == ""
+    assert_reported(run.stderr, "recipe.yaml", case.expect)
+    assert not (where / "out").exists()
+
+
+def test_check_with_one_bad_recipe_exits_2_before_the_kernel_is_imported(processes):
+    run, where = processes.get("check")
+    assert run.returncode == 0, run.stderr  # the script itself ran to its end
+    assert run.stdout.splitlines() == ["status 2 False False"]
+    assert_reported(run.stderr, str(where / "recipe.yaml"), CASES[
+        [c.name for c in CASES].index("unknown-key-with-suggestion")].expect)
+
+
+def test_check_reports_bad_input_without_building_the_good_recipe(tmp_path, capsys,
+                                                                  monkeypatch):
+    import soft_molds.pipeline as pipeline
+
+    calls = []
+    monkeypatch.setattr(pipeline, "build", lambda r: calls.append(r))
+    bad = write_case(next(c for c in CASES if c.name == "negative-size"), tmp_path)
+    assert main(["check", str(GOOD), str(bad)]) == 2
+    cap = capsys.readouterr()
+    assert calls == []
+    assert cap.out == ""
+    assert_reported(cap.err, str(bad), CASES[[c.name for c in CASES].index("negative-size")]
+                    .expect)
+
+
+# --- help -------------------------------------------------------------------------------
+
+
+@pytest.mark.parametrize("argv, words", [
+    (["--help"], ["build", "check", "--version"]),
+    (["build", "--help"], ["RECIPE", "--out", "DIR"]),
+    (["check", "--help"], ["RECIPE", "Exit 1", "2 on bad input"]),
+])
+def test_help_exits_0_and_names_the_arguments(argv, words, capsys):
+    with pytest.raises(SystemExit) as exc:
+        main(argv)
+    assert exc.value.code == 0
+    out = " ".join(capsys.readouterr().out.split())  # argparse wraps to the terminal width
+    assert out.startswith("usage: soft-molds")
+    for w in words:
+        assert w in out
+
+
+@pytest.mark.parametrize("argv", [["build"], ["check"], ["melt", "x.yaml"], []])
+def test_usage_mistakes_exit_2_with_usage_not_traceback(argv, capsys):
+    with pytest.raises(SystemExit) as exc:
+        main(argv)
+    assert exc.value.code == 2
+    err = capsys.readouterr().err
+    assert err.startswith("usage: soft-molds")
+    assert "Traceback" not in err
