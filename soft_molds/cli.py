@@ -68,6 +68,9 @@ def cmd_build(args: argparse.Namespace) -> int:
     except SoftMoldsError as exc:
         print(f"error: {r.source}: {exc}", file=sys.stderr)
         return 1
+    except OSError as exc:
+        print(f"error: cannot write under {args.out}: {exc.strerror or exc}", file=sys.stderr)
+        return 1
     print(f"{r.name} {r.label}: built in {time.perf_counter() - t:.1f} s -> "
           f"{molds.output_dir(args.out)}")
     for p in molds.parts:
@@ -102,6 +105,26 @@ def cmd_check(args: argparse.Namespace) -> int:
     return 1 if failed else 0
 
 
+def cmd_reference(args: argparse.Namespace) -> int:
+    from .recipe.reference import reference_markdown, splice
+
+    if args.update is None:
+        print(reference_markdown(), end="")
+        return 0
+    from pathlib import Path
+
+    from .export.files import write_atomic
+
+    path = Path(args.update)
+    try:
+        write_atomic(path, splice(path.read_text()).encode())
+    except (OSError, ValueError) as exc:
+        print(f"error: cannot update {path}: {exc}", file=sys.stderr)
+        return 1
+    print(f"updated the recipe reference in {path}")
+    return 0
+
+
 def make_parser() -> argparse.ArgumentParser:
     ap = argparse.ArgumentParser(
         prog="soft-molds",
@@ -121,6 +144,11 @@ def make_parser() -> argparse.ArgumentParser:
                                    "when any fails, 2 on bad input.")
     c.add_argument("recipes", nargs="+", metavar="RECIPE", help="recipe YAML files")
     c.set_defaults(func=cmd_check)
+    ref = sub.add_parser("reference", help="print every recipe key with unit, default, range",
+                         description="Print the recipe reference (Markdown), or rewrite the "
+                                     "copy between the reference markers in FILE.")
+    ref.add_argument("--update", metavar="FILE", help="rewrite the reference inside FILE")
+    ref.set_defaults(func=cmd_reference)
     return ap
 
 

@@ -21,10 +21,6 @@ from .meshdata import TriMesh
 from .recipe.model import Recipe
 from .version import __version__
 
-#: Part name -> (role, pull direction description). Directions are unit vectors in the
-#: world frame: the lower shell pulls along -w, the upper along +w, the core along -x.
-ROLES = ("shell", "core", "cast")
-
 
 @dataclass(frozen=True, eq=False)
 class Part:
@@ -59,7 +55,8 @@ class MoldSet:
     parts: tuple[Part, ...]
     openings: tuple[Any, ...]
     layout: Any
-    void_volume_mm3: float
+    volumes_mm3: dict[str, float]  # exact volumes of body, void_set, core, cast
+    funnel_diameter_mm: float | None
     timings_s: dict[str, float] = field(default_factory=dict)
 
     def part(self, name: str) -> Part:
@@ -67,6 +64,11 @@ class MoldSet:
             if p.name == name:
                 return p
         raise KeyError(name)
+
+    @property
+    def void_volume_mm3(self) -> float:
+        """Air inside the cast: voids and tube socket (mm3)."""
+        return self.volumes_mm3["void_set"]
 
     @property
     def silicone_volume_mm3(self) -> float:
@@ -103,8 +105,11 @@ class MoldSet:
             "parts": parts,
             "silicone_volume_mm3": round(self.silicone_volume_mm3, 3),
             "void_volume_mm3": round(self.void_volume_mm3, 3),
+            "body_volume_mm3": round(self.volumes_mm3["body"], 3),
             "pour": {
                 "up": _up(r),
+                "funnel_diameter_mm": (None if self.funnel_diameter_mm is None
+                                       else round(self.funnel_diameter_mm, 4)),
                 "openings": [{"kind": o.kind,
                               "at_mm": [round(c, 4) for c in o.center_mm],
                               "diameter_mm": round(2 * o.radius_mm, 4)} for o in self.openings],
@@ -216,4 +221,4 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
         require_ok(report, label)
         parts.append(Part(name, role, solid, mesh, vol, pull, report))  # type: ignore[arg-type]
     return MoldSet(recipe, tuple(parts), tuple(openings), shells.layout,
-                   cs.volumes_mm3["void_set"], timings)
+                   dict(cs.volumes_mm3), shells.funnel_diameter_mm, timings)

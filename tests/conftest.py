@@ -42,6 +42,11 @@ def cushion():
 
 
 @pytest.fixture(scope="session")
+def tamper():
+    return built("soil-tamper")
+
+
+@pytest.fixture(scope="session")
 def twister():
     return built("wrist-twister")
 

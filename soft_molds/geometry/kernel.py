@@ -1,5 +1,5 @@
-"""Thin, checked wrappers over the CAD kernel (cadquery/OCCT): the only module that
-imports cadquery, so it is imported once per process.
+"""Thin, checked wrappers over the CAD kernel (cadquery/OCCT). Only the geometry package
+imports cadquery or its OCP bindings, once per process.
 
 OCCT booleans can report success on invalid input and hand back a wrong solid, so every
 step here checks validity, solid count and, where known, the volume (kernel-notes).
@@ -8,7 +8,6 @@ step here checks validity, solid count and, where known, the volume (kernel-note
 from __future__ import annotations
 
 import functools
-import math
 from collections.abc import Sequence
 
 import cadquery as cq
@@ -197,6 +196,3 @@ def split_at(shape: cq.Shape, axis: int, offset: float, part: str) -> tuple[cq.S
 def volume(shape: cq.Shape) -> float:
     return float(shape.Volume())
 
-
-def deg(x: float) -> float:
-    return math.radians(x)

@@ -12,9 +12,9 @@ from dataclasses import dataclass
 from typing import Protocol
 
 from ..errors import GeometryError
+from ..recipe.layout import MIN_LAND_MM, Layout, plan_layout
 from ..recipe.model import Recipe
 from . import kernel as k
-from .layout import Layout, plan_layout
 
 #: The cut tools for sprue and vents start this far inside the cavity so they always
 #: open into it (the overlap is cavity, already empty), mm.
@@ -28,6 +28,7 @@ class CastSolids:
     core: k.Shape
     cast: k.Shape
     volumes_mm3: dict[str, float]  # exact (BRep) volumes: body, void_set, core, cast
+    layout: Layout
 
 
 class Opening(Protocol):
@@ -45,6 +46,20 @@ class ShellSolids:
     upper: k.Shape
     layout: Layout
     peg_volume_mm3: float
+    funnel_diameter_mm: float | None  # as cut (None: no sprue)
+
+
+def funnel_radius(lay: Layout, m, at_uv: tuple[float, float], sprue_r: float) -> float:
+    """The pour funnel's rim radius (mm): the recipe's, shrunk so that a land of
+    MIN_LAND_MM stays to every clamp hole and to the block's edges; the bare sprue radius
+    when no useful funnel fits."""
+    f = lay.frame
+    room = [at_uv[0] - lay.block_lo[0], lay.block_hi[0] - at_uv[0],
+            at_uv[1] - lay.block_lo[f.v_axis], lay.block_hi[f.v_axis] - at_uv[1]]
+    rb = (m.clamp_hole_mm or 0.0) / 2.0
+    room += [math.dist(at_uv, b) - rb for b in lay.bolts_uv]
+    r = min(m.funnel_diameter_mm / 2.0, min(room) - MIN_LAND_MM)
+    return r if r >= sprue_r + 0.5 else sprue_r
 
 
 def frustum_volume(h: float, r1: float, r2: float) -> float:
@@ -78,11 +93,11 @@ def build_cast(r: Recipe, body: k.Shape | None = None) -> CastSolids:
     cast = k.cut(body, [core], "cast", "cut voids from body",
                  volume_mm3=vols["body"] - vols["void_set"])
     vols["cast"] = k.volume(cast)
-    return CastSolids(body, void_set, core, cast, vols)
+    return CastSolids(body, void_set, core, cast, vols, layout)
 
 
 def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> ShellSolids:
-    lay = plan_layout(r)
+    lay = cs.layout
     f = lay.frame
     m = r.mold
     wa = f.w_axis
@@ -119,15 +134,18 @@ def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> Sh
 
     up_tools = list(sockets)
     top = w_hi
+    funnel_d = None
     for op in openings:
         p = list(op.center_mm)
         start_w = p[wa] - CAVITY_OVERLAP_MM
         u, v = p[0], p[f.v_axis]
         if op.kind == "sprue":
-            depth = 0.6 * (top - p[wa])
-            cone_r = max(m.funnel_diameter_mm / 2.0, op.radius_mm + 0.5)
-            up_tools.append(k.frustum(wa, f.world(u, v, top + 0.1), depth + 0.1, cone_r,
-                                      op.radius_mm, sign=-1.0))
+            funnel_r = funnel_radius(lay, m, (u, v), op.radius_mm)
+            funnel_d = 2.0 * funnel_r
+            depth = 0.6 * (top - p[wa]) if funnel_r > op.radius_mm else 0.0
+            if depth > 0.0:
+                up_tools.append(k.frustum(wa, f.world(u, v, top + 0.1), depth + 0.1, funnel_r,
+                                          op.radius_mm, sign=-1.0))
             up_tools.append(k.cylinder(wa, f.world(u, v, start_w), top - start_w - depth + 0.2,
                                        op.radius_mm))
         else:
@@ -138,4 +156,4 @@ def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> Sh
     if not k.volume(upper) < before:
         raise GeometryError("cut key sockets, sprue and vents", "nothing was removed",
                             "shell-upper")
-    return ShellSolids(lower, upper, lay, peg_vol)
+    return ShellSolids(lower, upper, lay, peg_vol, funnel_d)

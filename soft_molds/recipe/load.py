@@ -126,6 +126,11 @@ def recipe_from_node(root: Node, source: str, default_name: str = "recipe") -> R
     if parting_v["axis"] is None:
         _, w, h = body.size_mm()
         parting_v["axis"] = "y" if w < h else "z"
+    if parting_v["offset_mm"] is None:
+        # The core print must be seated in both halves, so the plane runs through the
+        # socket's axis; for centred voids that is the body's mid-plane.
+        cy, cz = inlet_v["center_mm"]
+        parting_v["offset_mm"] = cz if parting_v["axis"] == "z" else cy
 
     recipe = Recipe(
         name=name, label=label, description=vals["description"] or "", body=body,

@@ -1,6 +1,6 @@
 """The recipe reference (every key, unit, default, allowed range) as Markdown, generated
 from the same field lists that validate recipes; README.md embeds it and a test keeps the
-two identical (``python -m soft_molds.recipe.reference`` prints it, ``--update README.md``
+two identical (``soft-molds reference`` prints it, ``soft-molds reference --update README.md``
 rewrites the README's copy)."""
 
 from __future__ import annotations
@@ -44,7 +44,7 @@ def reference_markdown() -> str:
     return "\n".join(out).rstrip() + "\n"
 
 
-START = "<!-- recipe-reference:start (generated: python -m soft_molds.recipe.reference) -->"
+START = "<!-- recipe-reference:start (generated: soft-molds reference --update README.md) -->"
 END = "<!-- recipe-reference:end -->"
 
 
@@ -57,12 +57,4 @@ def splice(document: str) -> str:
 
 
 if __name__ == "__main__":
-    import sys
-
-    if sys.argv[1:2] == ["--update"]:
-        from pathlib import Path
-
-        path = Path(sys.argv[2] if len(sys.argv) > 2 else "README.md")
-        path.write_text(splice(path.read_text()))
-    else:
-        print(reference_markdown(), end="")
+    print(reference_markdown(), end="")

@@ -8,6 +8,7 @@ from __future__ import annotations
 import numpy as np
 
 from ..errors import Problem
+from .layout import layout_problems, plan_layout
 from .model import Recipe
 from .primitives import Primitive, union_sdf
 
@@ -58,9 +59,15 @@ def sanity_problems(r: Recipe, lines: dict[str, int]) -> list[Problem]:
                     cz + (sock_r + min_wall) * np.sin(ring)], axis=1)
     d = union_sdf(body, rim)
     if np.any(d > -delta + 1e-7):
+        # When the socket follows the first void, point at the line the user wrote.
+        given = "inlet.center_mm" in lines
+        follows = "" if given else " (derived from voids[0].center_mm)"
+        where = line("inlet.center_mm") if given else (
+            lines.get("voids[0].center_mm") or line("inlet") or line("voids[0]"))
         out.append(Problem("inlet.center_mm", "puts the socket off the flat inlet face (x = 0) "
-                           f"or closer than checks.min_wall_mm = {min_wall:g} mm to its edge",
-                           line("inlet.center_mm") or line("inlet"), [cy, cz],
+                           f"or closer than checks.min_wall_mm = {min_wall:g} mm to its edge"
+                           + follows, where,
+                           [cy, cz],
                            "a point of the x = 0 face at least socket radius + min wall from "
                            "its rim"))
 
@@ -92,13 +99,36 @@ def sanity_problems(r: Recipe, lines: dict[str, int]) -> list[Problem]:
                                f"{r.inlet.socket_depth_mm:g} mm)"))
 
     inlet_on_axis = cz if r.parting.axis == "z" else cy
+    parting_line = line("parting.offset_mm") or line("parting") or line("")
     if abs(inlet_on_axis - r.parting.offset_mm) > EPS:
         out.append(Problem("parting.offset_mm", "does not pass through the inlet socket axis",
-                           line("parting.offset_mm") or line("parting") or line(""),
-                           r.parting.offset_mm,
+                           parting_line, r.parting.offset_mm,
                            f"{inlet_on_axis:g} mm (the socket centre's {r.parting.axis}), so "
                            "the core print can be seated in both shell parts"))
+    elif not _parting_at_widest(body, r):
+        out.append(Problem("parting.offset_mm", "does not run through the body's widest "
+                           "section: one shell part would lock the cast in an undercut",
+                           parting_line, r.parting.offset_mm,
+                           "a plane through the straight sides of the body (for a rod, its "
+                           "axis; move the voids and socket to that plane)"))
+    out.extend(layout_problems(r, plan_layout(r), line))
     return out
+
+
+def _parting_at_widest(body, r: Recipe) -> bool:
+    """Both shells pull straight off only if the body is as wide at the parting plane as
+    anywhere: probe just inside the body's bounding box at the plane, along the body's
+    length (kinds are extrusions or revolutions along x)."""
+    w = 2 if r.parting.axis == "z" else 1
+    v = 1 if w == 2 else 2
+    length, width, height = r.body.size_mm()
+    half_v = (width if v == 1 else height) / 2.0
+    xs = np.linspace(0.25 * length, 0.75 * length, 5)
+    pts = np.zeros((2 * len(xs), 3))
+    pts[:, 0] = np.tile(xs, 2)
+    pts[:, v] = np.repeat([-1.0, 1.0], len(xs)) * (half_v - 1e-3)
+    pts[:, w] = r.parting.offset_mm
+    return bool(np.all(union_sdf(body, pts) <= 0.0))
 
 
 def _wall_problems(out: list[Problem], path: str, line: int | None, body, samples: np.ndarray,

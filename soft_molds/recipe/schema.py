@@ -21,7 +21,8 @@ INLET_FIELDS: tuple[Field, ...] = (
 PARTING_FIELDS: tuple[Field, ...] = (
     choice("axis", "normal of the parting plane (up in pour orientation); default: the "
            "body's thinner cross direction (z on a tie)", ("y", "z"), None),
-    number("offset_mm", "position of the parting plane along its axis", 0.0,
+    number("offset_mm", "position of the parting plane along its axis; default: through the "
+           "tube socket's axis (the body's mid-plane when the voids are centred)", None,
            lo=-500.0, hi=500.0, lo_open=False),
 )
 
@@ -29,7 +30,7 @@ MOLD_FIELDS: tuple[Field, ...] = (
     number("wall_mm", "mold material around the cavity on every side", 5.0, lo=4.0, hi=50.0,
            lo_open=False),
     number("flange_mm", "extra band around the cavity in the parting plane for keys and "
-           "clamp holes", 12.0, lo=8.0, hi=60.0, lo_open=False),
+           "clamp holes", 12.0, lo=10.0, hi=60.0, lo_open=False),
     number("clearance_mm", "per-side gap of printed fits (common practice 0.2-0.5)", 0.3,
            lo=0.1, hi=1.0, lo_open=False),
     choice("clamp_bolt", "bolt for the clamp holes (ISO 273 medium clearance) or none",

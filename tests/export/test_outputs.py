@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import json
 import struct
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -109,3 +110,19 @@ def test_a_failed_write_leaves_no_file_of_the_set(finger, tmp_path, monkeypatch)
     leftovers = [p for p in tmp_path.rglob("*") if p.is_file()]
     assert not [p for p in leftovers if p.name == "manifest.json"]
     assert not [p for p in leftovers if ".tmp" in p.name]
+
+
+def test_a_fresh_process_writes_the_same_bytes(cushion, tmp_path):
+    """Across processes too (no cache, time stamp or hash seed leaks into the files)."""
+    import hashlib
+    import subprocess
+    import sys
+
+    here = {n: hashlib.sha256(b).hexdigest() for n, b in cushion.files().items()}
+    code = ("import hashlib, json, sys; from soft_molds import build, load_recipe; "
+            "m = build(load_recipe('recipes/stem-cushion.yaml')); "
+            "print(json.dumps({n: hashlib.sha256(b).hexdigest() for n, b in m.files().items()}))")
+    res = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         check=True, env={"PYTHONHASHSEED": "123", "PATH": "/usr/bin:/bin"},
+                         cwd=Path(__file__).resolve().parents[2])
+    assert json.loads(res.stdout.strip().splitlines()[-1]) == here

@@ -8,7 +8,7 @@ import pytest
 
 from soft_molds.analysis.highpoints import find_high_points, unserved
 
-NAMES = ["seedling-finger", "tray-pusher", "stem-cushion", "wrist-twister"]
+NAMES = ["seedling-finger", "tray-pusher", "stem-cushion", "wrist-twister", "soil-tamper"]
 
 
 def _ray(mesh, origin, direction) -> np.ndarray:
@@ -79,10 +79,14 @@ def test_core_print_is_seated_in_both_halves_with_a_square_key(finger):
     assert pocket_roof[0][2] == pytest.approx(cz + half + c, abs=1e-3)
 
 
-def test_pry_notches_open_the_parting_line_at_the_far_end(finger):
+def test_pry_notches_open_the_parting_line_at_the_far_end_and_side(finger):
     lay, r = finger.layout, finger.recipe
     v_mid = (lay.block_lo[1] + lay.block_hi[1]) / 2
+    u_side = lay.notches[1][0]
     for part, dz in (("shell-lower", -0.5), ("shell-upper", 0.5)):
+        side = _ray(finger.part(part).mesh, (u_side, lay.block_hi[1] + 10,
+                                             r.parting.offset_mm + dz), (0, -1, 0))
+        assert side[0][1] == pytest.approx(lay.block_hi[1] - 3.0, abs=1e-3), part
         hit = _ray(finger.part(part).mesh, (lay.block_hi[0] + 10, v_mid,
                                             r.parting.offset_mm + dz), (-1, 0, 0))
         # Notch 3 mm deep, 1.5 mm either side of the parting plane (layout).

@@ -4,16 +4,17 @@ read the same meshes with their own code) and with closed-form geometry."""
 from __future__ import annotations
 
 import itertools
+import math
 
 import manifold3d as m3
 import numpy as np
 import pytest
 import trimesh
 
-from soft_molds.geometry.layout import key_symmetry_clashes
+from soft_molds.recipe.layout import key_symmetry_clashes
 from soft_molds.recipe.model import ISO273_MEDIUM_MM
 
-NAMES = ["seedling-finger", "tray-pusher", "stem-cushion", "wrist-twister"]
+NAMES = ["seedling-finger", "tray-pusher", "stem-cushion", "wrist-twister", "soil-tamper"]
 
 
 def manifold(mesh) -> m3.Manifold:
@@ -156,3 +157,25 @@ def test_pull_directions_are_opposite_unit_vectors_for_the_shells(finger):
     hi = np.array(finger.part("shell-upper").pull_dir)
     assert np.linalg.norm(lo) == pytest.approx(1.0) and np.dot(lo, hi) == pytest.approx(-1.0)
     assert finger.part("core").pull_dir == (-1.0, 0.0, 0.0)
+
+
+@pytest.mark.parametrize("name", ["seedling-finger", "soil-tamper"])
+def test_upper_half_turned_round_collides_with_the_keys(name, bundled):
+    """Independent of the layout code: put the upper half on the lower one as designed and
+    the two meet without overlap; turn it half round about the parting axis (through the
+    block centre) and manifold3d finds the key pegs buried in solid shell."""
+    molds = bundled(name)
+    lay = molds.layout
+    lower = manifold(molds.part("shell-lower").mesh)
+    upper = manifold(molds.part("shell-upper").mesh)
+    assert (lower ^ upper).volume() < 1e-3
+    axis = [0.0, 0.0, 0.0]
+    axis[lay.frame.w_axis] = 1.0
+    cu, cv = lay.block_center_uv
+    centre = lay.frame.world(cu, cv, 0.0)
+    turned = (upper.translate([-c for c in centre]).rotate([180.0 * a for a in axis])
+              .translate(list(centre)))
+    r = molds.recipe.mold
+    peg = math.pi * r.key_height_mm / 3 * (1 + 0.7 + 0.49) * r.key_diameter_mm ** 2 / 4
+    # At least one whole peg (Euclid's frustum volume, radii 1 and 0.7 of the base) buried.
+    assert (lower ^ turned).volume() > 0.9 * peg

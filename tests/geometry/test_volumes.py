@@ -41,16 +41,20 @@ def test_pappus_ring_reduces_to_hemispheres_when_the_rounding_equals_the_radius(
     assert rounded_rod_volume(r, length, r) == pytest.approx(capsule, rel=1e-12)
 
 
-# ---- seedling finger: bar body, chamber array --------------------------------------------
+# ---- chamber rows: seedling finger and soil tamper (bars), wrist twister (rod) -----------
 FINGER = dict(L=70.0, W=16.0, H=14.0, R=2.0, n=7, pitch=8.0, depth=5.0, cw=12.0, ch=8.0,
               cr=1.0, feed_r=1.0, sock_r=2.0, sock_t=6.0)
+TAMPER = dict(L=56.0, W=12.0, H=20.0, R=2.0, n=5, pitch=9.0, depth=5.0, cw=7.0, ch=14.0,
+              cr=1.0, feed_r=1.0, sock_r=2.0, sock_t=6.0)
+TWISTER = dict(L=64.0, D=20.0, R=3.0, n=6, pitch=8.0, depth=5.0, cw=12.0, ch=10.0,
+               cr=1.5, feed_r=1.25, sock_r=2.0, sock_t=6.0)
 
 
-def finger_void_volume() -> float:
-    f = FINGER
+def chamber_void_volume(f: dict) -> float:
     chambers = f["n"] * rounded_box_volume(f["depth"], f["cw"], f["ch"], f["cr"])
     row = (f["n"] - 1) * f["pitch"] + f["depth"]
     start = (f["L"] - row) / 2.0
+    assert start > f["sock_t"]  # the socket ends before the first chamber
     channel_end = start + (f["n"] - 1) * f["pitch"] + f["depth"] / 2.0
     # The channel runs inside every chamber's flat faces for one depth (half in the last)
     # and inside the coaxial, wider socket for the socket's depth.
@@ -60,12 +64,28 @@ def finger_void_volume() -> float:
     return chambers + channel + socket
 
 
+def finger_void_volume() -> float:
+    return chamber_void_volume(FINGER)
+
+
+@pytest.mark.parametrize("fixture, dims", [("tamper", TAMPER), ("twister", TWISTER)])
+def test_chamber_rows_in_bar_and_rod_match_the_closed_form(fixture, dims, request):
+    molds = request.getfixturevalue(fixture)
+    if "D" in dims:
+        body = rounded_rod_volume(dims["D"] / 2.0, dims["L"], dims["R"])
+    else:
+        body = rounded_box_volume(dims["L"], dims["W"], dims["H"], dims["R"])
+    voids = chamber_void_volume(dims)
+    assert close(molds.volumes_mm3["body"], body, 0.001)
+    assert close(molds.void_volume_mm3, voids, 0.001)
+    assert close(molds.part("cast").brep_volume_mm3, body - voids, 0.001)
+    assert close(molds.part("cast").mesh.volume_mm3(), body - voids, 0.005)
+
+
 def test_finger_body_volume_matches_the_steiner_formula(finger):
     f = FINGER
     want = rounded_box_volume(f["L"], f["W"], f["H"], f["R"])
-    cast = finger.part("cast")
-    body = cast.brep_volume_mm3 + finger.void_volume_mm3
-    assert close(body, want, 0.001), (body, want)
+    assert close(finger.volumes_mm3["body"], want, 0.001), (finger.volumes_mm3, want)
 
 
 def test_finger_void_set_volume_matches_the_closed_form(finger):
@@ -108,7 +128,7 @@ def test_cushion_volumes_match_the_closed_form(cushion):
 
 
 @pytest.mark.parametrize("name", ["seedling-finger", "tray-pusher", "stem-cushion",
-                                  "wrist-twister"])
+                                  "wrist-twister", "soil-tamper"])
 def test_every_part_mesh_volume_is_within_half_a_percent_of_its_brep(name, bundled):
     for part in bundled(name).parts:
         assert close(part.mesh.volume_mm3(), part.brep_volume_mm3, 0.005), part.name

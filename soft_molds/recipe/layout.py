@@ -1,5 +1,7 @@
 """Where the mold's features go, as plain numbers (no kernel): block extents, clamp holes,
-registration keys and pry notches in the parting plane.
+registration keys, pry notches and the core key; and the rules that keep them clear of each
+other, of the cavity and of the block's faces (checked with the recipe, before any kernel
+call).
 
 Local frame: ``u`` = x (the body's long axis), ``v`` = the other in-plane axis, ``w`` = the
 parting axis (up in pour orientation). ``world()`` maps (u, v, w) to (x, y, z).
@@ -10,7 +12,17 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from ..recipe.model import Recipe
+from ..errors import Problem
+from .model import Recipe
+
+#: Pry notch: how deep it cuts into a face, its length along the face and its half height
+#: either side of the parting plane (mm): room for a flat screwdriver tip.
+NOTCH_DEPTH_MM = 3.0
+NOTCH_LENGTH_MM = 12.0
+NOTCH_HALF_HEIGHT_MM = 1.5
+#: Least printed material between two features, or a feature and a face (mm): about four
+#: 0.4 mm perimeters (common practice for watertight FDM walls).
+MIN_LAND_MM = 1.5
 
 #: Longest unsupported run of parting line between two clamp bolts (mm). Printed plastic
 #: flexes under bolt load; about 70 mm keeps the seam closed on soft silicone (from memory).
@@ -81,10 +93,9 @@ def plan_layout(r: Recipe) -> Layout:
     # Three keys, no two related by the rectangle's symmetries (half turn about w, mirror
     # in u, mirror in v), so the halves close one way only.
     keys = ((mid_first, v0), (mid_last, v0), (mid_first, v1))
-    notch_len = 12.0
     notches = (
-        (hi[0], (v0 + v1) / 2, 2 * 3.0, notch_len),   # far end face, centred
-        (mid_last, hi[va], notch_len, 2 * 3.0),        # +v face, where no key sits
+        (hi[0], (v0 + v1) / 2, 2 * NOTCH_DEPTH_MM, NOTCH_LENGTH_MM),  # far end face, centred
+        (mid_last, hi[va], NOTCH_LENGTH_MM, 2 * NOTCH_DEPTH_MM),      # +v face, no key there
     )
     return Layout(frame, r.parting.offset_mm, tuple(lo), tuple(hi), body_lo, body_hi,  # type: ignore[arg-type]
                   bolts, keys, notches, lo[0] - m.core_handle_mm, _core_key(r, lo[0]))
@@ -123,3 +134,63 @@ def key_symmetry_clashes(keys_uv: tuple[tuple[float, float], ...],
         if all(any(math.dist(p, q) <= tol_mm for q in keys_uv) for p in moved):
             clashes.append(name)
     return clashes
+
+
+def layout_problems(r: Recipe, lay: Layout, line) -> list[Problem]:
+    """Keys, clamp holes and notches that would collide with each other, break into the
+    cavity or out of the block. ``line(path)`` gives a field's source line."""
+    m = r.mold
+    out: list[Problem] = []
+    rk = m.key_diameter_mm / 2.0 + m.clearance_mm  # the socket, the larger of the pair
+    rb = (m.clamp_hole_mm or 0.0) / 2.0
+    inset = m.flange_mm / 2.0  # key and bolt centres sit this far in from the block edge
+
+    def add(path: str, what: str, value: object, allowed: str) -> None:
+        out.append(Problem(path, what, line(path), value, allowed))
+
+    if rk + MIN_LAND_MM > inset:
+        add("mold.key_diameter_mm", "leaves too little wall between the key sockets and the "
+            "block's outer faces", m.key_diameter_mm,
+            f"at most {2 * (inset - MIN_LAND_MM - m.clearance_mm):g} mm with flange_mm = "
+            f"{m.flange_mm:g} (or a wider flange)")
+    if rk + MIN_LAND_MM > m.wall_mm + inset:
+        add("mold.key_diameter_mm", "puts the key sockets into the cavity", m.key_diameter_mm,
+            f"at most {2 * (m.wall_mm + inset - MIN_LAND_MM - m.clearance_mm):g} mm")
+    w = lay.frame.w_axis
+    upper = lay.block_hi[w] - lay.parting_w
+    if m.key_height_mm + m.clearance_mm + MIN_LAND_MM > upper:
+        add("mold.key_height_mm", "makes the key sockets break through the upper shell's top",
+            m.key_height_mm,
+            f"at most {upper - MIN_LAND_MM - m.clearance_mm:g} mm (upper shell {upper:g} mm "
+            "thick above the parting plane)")
+    if rb and rb + MIN_LAND_MM > inset:
+        add("mold.clamp_bolt", "leaves too little wall around the clamp holes", m.clamp_bolt,
+            f"a flange_mm of at least {2 * (rb + MIN_LAND_MM):g} mm for this bolt, or a "
+            "smaller bolt")
+    for ku, kv in lay.keys_uv:
+        for bu, bv in lay.bolts_uv:
+            gap = math.dist((ku, kv), (bu, bv)) - rk - rb
+            if gap < MIN_LAND_MM:
+                add("mold.key_diameter_mm", f"puts a key socket {gap:.2f} mm from a clamp hole",
+                    m.key_diameter_mm, f"at least {MIN_LAND_MM:g} mm of wall between them "
+                    "(a smaller key or bolt, or a longer body)")
+                break
+        else:
+            continue
+        break
+    v_extent = lay.body_hi[lay.frame.v_axis] - lay.body_lo[lay.frame.v_axis]
+    if m.sprue_diameter_mm > 0.8 * v_extent:
+        add("mold.sprue_diameter_mm", "is wider than the top of the cavity it pours into",
+            m.sprue_diameter_mm, f"at most {0.8 * v_extent:g} mm (0.8 x the body's width "
+            "across the pour)")
+    for nu, nv, du, dv in lay.notches:
+        for bu, bv in lay.bolts_uv:
+            # Distance from the hole's centre to the notch's rectangle in the plane.
+            dx = max(abs(bu - nu) - du / 2.0, 0.0)
+            dy = max(abs(bv - nv) - dv / 2.0, 0.0)
+            if math.hypot(dx, dy) - rb < MIN_LAND_MM:
+                add("mold.flange_mm", "puts a pry notch into a clamp hole", m.flange_mm,
+                    f"enough flange for {MIN_LAND_MM:g} mm of wall between them (a wider "
+                    "flange or a smaller bolt)")
+                return out
+    return out

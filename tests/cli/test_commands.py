@@ -1,0 +1,33 @@
+"""CLI commands beyond build/check input errors."""
+
+from __future__ import annotations
+
+from soft_molds.cli import main
+from soft_molds.recipe.reference import reference_markdown
+
+
+def test_reference_prints_every_field_list(capsys):
+    assert main(["reference"]) == 0
+    out = capsys.readouterr().out
+    assert out == reference_markdown()
+    for key in ("length_mm", "pitch_mm", "socket_diameter_mm", "clamp_bolt", "chord_mm"):
+        assert f"`{key}`" in out
+
+
+def test_reference_update_rewrites_only_between_the_markers(tmp_path, capsys):
+    from soft_molds.recipe.reference import END, START
+
+    doc = tmp_path / "doc.md"
+    doc.write_text(f"before\n{START}\n\nstale\n{END}\nafter\n")
+    assert main(["reference", "--update", str(doc)]) == 0
+    text = doc.read_text()
+    assert text.startswith("before\n") and text.endswith("after\n") and "stale" not in text
+    assert reference_markdown() in text
+
+
+def test_build_into_an_unwritable_place_is_one_line_exit_1(tmp_path, capsys):
+    blocker = tmp_path / "afile"
+    blocker.write_text("x")
+    assert main(["build", "recipes/stem-cushion.yaml", "--out", str(blocker / "sub")]) == 1
+    err = capsys.readouterr().err
+    assert err.count("\n") == 1 and "cannot write" in err and "Traceback" not in err
