@@ -177,27 +177,32 @@ def _centre_on(s: _Surface, facets: np.ndarray, up: np.ndarray) -> np.ndarray | 
     if a.sum() <= 0:
         return None
     c = (tri.mean(axis=1) * a[:, None]).sum(axis=0) / a.sum()
-    # 2-D barycentric test in the plane normal to up.
+    inside, b1, b2 = _shadow_coords(tri, c, up)
+    hit = np.flatnonzero(inside)
+    if len(hit) == 0:
+        return None
+    k = int(hit[np.argmax((tri[hit].mean(axis=1)) @ up)])  # the highest facet above/below c
+    return tri[k, 0] + b1[k] * (tri[k, 1] - tri[k, 0]) + b2[k] * (tri[k, 2] - tri[k, 0])
+
+
+def _shadow_coords(tris: np.ndarray, point: np.ndarray, up: np.ndarray
+                   ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Barycentric coordinates of ``point`` projected along ``up`` onto each of ``tris``
+    (k, 3, 3), and whether it falls inside each (edges included)."""
     e1 = np.cross(up, [1.0, 0.0, 0.0])
     if np.linalg.norm(e1) < 1e-6:
         e1 = np.cross(up, [0.0, 1.0, 0.0])
     e1 /= np.linalg.norm(e1)
     e2 = np.cross(up, e1)
-    p2 = np.stack([tri @ e1, tri @ e2], axis=2)  # (k, 3, 2)
-    q = np.array([c @ e1, c @ e2])
-    v0, v1 = p2[:, 1] - p2[:, 0], p2[:, 2] - p2[:, 0]
-    w = q - p2[:, 0]
+    a = np.stack([tris @ e1, tris @ e2], axis=2)  # (k, 3, 2)
+    v0, v1 = a[:, 1] - a[:, 0], a[:, 2] - a[:, 0]
+    w = np.array([point @ e1, point @ e2]) - a[:, 0]
     den = v0[:, 0] * v1[:, 1] - v0[:, 1] * v1[:, 0]
     ok = np.abs(den) > 1e-12
     safe = np.where(ok, den, 1.0)
     b1 = (w[:, 0] * v1[:, 1] - w[:, 1] * v1[:, 0]) / safe
     b2 = (v0[:, 0] * w[:, 1] - v0[:, 1] * w[:, 0]) / safe
-    hit = np.flatnonzero(ok & (b1 >= -1e-9) & (b2 >= -1e-9) & (b1 + b2 <= 1 + 1e-9))
-    if len(hit) == 0:
-        return None
-    k = int(hit[np.argmax((tri[hit].mean(axis=1)) @ up)])  # the highest facet above/below c
-    b1k, b2k = b1[k], b2[k]
-    return tri[k, 0] + b1k * (tri[k, 1] - tri[k, 0]) + b2k * (tri[k, 2] - tri[k, 0])
+    return ok & (b1 >= -1e-9) & (b2 >= -1e-9) & (b1 + b2 <= 1 + 1e-9), b1, b2
 
 
 def _persistence(s: _Surface) -> tuple[np.ndarray, np.ndarray]:
@@ -394,23 +399,7 @@ def _reaching(
 
 def _in_shadow(tris: np.ndarray, points: np.ndarray, u: np.ndarray) -> np.ndarray:
     """Whether each point's projection along ``u`` falls inside one of ``tris`` (k, 3, 3)."""
-    e1 = np.cross(u, [1.0, 0.0, 0.0])
-    if np.linalg.norm(e1) < 1e-6:
-        e1 = np.cross(u, [0.0, 1.0, 0.0])
-    e1 /= np.linalg.norm(e1)
-    e2 = np.cross(u, e1)
-    a = np.stack([tris @ e1, tris @ e2], axis=2)  # (k, 3, 2)
-    v0, v1 = a[:, 1] - a[:, 0], a[:, 2] - a[:, 0]
-    den = v0[:, 0] * v1[:, 1] - v0[:, 1] * v1[:, 0]
-    ok = np.abs(den) > 1e-12
-    safe = np.where(ok, den, 1.0)
-    out = np.zeros(len(points), dtype=bool)
-    for i, p in enumerate(points):
-        w = np.array([p @ e1, p @ e2]) - a[:, 0]
-        b1 = (w[:, 0] * v1[:, 1] - w[:, 1] * v1[:, 0]) / safe
-        b2 = (v0[:, 0] * w[:, 1] - v0[:, 1] * w[:, 0]) / safe
-        out[i] = bool((ok & (b1 >= -1e-9) & (b2 >= -1e-9) & (b1 + b2 <= 1 + 1e-9)).any())
-    return out
+    return np.array([bool(_shadow_coords(tris, p, u)[0].any()) for p in points], dtype=bool)
 
 
 def _arrays(openings: Sequence[Opening]) -> tuple[np.ndarray, np.ndarray]:

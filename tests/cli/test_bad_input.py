@@ -25,37 +25,7 @@ GOOD = ROOT / "recipes" / "seedling-finger.yaml"
 
 # Demo recipe from our own scenario: one finger of a greenhouse co-op's seedling gripper.
 # Bar x in [0, 70], y in [-8, 8], z in [-7, 7]; chambers 12 (y) by 8 (z) on the axis.
-BASE = """\
-# one finger of the co-op's seedling gripper, platinum-cure silicone, Shore A10
-name: finger-test
-body:
-  kind: bar
-  length_mm: 70
-  width_mm: 16
-  height_mm: 14
-  edge_radius_mm: 2
-voids:
-  - kind: chambers
-    count: 3
-    pitch_mm: 8
-    depth_mm: 5
-    width_mm: 12
-    height_mm: 8
-    corner_radius_mm: 1
-    center_mm: [0, 0]
-    feed_diameter_mm: 2
-inlet:
-  socket_diameter_mm: 4
-  socket_depth_mm: 6
-parting:
-  axis: z
-  offset_mm: 0
-mold:
-  wall_mm: 5
-  clamp_bolt: M4
-checks:
-  min_wall_mm: 1.0
-"""
+BASE = (Path(__file__).resolve().parents[1] / "data" / "finger-test.yaml").read_text()
 
 # "Billion laughs": nine levels of nine-fold aliases would expand to 9**9 strings.
 BOMB = """\

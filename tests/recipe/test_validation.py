@@ -28,37 +28,7 @@ BUNDLED = sorted(p.stem for p in RECIPES.glob("*.yaml"))
 # Demo recipe from our own scenario: one finger of a greenhouse co-op's seedling gripper.
 # Bar: x in [0, 70], y in [-8, 8], z in [-7, 7], edges rounded 2 mm. Chambers: centred on
 # the axis, 12 mm along y and 8 mm along z, so side walls are 2 mm and top/bottom walls 3 mm.
-FINGER = """\
-# one finger of the co-op's seedling gripper, platinum-cure silicone, Shore A10
-name: finger-test
-body:
-  kind: bar
-  length_mm: 70
-  width_mm: 16
-  height_mm: 14
-  edge_radius_mm: 2
-voids:
-  - kind: chambers
-    count: 3
-    pitch_mm: 8
-    depth_mm: 5
-    width_mm: 12
-    height_mm: 8
-    corner_radius_mm: 1
-    center_mm: [0, 0]
-    feed_diameter_mm: 2
-inlet:
-  socket_diameter_mm: 4
-  socket_depth_mm: 6
-parting:
-  axis: z
-  offset_mm: 0
-mold:
-  wall_mm: 5
-  clamp_bolt: M4
-checks:
-  min_wall_mm: 1.0
-"""
+FINGER = (Path(__file__).resolve().parents[1] / "data" / "finger-test.yaml").read_text()
 
 
 def edit(text: str, old: str, new: str) -> str:
