@@ -17,6 +17,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 import pytest
+from recipe_text import FINGER_TEXT, edit, line_of
 
 from soft_molds.cli import main
 
@@ -25,7 +26,7 @@ GOOD = ROOT / "recipes" / "seedling-finger.yaml"
 
 # Demo recipe from our own scenario: one finger of a greenhouse co-op's seedling gripper.
 # Bar x in [0, 70], y in [-8, 8], z in [-7, 7]; chambers 12 (y) by 8 (z) on the axis.
-BASE = (Path(__file__).resolve().parents[1] / "data" / "finger-test.yaml").read_text()
+BASE = FINGER_TEXT
 
 # "Billion laughs": nine levels of nine-fold aliases would expand to 9**9 strings.
 BOMB = """\
@@ -44,15 +45,8 @@ i: &i [*h, *h, *h, *h, *h, *h, *h, *h, *h]
 # pass the 20 000 limit, so the refusal points at e[1] on e's line.
 
 
-def edit(text: str, old: str, new: str) -> str:
-    assert text.count(old) == 1, f"{old!r} occurs {text.count(old)} times"
-    return text.replace(old, new)
 
 
-def line_of(text: str, needle: str) -> int:
-    hits = [i for i, ln in enumerate(text.splitlines(), 1) if needle in ln]
-    assert len(hits) == 1, f"{needle!r} on lines {hits}"
-    return hits[0]
 
 
 @dataclass(frozen=True)

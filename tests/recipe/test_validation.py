@@ -16,6 +16,7 @@ import time
 from pathlib import Path
 
 import pytest
+from recipe_text import FINGER_TEXT, edit, line_of
 
 from soft_molds.errors import RecipeError
 from soft_molds.recipe import load_recipe, recipe_from_text
@@ -25,23 +26,14 @@ ROOT = Path(__file__).resolve().parents[2]
 RECIPES = ROOT / "recipes"
 BUNDLED = sorted(p.stem for p in RECIPES.glob("*.yaml"))
 
-# Demo recipe from our own scenario: one finger of a greenhouse co-op's seedling gripper.
-# Bar: x in [0, 70], y in [-8, 8], z in [-7, 7], edges rounded 2 mm. Chambers: centred on
-# the axis, 12 mm along y and 8 mm along z, so side walls are 2 mm and top/bottom walls 3 mm.
-FINGER = (Path(__file__).resolve().parents[1] / "data" / "finger-test.yaml").read_text()
+# Demo recipe from our own scenario (tests/data/finger-test.yaml): bar x in [0, 70],
+# y in [-8, 8], z in [-7, 7], edges rounded 2 mm; chambers centred on the axis, 12 mm along
+# y and 8 mm along z, so side walls are 2 mm and top/bottom walls 3 mm.
+FINGER = FINGER_TEXT
 
 
-def edit(text: str, old: str, new: str) -> str:
-    """``text`` with the single occurrence of ``old`` replaced (fails if not exactly one)."""
-    assert text.count(old) == 1, f"{old!r} occurs {text.count(old)} times"
-    return text.replace(old, new)
 
 
-def line_of(text: str, needle: str) -> int:
-    """1-based line of the only line of ``text`` that contains ``needle``."""
-    hits = [i for i, ln in enumerate(text.splitlines(), 1) if needle in ln]
-    assert len(hits) == 1, f"{needle!r} on lines {hits}"
-    return hits[0]
 
 
 def problems_of(text: str) -> list:
