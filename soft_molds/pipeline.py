@@ -183,6 +183,7 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     label = recipe.label
     chord, angle = recipe.mesh.chord_mm, recipe.mesh.angle_deg
     up = tuple(_up(recipe))
+    down = tuple(-c + 0.0 for c in up)  # + 0.0: no -0.0 in the manifest
 
     say("body")
     with _stage(timings, "body", label):
@@ -200,14 +201,9 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     with _stage(timings, "shell", label):
         shells = mold.build_shells(recipe, cs, openings)
 
-    w = 2 if recipe.parting.axis == "z" else 1
-    down = [0.0, 0.0, 0.0]
-    down[w] = -1.0
-    rise = [0.0, 0.0, 0.0]
-    rise[w] = 1.0
     solids = (
-        ("shell-lower", "shell", shells.lower, tuple(down)),
-        ("shell-upper", "shell", shells.upper, tuple(rise)),
+        ("shell-lower", "shell", shells.lower, down),
+        ("shell-upper", "shell", shells.upper, up),
         ("core", "core", cs.core, (-1.0, 0.0, 0.0)),
         ("cast", "cast", cs.cast, None),
     )
@@ -220,5 +216,5 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
             report = check_mesh(mesh, name, vol)
         require_ok(report, label)
         parts.append(Part(name, role, solid, mesh, vol, pull, report))  # type: ignore[arg-type]
-    return MoldSet(recipe, tuple(parts), tuple(openings), shells.layout,
+    return MoldSet(recipe, tuple(parts), tuple(openings), cs.layout,
                    dict(cs.volumes_mm3), shells.funnel_diameter_mm, timings)

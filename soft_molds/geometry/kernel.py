@@ -126,18 +126,20 @@ def build_primitive(p: Primitive, part: str) -> cq.Shape:
     raise GeometryError("build primitive", f"unknown primitive {type(p).__name__}", part)
 
 
-def fuse(shapes: Sequence[cq.Shape], part: str, step: str) -> cq.Shape:
+def fuse(shapes: Sequence[cq.Shape], part: str, step: str,
+         volume_mm3: float | None = None) -> cq.Shape:
     """Fuse many solids in one boolean (one by one grows quadratically, kernel-notes)."""
     if not shapes:
         raise GeometryError(step, "nothing to fuse", part)
     if len(shapes) == 1:
-        return checked(shapes[0], part, step)
+        return checked(shapes[0], part, step, volume_mm3=volume_mm3)
     try:
         out = shapes[0].fuse(*shapes[1:])
     except Exception as exc:  # OCCT raises bare Standard_Failure subclasses
         raise GeometryError(step, f"fuse failed: {exc}", part) from exc
     shape, valid, vol = _clean(out)
-    return checked(shape, part, step, known_valid=valid, known_volume=vol)
+    return checked(shape, part, step, volume_mm3=volume_mm3, known_valid=valid,
+                   known_volume=vol)
 
 
 def cut(base: cq.Shape, tools: Sequence[cq.Shape], part: str, step: str,

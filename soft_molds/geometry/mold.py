@@ -12,7 +12,7 @@ from dataclasses import dataclass
 from typing import Protocol
 
 from ..errors import GeometryError
-from ..recipe.layout import MIN_LAND_MM, Layout, plan_layout
+from ..recipe.layout import MIN_LAND_MM, NOTCH_HALF_HEIGHT_MM, Layout, plan_layout
 from ..recipe.model import Recipe
 from . import kernel as k
 
@@ -24,7 +24,6 @@ CAVITY_OVERLAP_MM = 0.3
 @dataclass(frozen=True)
 class CastSolids:
     body: k.Shape
-    void_set: k.Shape      # voids + inlet socket: the air inside the cast
     core: k.Shape
     cast: k.Shape
     volumes_mm3: dict[str, float]  # exact (BRep) volumes: body, void_set, core, cast
@@ -44,8 +43,6 @@ class Opening(Protocol):
 class ShellSolids:
     lower: k.Shape
     upper: k.Shape
-    layout: Layout
-    peg_volume_mm3: float
     funnel_diameter_mm: float | None  # as cut (None: no sprue)
 
 
@@ -93,7 +90,7 @@ def build_cast(r: Recipe, body: k.Shape | None = None) -> CastSolids:
     cast = k.cut(body, [core], "cast", "cut voids from body",
                  volume_mm3=vols["body"] - vols["void_set"])
     vols["cast"] = k.volume(cast)
-    return CastSolids(body, void_set, core, cast, vols, layout)
+    return CastSolids(body, core, cast, vols, layout)
 
 
 def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> ShellSolids:
@@ -112,8 +109,8 @@ def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> Sh
             tools.append(k.cylinder(wa, f.world(u, v, w_lo - 1.0), w_hi - w_lo + 2.0,
                                     m.clamp_hole_mm / 2.0))
     for (u, v, du, dv) in lay.notches:
-        lo = f.world(u - du / 2, v - dv / 2, lay.parting_w - 1.5)
-        hi = f.world(u + du / 2, v + dv / 2, lay.parting_w + 1.5)
+        lo = f.world(u - du / 2, v - dv / 2, lay.parting_w - NOTCH_HALF_HEIGHT_MM)
+        hi = f.world(u + du / 2, v + dv / 2, lay.parting_w + NOTCH_HALF_HEIGHT_MM)
         tools.append(k.box(tuple(min(a, b) for a, b in zip(lo, hi)),
                            tuple(max(a, b) for a, b in zip(lo, hi))))
     shell = k.cut(block, tools, "shell", "cut cavity, core seat, clamp holes, pry notches")
@@ -128,9 +125,8 @@ def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> Sh
         sockets.append(k.frustum(wa, f.world(u, v, lay.parting_w - 0.01), h + c + 0.01,
                                  rk + c, rt + c))
     peg_vol = sum(frustum_volume(h, rk, rt) for _ in pegs)
-    before = k.volume(lower)
-    lower = k.fuse([lower, *pegs], "shell-lower", "add registration keys")
-    k.checked(lower, "shell-lower", "add registration keys", volume_mm3=before + peg_vol)
+    lower = k.fuse([lower, *pegs], "shell-lower", "add registration keys",
+                   volume_mm3=k.volume(lower) + peg_vol)
 
     up_tools = list(sockets)
     top = w_hi
@@ -156,4 +152,4 @@ def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> Sh
     if not k.volume(upper) < before:
         raise GeometryError("cut key sockets, sprue and vents", "nothing was removed",
                             "shell-upper")
-    return ShellSolids(lower, upper, lay, peg_vol, funnel_d)
+    return ShellSolids(lower, upper, funnel_d)
