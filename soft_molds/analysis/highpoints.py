@@ -67,6 +67,10 @@ class Opening:
     kind: str
     center_mm: tuple[float, float, float]
     radius_mm: float
+    floor_mm: float | None = None
+    """Lowest height (along up) of the cavity ceiling under the mouth, where the cut into
+    the mold must start so that no sliver of mold is left between the cut and the cavity
+    (``None``: the centre's height)."""
 
 
 def _unit(up: Sequence[float]) -> np.ndarray:
@@ -476,10 +480,104 @@ def plan_openings(
             if gap.max() <= far_vent_min_mm:
                 break
             i = _pick(pts, gap, largest=True)
-            where = (float(pts[i, 0]), float(pts[i, 1]), float(pts[i, 2]))
-            add(where)
-            gap = np.minimum(gap, np.linalg.norm(pts - pts[i], axis=1))
-    return tuple(openings)
+            q = np.round(_mouth_point(hp, pts[i], vent_radius_mm, u), 6) + 0.0
+            add((float(q[0]), float(q[1]), float(q[2])))
+            gap = np.minimum(gap, np.linalg.norm(pts - q, axis=1))
+    return _with_floors(mesh, u, openings)
+
+
+MOUTH_RAYS = 24
+
+
+def _with_floors(mesh: TriMesh, u: np.ndarray, openings: list[Opening]) -> tuple[Opening, ...]:
+    """Each opening with the lowest ceiling height under its mouth, found by rays sent down
+    onto the cast from above it (a ring at the mouth's radius and its centre)."""
+    from .rays import RayCaster
+
+    caster = RayCaster(mesh)
+    top = float((mesh.vertices @ u).max()) + 1.0
+    a = np.array([1.0, 0.0, 0.0]) if abs(u[0]) < 0.9 else np.array([0.0, 1.0, 0.0])
+    e1 = np.cross(u, a)
+    e1 /= np.linalg.norm(e1)
+    e2 = np.cross(u, e1)
+    ang = np.linspace(0.0, 2.0 * np.pi, MOUTH_RAYS, endpoint=False)
+    out = []
+    for op in openings:
+        c = np.asarray(op.center_mm)
+        ring = np.concatenate([[np.zeros(3)], op.radius_mm * (
+            np.cos(ang)[:, None] * e1 + np.sin(ang)[:, None] * e2)])
+        o = c + ring + (top - c @ u) * u
+        t, _ = caster.first_hit(o, -u)
+        hit = np.isfinite(t)
+        floor = float(np.round((o[hit] @ u - t[hit]).min(), 6)) if hit.any() else None
+        h = float(c @ u)
+        out.append(Opening(op.kind, op.center_mm, op.radius_mm,
+                           None if floor is None else min(floor, h)))
+    return tuple(out)
+
+
+def _mouth_point(hp: HighPoint, p: np.ndarray, radius_mm: float, u: np.ndarray) -> np.ndarray:
+    """A point near ``p`` (the nearest on a quarter-radius grid within three radii, else
+    the nearest on the way to the plateau's centre) whose whole vent mouth (a disc of
+    ``radius_mm`` seen along ``u``) lies over the plateau, i.e. at least ``radius_mm`` from
+    the plateau's rim in plan; ``p`` itself when there is none.
+
+    A mouth hanging over the rounded edge of a flat ceiling would leave a knife edge of
+    mold between the vent and the cavity, too thin to print and apt to break into the cast.
+    """
+    tris = hp.plateau_triangles_mm
+    if len(tris) == 0:
+        return p
+    a = np.array([1.0, 0.0, 0.0]) if abs(u[0]) < 0.9 else np.array([0.0, 1.0, 0.0])
+    e1 = np.cross(u, a)
+    e1 /= np.linalg.norm(e1)
+    e2 = np.cross(u, e1)
+    # Rim = plateau edges used by one plateau triangle (corners matched to 1e-6 mm).
+    ends = tris[:, [0, 1, 1, 2, 2, 0]].reshape(-1, 2, 3)
+    keys = np.round(ends * 1e6).astype(np.int64)
+    k0, k1 = keys[:, 0], keys[:, 1]
+    swap = _lex_less(k1, k0)[:, None]
+    pair = np.concatenate([np.where(swap, k1, k0), np.where(swap, k0, k1)], axis=1)
+    _, inv, cnt = np.unique(pair, axis=0, return_inverse=True, return_counts=True)
+    rim = ends[cnt[inv.reshape(-1)] == 1]
+    if len(rim) == 0:
+        return p
+    s0 = np.stack([rim[:, 0] @ e1, rim[:, 0] @ e2], axis=1)
+    seg = np.stack([rim[:, 1] @ e1, rim[:, 1] @ e2], axis=1) - s0
+    ll = np.maximum((seg * seg).sum(axis=1), 1e-18)
+    centre = np.asarray(hp.position_mm)
+    # Candidates: a plan grid around p (step a quarter radius, out to three radii), nearest
+    # first, then the straight way to the plateau's centre.
+    g = np.arange(-12, 13) * (radius_mm / 4.0)
+    gu, gv = np.meshgrid(g, g, indexing="ij")
+    grid = p[None, :] + gu.reshape(-1, 1) * e1 + gv.reshape(-1, 1) * e2
+    near = np.lexsort((gv.reshape(-1), gu.reshape(-1), np.round(np.hypot(gu, gv).reshape(-1), 9)))
+    steps = np.linspace(0.0, 1.0, 41)
+    q = np.concatenate([grid[near], p[None, :] + steps[:, None] * (centre - p)[None, :]])
+    q2 = np.stack([q @ e1, q @ e2], axis=1)
+    rel = q2[:, None, :] - s0[None]
+    t = np.clip((rel * seg[None]).sum(axis=2) / ll[None], 0.0, 1.0)
+    clear = np.linalg.norm(rel - t[..., None] * seg[None], axis=2).min(axis=1)
+    for k in np.flatnonzero(clear >= radius_mm - 1e-6).tolist():
+        inside, b1, b2 = _shadow_coords(tris, q[k], u)
+        if inside.any():
+            j = int(np.flatnonzero(inside)[0])
+            tri = tris[j]
+            on = tri[0] + b1[j] * (tri[1] - tri[0]) + b2[j] * (tri[2] - tri[0])
+            return q[k] + ((on - q[k]) @ u) * u  # on the plateau surface
+    return p
+
+
+def _lex_less(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Row-wise lexicographic a < b for (n, 3) integer arrays."""
+    lt = a < b
+    gt = a > b
+    out = np.zeros(len(a), dtype=bool)
+    decided = np.zeros(len(a), dtype=bool)
+    for c in range(a.shape[1]):
+        out |= ~decided & lt[:, c]
+        decided |= lt[:, c] | gt[:, c]
+    return out
 
 
 def unserved(

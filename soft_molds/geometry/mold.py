@@ -16,8 +16,9 @@ from ..recipe.layout import MIN_LAND_MM, NOTCH_HALF_HEIGHT_MM, Layout, plan_layo
 from ..recipe.model import Recipe
 from . import kernel as k
 
-#: The cut tools for sprue and vents start this far inside the cavity so they always
-#: open into it (the overlap is cavity, already empty), mm.
+#: The cut tools for sprue and vents start this far below the lowest point of the
+#: ceiling under their mouth, so they always open fully into the cavity and leave no
+#: sliver of mold where the ceiling falls away (the overlap is cavity, already empty), mm.
 CAVITY_OVERLAP_MM = 0.3
 
 
@@ -32,11 +33,14 @@ class CastSolids:
 
 class Opening(Protocol):
     """A sprue or vent: where it meets the cavity (world mm) and its radius (the
-    analysis stage plans them; any object with these attributes will do)."""
+    analysis stage plans them; any object with these attributes will do). ``floor_mm``
+    is the lowest ceiling height under the mouth along the parting axis (None: the
+    centre's)."""
 
     kind: str
     center_mm: tuple[float, float, float]
     radius_mm: float
+    floor_mm: float | None
 
 
 @dataclass(frozen=True)
@@ -133,7 +137,8 @@ def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> Sh
     funnel_d = None
     for op in openings:
         p = list(op.center_mm)
-        start_w = p[wa] - CAVITY_OVERLAP_MM
+        floor = getattr(op, "floor_mm", None)
+        start_w = (p[wa] if floor is None else floor) - CAVITY_OVERLAP_MM
         u, v = p[0], p[f.v_axis]
         if op.kind == "sprue":
             funnel_r = funnel_radius(lay, m, (u, v), op.radius_mm)

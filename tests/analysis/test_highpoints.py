@@ -15,6 +15,7 @@ import manifold3d as m3
 import numpy as np
 import pytest
 import trimesh
+from meshes import from_manifold, from_trimesh
 
 from soft_molds.analysis.highpoints import (
     HighPoint,
@@ -29,16 +30,6 @@ from soft_molds.meshdata import TriMesh
 UP = (0.0, 0.0, 1.0)
 
 
-def _from_manifold(man: m3.Manifold) -> TriMesh:
-    me = man.to_mesh()
-    return TriMesh(np.asarray(me.vert_properties)[:, :3].astype(np.float64),
-                   np.asarray(me.tri_verts).astype(np.int64))
-
-
-def _from_trimesh(t: trimesh.Trimesh) -> TriMesh:
-    return TriMesh(np.asarray(t.vertices), np.asarray(t.faces))
-
-
 # Two round bosses on a block: tops at 10 + 6 = 16 mm and 10 + 3 = 13 mm (closed form).
 BLOCK = (40.0, 20.0, 10.0)
 TALL = dict(axis=(10.0, 10.0), height=6.0, radius=4.0)
@@ -50,7 +41,7 @@ def _two_bumps() -> TriMesh:
     for b in (TALL, SHORT):
         cyl = m3.Manifold.cylinder(b["height"], b["radius"], circular_segments=24)
         body = body + cyl.translate([b["axis"][0], b["axis"][1], BLOCK[2]])
-    return _from_manifold(body)
+    return from_manifold(body)
 
 
 def _radial(p, axis) -> float:
@@ -58,7 +49,7 @@ def _radial(p, axis) -> float:
 
 
 def test_flat_box_has_one_high_point_at_top_face():
-    mesh = _from_trimesh(trimesh.creation.box(extents=(30.0, 20.0, 6.0)))
+    mesh = from_trimesh(trimesh.creation.box(extents=(30.0, 20.0, 6.0)))
     (hp,) = find_high_points(mesh, UP)
     assert isinstance(hp, HighPoint)
     assert hp.height_mm == pytest.approx(3.0)  # closed form: half the 6 mm height
@@ -93,16 +84,16 @@ def test_low_persistence_bump_is_ignored():
     body = m3.Manifold.cube(BLOCK)
     for h, x in ((6.0, 10.0), (0.3, 30.0)):
         body = body + m3.Manifold.cylinder(h, 4.0, circular_segments=24).translate([x, 10, 10])
-    hps = find_high_points(_from_manifold(body), UP)
+    hps = find_high_points(from_manifold(body), UP)
     assert [round(h.height_mm, 4) for h in hps] == [16.0]
-    hps_fine = find_high_points(_from_manifold(body), UP, persistence_mm=0.2)
+    hps_fine = find_high_points(from_manifold(body), UP, persistence_mm=0.2)
     assert [round(h.height_mm, 4) for h in hps_fine] == [16.0, 10.3]
 
 
 def test_internal_void_rim_is_not_a_high_point():
     # Cavity normals point into the void (out of the silicone) after the difference.
     body = m3.Manifold.cube(BLOCK) - m3.Manifold.cube([20.0, 10.0, 4.0]).translate([10, 5, 3])
-    mesh = _from_manifold(body)
+    mesh = from_manifold(body)
     assert mesh.volume_mm3() == pytest.approx(40 * 20 * 10 - 20 * 10 * 4)  # closed form
     hps = find_high_points(mesh, UP)
     assert len(hps) == 1
@@ -113,7 +104,7 @@ def test_horizontal_cylinder_high_point_at_radius_within_sagitta():
     r, n = 5.0, 32
     cyl = trimesh.creation.cylinder(radius=r, height=30.0, sections=n)
     cyl.apply_transform(trimesh.transformations.rotation_matrix(math.pi / 2, [0, 1, 0]))
-    (hp,) = find_high_points(_from_trimesh(cyl), UP)
+    (hp,) = find_high_points(from_trimesh(cyl), UP)
     # an inscribed n-gon's top lies between the chord at r cos(pi/n) and the circle (sagitta)
     assert r * math.cos(math.pi / n) - 1e-9 <= hp.height_mm <= r + 1e-9
 
@@ -123,7 +114,7 @@ def test_tilted_box_high_point_at_highest_corner():
     th = math.radians(10.0)
     box = trimesh.creation.box(extents=(a, b, c))
     box.apply_transform(trimesh.transformations.rotation_matrix(th, [0, 1, 0]))
-    (hp,) = find_high_points(_from_trimesh(box), UP)
+    (hp,) = find_high_points(from_trimesh(box), UP)
     # rotation about y: z' = -x sin(th) + z cos(th); max at x = -a/2, z = +c/2
     expected = a / 2 * math.sin(th) + c / 2 * math.cos(th)
     assert hp.height_mm == pytest.approx(expected, abs=1e-9)
@@ -140,7 +131,7 @@ def test_up_vector_is_honoured():
         cyl = m3.Manifold.cylinder(bump["height"], bump["radius"], circular_segments=24)
         rot = rot + cyl.translate([bump["axis"][0], bump["axis"][1], BLOCK[2]])
     rot = rot.rotate([0.0, 90.0, 0.0])  # +z -> +x
-    hps = find_high_points(_from_manifold(rot), (1.0, 0.0, 0.0))
+    hps = find_high_points(from_manifold(rot), (1.0, 0.0, 0.0))
     assert [round(h.height_mm, 4) for h in hps] == [16.0, 13.0]
 
 
@@ -160,22 +151,23 @@ def test_plan_openings_on_two_bumps_sprue_on_higher_one_vent_on_lower():
 def test_long_flat_bar_sprue_at_centre_vents_at_both_far_ends():
     # 100 x 10 x 5 bar, subdivided once so the top face has a centre vertex.
     bar = trimesh.creation.box(extents=(100.0, 10.0, 5.0)).subdivide()
-    ops = plan_openings(_from_trimesh(bar), UP, sprue_radius_mm=3.0, vent_radius_mm=1.0)
+    ops = plan_openings(from_trimesh(bar), UP, sprue_radius_mm=3.0, vent_radius_mm=1.0)
     assert [o.kind for o in ops] == ["sprue", "vent", "vent"]
     sprue, first, second = ops
     assert sprue.center_mm == pytest.approx((0.0, 0.0, 2.5), abs=1e-9)
-    # the farthest top vertex is a corner: sqrt(50^2 + 5^2) from the centre (closed form);
-    # then a corner of the other end (also sqrt(50^2 + 5^2) from the sprue)
-    assert math.dist(sprue.center_mm, first.center_mm) == pytest.approx(math.hypot(50.0, 5.0))
-    assert first.center_mm[0] * second.center_mm[0] == pytest.approx(-2500.0)
-    assert abs(second.center_mm[1]) == pytest.approx(5.0)
+    # the farthest top vertex is a corner (50, 5); the vent goes to the nearest point whose
+    # 1 mm mouth stays on the top face, one radius in from both edges: (49, 4) (closed
+    # form); then the same at a corner of the other end
+    assert np.abs(first.center_mm) == pytest.approx((49.0, 4.0, 2.5), abs=1e-6)
+    assert np.abs(second.center_mm) == pytest.approx((49.0, 4.0, 2.5), abs=1e-6)
+    assert first.center_mm[0] * second.center_mm[0] < 0.0
     # afterwards every top vertex is within far_vent_min_mm (15 mm) of an opening
     top = bar.vertices[np.isclose(bar.vertices[:, 2], 2.5)]
     centres = np.array([o.center_mm for o in ops])
     assert np.linalg.norm(top[:, None] - centres[None], axis=2).min(axis=1).max() <= 15.0
     # a short bar (plateau within far_vent_min_mm of the sprue) gets no extra vent
     short = trimesh.creation.box(extents=(20.0, 10.0, 5.0)).subdivide()
-    assert len(plan_openings(_from_trimesh(short), UP, 3.0, 1.0)) == 1
+    assert len(plan_openings(from_trimesh(short), UP, 3.0, 1.0)) == 1
 
 
 def test_unserved_with_only_the_sprue_is_exactly_the_lower_bump():
@@ -279,7 +271,7 @@ def test_result_does_not_depend_on_vertex_or_face_order_or_welding():
 
 
 def test_bad_parameters_are_refused():
-    mesh = _from_trimesh(trimesh.creation.box(extents=(1.0, 1.0, 1.0)))
+    mesh = from_trimesh(trimesh.creation.box(extents=(1.0, 1.0, 1.0)))
     with pytest.raises(ValueError):
         find_high_points(mesh, (0.0, 0.0, 0.0))
     with pytest.raises(ValueError):
@@ -302,7 +294,7 @@ def test_rounded_void_corners_and_thin_plates_trap_no_air():
     plate = m3.Manifold.cube([20.0, 10.0, 1.0]).translate([10, 5, 4])
     rounded = (m3.Manifold.cube([6.0, 6.0, 4.0]).translate([-3, -3, -2])
                .minkowski_sum(m3.Manifold.sphere(0.8, 16))).translate([8, 14, 5])
-    mesh = _from_manifold(body - plate - rounded)
+    mesh = from_manifold(body - plate - rounded)
     hps = find_high_points(mesh, UP)
     assert len(hps) == 1
     assert hps[0].height_mm == pytest.approx(BLOCK[2])
