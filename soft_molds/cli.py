@@ -1,7 +1,8 @@
 """Command line: ``soft-molds build`` and ``soft-molds check``.
 
-Exit status: 0 success; 1 a mold could not be built or a mesh failed its integrity check;
-2 bad input (recipe problems, one line each, no traceback, nothing written).
+Exit status: 0 success; 1 a mold could not be built, a mesh failed its integrity check or
+a manufacturability check failed (``check --strict``: or warned); 2 bad input (recipe
+problems, one line each, no traceback, nothing written).
 """
 
 from __future__ import annotations
@@ -31,6 +32,19 @@ def _fmt_part(p) -> str:
     verdict = "ok" if p.report.ok else "FAILED"
     return (f"  {p.name:<12} {p.role:<5} {p.brep_volume_mm3:>11.1f} mm3 {p.mesh.triangle_count:>8} "
             f"triangles  {size} mm  pull {pull:<3} {verdict}")
+
+
+def _findings_table(findings, show_info: bool = True) -> list[str]:
+    """The review's findings as aligned lines, errors first."""
+    rows = [f for f in findings if show_info or f.severity != "info"]
+    n = {s: sum(1 for f in findings if f.severity == s) for s in ("error", "warning", "info")}
+    head = (f"  checks: {n['error']} error(s), {n['warning']} warning(s), {n['info']} note(s)")
+    if not rows:
+        return [head]
+    width = max(len(f.check) for f in rows)
+    pw = max(len(f.part) for f in rows)
+    return [head] + [f"  {f.severity.upper() if f.severity != 'info' else 'note':<7} "
+                     f"{f.check:<{width}} {f.part:<{pw}} {f.message}" for f in rows]
 
 
 def _axis_name(d: Sequence[float]) -> str:
@@ -64,20 +78,31 @@ def cmd_build(args: argparse.Namespace) -> int:
     t = time.perf_counter()
     try:
         molds = build(r)
-        paths = molds.export(args.out)
     except SoftMoldsError as exc:
         print(f"error: {r.source}: {exc}", file=sys.stderr)
         return 1
-    except OSError as exc:
-        print(f"error: cannot write under {args.out}: {exc.strerror or exc}", file=sys.stderr)
-        return 1
-    print(f"{r.name} {r.label}: built in {time.perf_counter() - t:.1f} s -> "
-          f"{molds.output_dir(args.out)}")
+    print(f"{r.name} {r.label}: built in {time.perf_counter() - t:.1f} s")
     for p in molds.parts:
         print(_fmt_part(p))
     print(f"  silicone {molds.silicone_volume_mm3 / 1000.0:.2f} cm3; sprue and vents: "
           + ", ".join(o.kind for o in molds.openings))
-    print(f"  wrote {len(paths)} files")
+    if molds.parting_candidates:
+        pa = molds.recipe.parting
+        print(f"  parting plane chosen: {pa.axis} = {pa.offset_mm:g} mm "
+              f"(of {len(molds.parting_candidates)} candidates)")
+    for line in _findings_table(molds.findings, show_info=args.verbose):
+        print(line)
+    if molds.errors and not args.force:
+        print(f"error: {r.source}: {len(molds.errors)} check(s) failed; nothing written "
+              "(fix the recipe, or pass --force to write the files anyway)", file=sys.stderr)
+        return 1
+    try:
+        paths = molds.export(args.out)
+    except OSError as exc:
+        print(f"error: cannot write under {args.out}: {exc.strerror or exc}", file=sys.stderr)
+        return 1
+    forced = " despite failed checks (--force)" if molds.errors else ""
+    print(f"  wrote {len(paths)} files to {molds.output_dir(args.out)}{forced}")
     for line in CAUTIONS:
         print(line)
     return 0
@@ -97,11 +122,17 @@ def cmd_check(args: argparse.Namespace) -> int:
             failed += 1
             print(f"FAIL {r.source}: {exc}")
             continue
-        print(f"ok   {r.source}: {r.name} {r.label}, {len(molds.parts)} parts closed and "
+        bad = bool(molds.errors) or (args.strict and bool(molds.warnings))
+        failed += bad
+        verdict = "FAIL" if bad else "ok  "
+        print(f"{verdict} {r.source}: {r.name} {r.label}, {len(molds.parts)} parts closed and "
               f"consistent")
         for p in molds.parts:
             print(_fmt_part(p))
-    print(f"{len(recipes) - failed} of {len(recipes)} recipes passed")
+        for line in _findings_table(molds.findings, show_info=args.verbose):
+            print(line)
+    what = "errors or warnings" if args.strict else "errors"
+    print(f"{len(recipes) - failed} of {len(recipes)} recipes passed (no {what})")
     return 1 if failed else 0
 
 
@@ -133,16 +164,26 @@ def make_parser() -> argparse.ArgumentParser:
     ap.add_argument("--version", action="version", version=f"soft-molds {__version__}")
     sub = ap.add_subparsers(dest="command", required=True)
     b = sub.add_parser("build", help="build one recipe and write its files",
-                       description="Build RECIPE and write STL, STEP and manifest.json "
-                                   "under DIR/<recipe>/<label>/.")
+                       description="Build RECIPE, run the manufacturability checks and write "
+                                   "STL, STEP and manifest.json under DIR/<recipe>/<label>/. "
+                                   "Nothing is written when a check fails, unless --force.")
     b.add_argument("recipe", metavar="RECIPE", help="path to a recipe YAML file")
     b.add_argument("--out", default="out", metavar="DIR", help="output root (default: out)")
+    b.add_argument("--force", action="store_true",
+                   help="write the files even when a check fails (the manifest records it)")
+    b.add_argument("-v", "--verbose", action="store_true",
+                   help="also list the checks' notes (figures that need no action)")
     b.set_defaults(func=cmd_build)
     c = sub.add_parser("check", help="build recipes in memory and check every mesh",
-                       description="Build each RECIPE in memory (nothing written) and check "
-                                   "that every part is a closed, consistent volume. Exit 1 "
-                                   "when any fails, 2 on bad input.")
+                       description="Build each RECIPE in memory (nothing written), check "
+                                   "that every part is a closed, consistent volume and run "
+                                   "the manufacturability checks. Exit 1 when a mesh or a "
+                                   "check fails (with --strict, also on a warning), 2 on bad "
+                                   "input.")
     c.add_argument("recipes", nargs="+", metavar="RECIPE", help="recipe YAML files")
+    c.add_argument("--strict", action="store_true", help="fail on warnings too")
+    c.add_argument("-v", "--verbose", action="store_true",
+                   help="also list the checks' notes (figures that need no action)")
     c.set_defaults(func=cmd_check)
     ref = sub.add_parser("reference", help="print every recipe key with unit, default, range",
                          description="Print the recipe reference (Markdown), or rewrite the "

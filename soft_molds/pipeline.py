@@ -11,14 +11,15 @@ import os
 import time
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Any
 
 from .analysis.integrity import MeshReport, check_mesh, require_ok
 from .errors import GeometryError, SoftMoldsError
 from .meshdata import TriMesh
-from .recipe.model import Recipe
+from .recipe.layout import plan_layout
+from .recipe.model import Parting, Recipe
 from .version import __version__
 
 
@@ -58,6 +59,20 @@ class MoldSet:
     volumes_mm3: dict[str, float]  # exact volumes of body, void_set, core, cast
     funnel_diameter_mm: float | None
     timings_s: dict[str, float] = field(default_factory=dict)
+    review: Any = None             # analysis.review.Review: every manufacturability finding
+    parting_candidates: tuple[Any, ...] = ()  # PlaneScore per plane tried (parting: auto)
+
+    @property
+    def findings(self) -> tuple[Any, ...]:
+        return () if self.review is None else self.review.findings
+
+    @property
+    def errors(self) -> tuple[Any, ...]:
+        return tuple(f for f in self.findings if f.severity == "error")
+
+    @property
+    def warnings(self) -> tuple[Any, ...]:
+        return tuple(f for f in self.findings if f.severity == "warning")
 
     def part(self, name: str) -> Part:
         for p in self.parts:
@@ -114,10 +129,24 @@ class MoldSet:
                               "at_mm": [round(c, 4) for c in o.center_mm],
                               "diameter_mm": round(2 * o.radius_mm, 4)} for o in self.openings],
             },
-            "parting": {"axis": r.parting.axis, "offset_mm": r.parting.offset_mm},
+            "parting": {
+                "axis": r.parting.axis, "offset_mm": r.parting.offset_mm,
+                "chosen_by": "analysis" if self.parting_candidates else "recipe",
+                "candidates": [
+                    {"axis": c.axis, "offset_mm": round(c.offset_mm, 4) + 0.0,
+                     "locked_area_mm2": round(c.locked_area_mm2, 3) + 0.0,
+                     "core_locked_area_mm2": round(c.rigid_locked_area_mm2, 3) + 0.0,
+                     "min_draft_deg": round(c.min_draft_deg, 3) + 0.0,
+                     "rejected": c.rule, "chosen": i == 0}
+                    for i, c in enumerate(self.parting_candidates)],
+            },
             "registration_keys_uv_mm": [[round(a, 4) for a in k] for k in lay.keys_uv],
             "clamp": {"bolt": r.mold.clamp_bolt, "hole_diameter_mm": r.mold.clamp_hole_mm,
                       "holes_uv_mm": [[round(a, 4) for a in b] for b in lay.bolts_uv]},
+            "checks": [f.to_json() for f in self.findings],
+            "verdict": ("error" if self.errors else "warning" if self.warnings else "ok"),
+            "print": {name: _print_json(plan) for name, plan in
+                      (self.review.prints.items() if self.review is not None else ())},
             "params": r.params(),
         }
 
@@ -148,6 +177,18 @@ class MoldSet:
         return paths
 
 
+def _print_json(plan: Any) -> dict[str, Any]:
+    return {
+        "down": [round(c, 6) + 0.0 for c in plan.down],
+        "turn_deg": round(plan.turn_deg, 3) + 0.0,
+        "size_mm": [round(c, 3) + 0.0 for c in plan.size_mm],
+        "fits": plan.fits,
+        "contact_area_mm2": round(plan.contact_area_mm2, 2) + 0.0,
+        "overhang_area_mm2": round(plan.overhang_area_mm2, 2) + 0.0,
+        "min_wall_mm": round(plan.min_wall_mm, 3) + 0.0,
+    }
+
+
 def _up(r: Recipe) -> list[float]:
     return [0.0, 0.0, 1.0] if r.parting.axis == "z" else [0.0, 1.0, 0.0]
 
@@ -175,6 +216,7 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     0.5 % of its BRep volume.
     """
     from .analysis.highpoints import plan_openings
+    from .analysis.review import review
     from .geometry import mold
     from .geometry.tessellate import tessellate
 
@@ -182,8 +224,6 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     timings: dict[str, float] = {}
     label = recipe.label
     chord, angle = recipe.mesh.chord_mm, recipe.mesh.angle_deg
-    up = tuple(_up(recipe))
-    down = tuple(-c + 0.0 for c in up)  # + 0.0: no -0.0 in the manifest
 
     say("body")
     with _stage(timings, "body", label):
@@ -193,6 +233,15 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
         cs = mold.build_cast(recipe, body)
     with _stage(timings, "tessellate", label):
         cast_mesh = tessellate(cs.cast, chord, angle, "cast")
+        core_mesh = tessellate(cs.core, chord, angle, "core")
+    candidates: tuple[Any, ...] = ()
+    if recipe.parting.auto:
+        say("parting plane")
+        with _stage(timings, "analysis", label):
+            recipe, candidates = _choose_parting(recipe, cast_mesh, core_mesh, cs)
+        cs = replace(cs, layout=plan_layout(recipe))
+    up = tuple(_up(recipe))
+    down = tuple(-c + 0.0 for c in up)  # + 0.0: no -0.0 in the manifest
     say("sprue and vents")
     with _stage(timings, "features", label):
         openings = plan_openings(cast_mesh, up, recipe.mold.sprue_diameter_mm / 2.0,
@@ -211,10 +260,41 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     say("tessellate and check")
     for name, role, solid, pull in solids:
         with _stage(timings, "tessellate", label):
-            mesh = cast_mesh if name == "cast" else tessellate(solid, chord, angle, name)
+            mesh = {"cast": cast_mesh, "core": core_mesh}.get(name) or tessellate(
+                solid, chord, angle, name)
             vol = cs.volumes_mm3.get(name) or float(solid.Volume())
             report = check_mesh(mesh, name, vol)
         require_ok(report, label)
         parts.append(Part(name, role, solid, mesh, vol, pull, report))  # type: ignore[arg-type]
+    say("manufacturability checks")
+    with _stage(timings, "analysis", label):
+        rev = review(recipe, cast_mesh, {p.name: (p.mesh, p.pull_dir) for p in parts
+                                         if p.role != "cast"},
+                     up, cs.layout.block_lo[0], openings)
     return MoldSet(recipe, tuple(parts), tuple(openings), cs.layout,
-                   dict(cs.volumes_mm3), shells.funnel_diameter_mm, timings)
+                   dict(cs.volumes_mm3), shells.funnel_diameter_mm, timings, rev, candidates)
+
+
+def _choose_parting(recipe: Recipe, cast_mesh: TriMesh, core_mesh: TriMesh, cs: Any
+                    ) -> tuple[Recipe, tuple[Any, ...]]:
+    """The recipe with the best candidate plane filled in, and every candidate's score."""
+    from .analysis.demold import Surface
+    from .analysis.review import core_print_facets, plane_candidates, rank_planes, void_facets
+    from .recipe.sanity import parting_problems
+
+    def rule(axis: str, offset: float) -> str | None:
+        trial = replace(recipe, parting=Parting(axis, offset))
+        problems = parting_problems(trial, lambda _path: None)
+        return problems[0].message if problems else None
+
+    cast_s, core_s = Surface(cast_mesh), Surface(core_mesh)
+    contact = ~void_facets(recipe, cast_s)
+    ranked = rank_planes(cast_s, contact, core_s,
+                         core_print_facets(core_s, cs.layout.block_lo[0]),
+                         plane_candidates(recipe, cast_mesh), rule,
+                         recipe.checks.min_draft_deg)
+    best = ranked[0]
+    if not best.usable:
+        raise GeometryError("choose the parting plane", "no candidate plane releases the "
+                            f"cast: best {best.axis} = {best.offset_mm:g} mm {best.rule}")
+    return replace(recipe, parting=Parting(best.axis, best.offset_mm)), tuple(ranked)

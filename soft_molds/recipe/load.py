@@ -9,7 +9,16 @@ from pathlib import Path
 
 from ..errors import Problem, RecipeError
 from .fields import MapReader, join_path
-from .model import Checks, Inlet, MeshSettings, MoldSettings, Parting, Recipe
+from .model import (
+    Checks,
+    Inlet,
+    Material,
+    MeshSettings,
+    MoldSettings,
+    Parting,
+    PrinterSettings,
+    Recipe,
+)
 from .registry import body_kinds, void_kinds
 from .sanity import sanity_problems
 from .schema import BLOCKS, TOP_FIELDS
@@ -126,7 +135,15 @@ def recipe_from_node(root: Node, source: str, default_name: str = "recipe") -> R
     if parting_v["axis"] is None:
         _, w, h = body.size_mm()
         parting_v["axis"] = "y" if w < h else "z"
-    if parting_v["offset_mm"] is None:
+    if parting_v["axis"] == "auto":
+        if parting_v["offset_mm"] is not None:
+            problems.append(Problem("parting.offset_mm", "is set while parting.axis is auto",
+                                    _lines(root).get("parting.offset_mm"),
+                                    parting_v["offset_mm"],
+                                    "leave it out (the build chooses the plane) or give axis "
+                                    "y or z"))
+            raise RecipeError(problems, source)
+    elif parting_v["offset_mm"] is None:
         # The core print must be seated in both halves, so the plane runs through the
         # socket's axis; for centred voids that is the body's mid-plane.
         cy, cz = inlet_v["center_mm"]
@@ -136,7 +153,8 @@ def recipe_from_node(root: Node, source: str, default_name: str = "recipe") -> R
         name=name, label=label, description=vals["description"] or "", body=body,
         voids=tuple(voids), inlet=Inlet(**inlet_v), parting=Parting(**parting_v),
         mold=MoldSettings(**blocks["mold"]), checks=Checks(**blocks["checks"]),
-        mesh=MeshSettings(**blocks["mesh"]), source=source)
+        mesh=MeshSettings(**blocks["mesh"]), material=Material(**blocks["material"]),
+        printer=PrinterSettings(**blocks["printer"]), source=source)
 
     lines = _lines(root)
     problems.extend(sanity_problems(recipe, lines))

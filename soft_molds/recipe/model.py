@@ -34,10 +34,18 @@ class Inlet:
 
 @dataclass(frozen=True)
 class Parting:
-    """Parting plane: normal to ``axis`` ("y" or "z") at ``offset_mm`` along it."""
+    """Parting plane: normal to ``axis`` ("y" or "z") at ``offset_mm`` along it.
+
+    ``axis == "auto"`` (with ``offset_mm`` None) asks the build to choose the plane; the
+    mold set then carries the recipe with the chosen plane filled in.
+    """
 
     axis: str
-    offset_mm: float
+    offset_mm: float | None
+
+    @property
+    def auto(self) -> bool:
+        return self.axis == "auto"
 
 
 @dataclass(frozen=True)
@@ -61,6 +69,37 @@ class MoldSettings:
 @dataclass(frozen=True)
 class Checks:
     min_wall_mm: float        # thinnest silicone wall accepted anywhere
+    min_draft_deg: float      # walls with less draft are reported (deg)
+    core_safety_factor: float  # on the elongation at break, for pulling the core out
+    core_slenderness_max: float  # free length / narrowest width of the core
+
+
+@dataclass(frozen=True)
+class Material:
+    """The silicone: a grade of the shipped table, with an optional measured elongation."""
+
+    grade: str
+    elongation_pct: float | None
+
+    @property
+    def elongation_at_break_pct(self) -> float:
+        from .materials import grades
+
+        if self.elongation_pct is not None:
+            return self.elongation_pct
+        return grades()[self.grade].elongation_pct
+
+
+@dataclass(frozen=True)
+class PrinterSettings:
+    """FDM printer limits: bed (x, y) and height (mm), nozzle (mm), wall perimeters and the
+    steepest overhang from vertical (deg)."""
+
+    bed_mm: tuple[float, float]
+    height_mm: float
+    nozzle_mm: float
+    perimeters: int
+    overhang_deg: float
 
 
 @dataclass(frozen=True)
@@ -83,6 +122,8 @@ class Recipe:
     mold: MoldSettings
     checks: Checks
     mesh: MeshSettings
+    material: Material
+    printer: PrinterSettings
     source: str = ""
 
     def body_primitives(self) -> tuple[Primitive, ...]:
@@ -108,6 +149,8 @@ class Recipe:
             "mold": asdict(self.mold),
             "checks": asdict(self.checks),
             "mesh": asdict(self.mesh),
+            "material": asdict(self.material),
+            "printer": asdict(self.printer),
         }
 
     def params_sha256(self) -> str:

@@ -98,6 +98,17 @@ def sanity_problems(r: Recipe, lines: dict[str, int]) -> list[Problem]:
                                f"(centre ({cy:g}, {cz:g}), radius {sock_r:g} mm, depth "
                                f"{r.inlet.socket_depth_mm:g} mm)"))
 
+    if not r.parting.auto:
+        out.extend(parting_problems(r, line))
+    return out
+
+
+def parting_problems(r: Recipe, line) -> list[Problem]:
+    """The parting plane's own rules (through the socket axis and the widest section) and
+    the mold-block rules that depend on it; ``line(path)`` gives a field's source line."""
+    out: list[Problem] = []
+    body = r.body_primitives()
+    cy, cz = r.inlet.center_mm
     inlet_on_axis = cz if r.parting.axis == "z" else cy
     parting_line = line("parting.offset_mm") or line("parting") or line("")
     if abs(inlet_on_axis - r.parting.offset_mm) > EPS:

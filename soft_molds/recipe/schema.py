@@ -2,7 +2,8 @@
 
 from __future__ import annotations
 
-from .fields import Field, choice, number, pair, text
+from .fields import Field, choice, integer, number, pair, text
+from .materials import GRADE_NAMES
 
 TOP_FIELDS: tuple[Field, ...] = (
     text("name", "recipe name: lower case letters, digits, - and _ (the output folder); "
@@ -19,10 +20,13 @@ INLET_FIELDS: tuple[Field, ...] = (
 )
 
 PARTING_FIELDS: tuple[Field, ...] = (
-    choice("axis", "normal of the parting plane (up in pour orientation); default: the "
-           "body's thinner cross direction (z on a tie)", ("y", "z"), None),
+    choice("axis", "normal of the parting plane (up in pour orientation); `auto` lets the "
+           "analysis choose the plane with the least locked undercut, then the most draft; "
+           "default: the body's thinner cross direction (z on a tie)", ("y", "z", "auto"),
+           None),
     number("offset_mm", "position of the parting plane along its axis; default: through the "
-           "tube socket's axis (the body's mid-plane when the voids are centred)", None,
+           "tube socket's axis (the body's mid-plane when the voids are centred); not "
+           "allowed with axis auto", None,
            lo=-500.0, hi=500.0, lo_open=False),
 )
 
@@ -51,6 +55,31 @@ MOLD_FIELDS: tuple[Field, ...] = (
 CHECKS_FIELDS: tuple[Field, ...] = (
     number("min_wall_mm", "thinnest silicone wall accepted (common practice ~1 mm for small "
            "actuators)", 1.0, lo=0.3, hi=20.0, lo_open=False),
+    number("min_draft_deg", "draft below which a wall is reported (common practice 0.5-2 "
+           "deg for rigid molds)", 0.5, unit="deg", lo=0.0, hi=10.0, lo_open=False),
+    number("core_safety_factor", "safety factor on the silicone's elongation at break when "
+           "the core is pulled out through the inlet", 2.0, unit="", lo=1.0, hi=10.0,
+           lo_open=False),
+    number("core_slenderness_max", "free length of the core over its narrowest width above "
+           "which it is reported as likely to bend or break (rule of thumb, from memory)",
+           15.0, unit="", lo=2.0, hi=200.0, lo_open=False),
+)
+
+MATERIAL_FIELDS: tuple[Field, ...] = (
+    choice("grade", "platinum-cure silicone grade from the shipped table (typical values, "
+           "from memory)", GRADE_NAMES, "A10"),
+    number("elongation_pct", "elongation at break of your silicone, measured or from its "
+           "data sheet; default: the grade's", None, unit="%", lo=10.0, hi=2000.0),
+)
+
+PRINTER_FIELDS: tuple[Field, ...] = (
+    pair("bed_mm", "printable area of the bed (x, y)", (220.0, 220.0), lo=10.0, hi=2000.0),
+    number("height_mm", "largest printable height", 250.0, lo=10.0, hi=2000.0),
+    number("nozzle_mm", "nozzle (extrusion width) used for mold walls", 0.4, lo=0.1, hi=2.0),
+    integer("perimeters", "perimeters a mold wall must hold (common practice: 4 for "
+            "watertight FDM walls)", 4, lo=1, hi=20),
+    number("overhang_deg", "steepest printable overhang, from vertical (common practice "
+           "45)", 45.0, unit="deg", lo=10.0, hi=80.0),
 )
 
 MESH_FIELDS: tuple[Field, ...] = (
@@ -65,5 +94,7 @@ BLOCKS: dict[str, tuple[Field, ...]] = {
     "parting": PARTING_FIELDS,
     "mold": MOLD_FIELDS,
     "checks": CHECKS_FIELDS,
+    "material": MATERIAL_FIELDS,
+    "printer": PRINTER_FIELDS,
     "mesh": MESH_FIELDS,
 }
