@@ -291,7 +291,7 @@ def _choose_parting(recipe: Recipe, cast_mesh: TriMesh, core_mesh: TriMesh, cs: 
     contact = ~void_facets(recipe, cast_s)
     ranked = rank_planes(cast_s, contact, core_s,
                          core_print_facets(core_s, cs.layout.block_lo[0]),
-                         plane_candidates(recipe, cast_mesh), rule,
+                         plane_candidates(recipe), rule,
                          recipe.checks.min_draft_deg)
     best = ranked[0]
     if not best.usable:

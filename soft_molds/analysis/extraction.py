@@ -83,8 +83,8 @@ def _hull_perimeter_width(p: np.ndarray) -> tuple[float, float, np.ndarray]:
 
 
 def core_extraction(core: TriMesh, pull: Sequence[float], opening_point: Sequence[float],
-                    opening_perimeter_mm: float, step_mm: float = 0.25,
-                    max_sections: int = 2000) -> Extraction:
+                    opening_perimeter_mm: float, step_mm: float = 0.5,
+                    max_sections: int = 1000) -> Extraction:
     """Sweep sections of ``core`` normal to ``pull`` from the opening plane to the far end
     (the part of the core that must come through the opening) and return the worst."""
     d = np.asarray(pull, dtype=np.float64)

@@ -74,20 +74,18 @@ def core_print_facets(core: Surface, block_lo_x: float, tol_mm: float = 0.05) ->
     return (x > block_lo_x + tol_mm) & (x < -tol_mm)
 
 
-def plane_candidates(r: Recipe, cast: TriMesh) -> list[tuple[str, float]]:
+def plane_candidates(r: Recipe) -> list[tuple[str, float]]:
     """Planes worth trying for ``parting: auto``: for each cross axis (the body's thinner
-    direction first), the plane through the socket axis, the body's mid-plane (its widest
-    section for the symmetric kinds) and planes a quarter and a half of the way from the
-    mid-plane to the surface on either side."""
-    lo, hi = cast.bbox_mm()
+    direction first), the plane through the socket axis, the body's mid-plane (body kinds
+    are centred on the x axis; the mid-plane is their widest section) and planes a quarter
+    and a half of the way from the mid-plane to the surface on either side."""
     cy, cz = r.inlet.center_mm
     _, w, h = r.body.size_mm()
     axes = ("y", "z") if w < h else ("z", "y")
     out: list[tuple[str, float]] = []
     for ax in axes:
-        i = 1 if ax == "y" else 2
-        mid = (lo[i] + hi[i]) / 2.0
-        half = (hi[i] - lo[i]) / 2.0
+        mid = 0.0
+        half = (w if ax == "y" else h) / 2.0
         for off in (cy if ax == "y" else cz, mid, mid - 0.25 * half, mid + 0.25 * half,
                     mid - 0.5 * half, mid + 0.5 * half):
             off = round(off, 6) + 0.0

@@ -1,0 +1,44 @@
+"""Exit status and files of ``build`` and ``check`` when the manufacturability checks
+fail or warn (test recipes of the demo scenario)."""
+
+from __future__ import annotations
+
+import json
+
+from recipe_text import FINGER_TEXT, edit
+
+from soft_molds.cli import main
+
+#: The test finger in a silicone that stretches only 300 %: pulling the core out tears the
+#: inlet (allowed stretch 1 + 3 / 2 = 2.5 against 3.05 needed; hand arithmetic).
+STIFF = edit(FINGER_TEXT, "checks:\n", "material:\n  elongation_pct: 300\nchecks:\n")
+
+
+def test_build_refuses_to_write_on_a_failed_check_and_force_writes_it(tmp_path, capsys):
+    recipe = tmp_path / "stiff.yaml"
+    recipe.write_text(STIFF)
+    out = tmp_path / "out"
+    assert main(["build", str(recipe), "--out", str(out)]) == 1
+    cap = capsys.readouterr()
+    assert "core-extraction" in cap.out and "nothing written" in cap.err
+    assert "Traceback" not in cap.err
+    assert not out.exists()
+    assert main(["build", str(recipe), "--out", str(out), "--force"]) == 0
+    man = json.loads((out / "finger-test" / "A" / "manifest.json").read_text())
+    assert man["verdict"] == "error"
+    assert [f["check"] for f in man["checks"] if f["severity"] == "error"] == ["core-extraction"]
+    assert "--force" in capsys.readouterr().out
+
+
+def test_check_exits_1_on_an_error_and_strict_also_on_a_warning(tmp_path, capsys):
+    stiff = tmp_path / "stiff.yaml"
+    stiff.write_text(STIFF)
+    assert main(["check", str(stiff)]) == 1
+    assert "FAIL" in capsys.readouterr().out
+    # The bundled finger passes but warns (its 2 mm feed channel is slender): fine by
+    # default, a failure with --strict.
+    assert main(["check", "recipes/seedling-finger.yaml"]) == 0
+    out = capsys.readouterr().out
+    assert "WARNING core-slenderness" in out
+    assert main(["check", "--strict", "recipes/seedling-finger.yaml"]) == 1
+    assert "0 of 1 recipes passed (no errors or warnings)" in capsys.readouterr().out
