@@ -69,7 +69,9 @@ _ROUND = 6  # decimals (mm, mm2) before comparing, so float noise falls through 
 
 @dataclass(frozen=True)
 class Printer:
-    """FDM printer limits (mm, deg). Defaults: 220 x 220 bed, 250 height, 0.4 nozzle, 4 perimeters (common practice for watertight FDM walls), 45 deg overhang limit (common practice)."""  # noqa: E501
+    """FDM printer limits (mm, deg). Defaults: 220 x 220 bed, 250 height, 0.4 nozzle,
+    4 perimeters (common practice for watertight FDM walls), 45 deg overhang limit from
+    vertical (common practice)."""
 
     bed_mm: tuple[float, float] = (220.0, 220.0)
     height_mm: float = 250.0
