@@ -47,6 +47,39 @@ def _findings_table(findings, show_info: bool = True) -> list[str]:
                      f"{f.check:<{width}} {f.part:<{pw}} {f.message}" for f in rows]
 
 
+def _weigh_out(molds) -> list[str]:
+    plan = molds.casting
+    if plan is None:
+        return []
+    q, g = plan.quantities, plan.grade
+    parts = ", ".join(f"{p.what} {p.grams:g} g" for p in q.portions)
+    return [f"  weigh out ({g.name}, {q.waste_pct:g} % waste included): {parts}; pot life about "
+            f"{g.pot_life_min:g} min, demold after about {g.demold_h:g} h (casting-card.md)"]
+
+
+def cmd_blend(args: argparse.Namespace) -> int:
+    from .recipe.materials import blend, grades
+
+    table = grades()
+    missing = [n for n in (args.first, args.second) if n not in table]
+    if missing:
+        print(f"error: unknown grade {', '.join(missing)}; allowed: {', '.join(table)}",
+              file=sys.stderr)
+        return 2
+    try:
+        b = blend(table[args.first], table[args.second], args.shore_a)
+    except ValueError as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return 2
+    phi, w = b.volume_fraction_first, b.weight_fraction_first
+    print(f"for about Shore A{args.shore_a:g} (E {b.modulus_mpa:.3f} MPa by Gent's relation): "
+          f"{phi * 100:.1f} % {args.first} and {(1 - phi) * 100:.1f} % {args.second} by "
+          f"volume ({w * 100:.1f} % / {(1 - w) * 100:.1f} % by weight)")
+    print("an approximation (modulus interpolated between the two grades): cast a test piece "
+          "and measure its hardness")
+    return 0
+
+
 def _axis_name(d: Sequence[float]) -> str:
     for i, name in enumerate("xyz"):
         if abs(d[i]) > 0.5:
@@ -91,6 +124,8 @@ def cmd_build(args: argparse.Namespace) -> int:
         print(f"  parting plane chosen: {pa.axis} = {pa.offset_mm:g} mm "
               f"(of {len(molds.parting_candidates)} candidates)")
     for line in _findings_table(molds.findings, show_info=args.verbose):
+        print(line)
+    for line in _weigh_out(molds):
         print(line)
     if molds.errors and not args.force:
         print(f"error: {r.source}: {len(molds.errors)} check(s) failed; nothing written "
@@ -185,6 +220,15 @@ def make_parser() -> argparse.ArgumentParser:
     c.add_argument("-v", "--verbose", action="store_true",
                    help="also list the checks' notes (figures that need no action)")
     c.set_defaults(func=cmd_check)
+    bl = sub.add_parser("blend", help="mix two grades to a target Shore A hardness",
+                        description="Ratio of two compatible silicone grades of the shipped "
+                                    "table that lands on a target Shore A (interpolated in "
+                                    "modulus by Gent's relation; an approximation).")
+    bl.add_argument("first", metavar="GRADE", help="e.g. A10")
+    bl.add_argument("second", metavar="GRADE", help="e.g. A30")
+    bl.add_argument("--shore-a", type=float, required=True, metavar="S",
+                    help="target Shore A hardness")
+    bl.set_defaults(func=cmd_blend)
     ref = sub.add_parser("reference", help="print every recipe key with unit, default, range",
                          description="Print the recipe reference (Markdown), or rewrite the "
                                      "copy between the reference markers in FILE.")

@@ -56,11 +56,17 @@ class MoldSet:
     parts: tuple[Part, ...]
     openings: tuple[Any, ...]
     layout: Any
-    volumes_mm3: dict[str, float]  # exact volumes of body, void_set, core, cast
+    volumes_mm3: dict[str, float]  # exact volumes of body, void_set, core, cast; fill: the
+    #                                 sprue, funnel and vents above the cavity
     funnel_diameter_mm: float | None
     timings_s: dict[str, float] = field(default_factory=dict)
     review: Any = None             # analysis.review.Review: every manufacturability finding
     parting_candidates: tuple[Any, ...] = ()  # PlaneScore per plane tried (parting: auto)
+    casting: Any = None            # analysis.casting.CastingPlan: what to weigh and print
+
+    @property
+    def pressures(self) -> tuple[Any, ...]:
+        return () if self.review is None else self.review.pressures
 
     @property
     def findings(self) -> tuple[Any, ...]:
@@ -147,6 +153,20 @@ class MoldSet:
             "verdict": ("error" if self.errors else "warning" if self.warnings else "ok"),
             "print": {name: _print_json(plan) for name, plan in
                       (self.review.prints.items() if self.review is not None else ())},
+            "casting": _casting_json(self.casting),
+            "pressure": {
+                "youngs_modulus_mpa": (None if self.review is None or
+                                       self.review.modulus_mpa is None
+                                       else round(self.review.modulus_mpa, 4)),
+                "working_pressure_kpa": r.inflate.working_pressure_kpa,
+                "walls": [{"group": w.group, "shape": w.shape,
+                           "thickness_mm": round(w.thickness_mm, 3),
+                           "span_mm": round(2 * w.radius_mm, 3),
+                           "limit_kpa": None if w.limit_kpa is None else round(w.limit_kpa, 1),
+                           "margin": (None if w.margin(r.inflate.working_pressure_kpa) is None
+                                      else round(w.margin(r.inflate.working_pressure_kpa), 3)),
+                           "thick_wall": w.thick} for w in self.pressures],
+            },
             "params": r.params(),
         }
 
@@ -162,6 +182,12 @@ class MoldSet:
                                                 f"{p.name}")
             tag = f"{self.recipe.name}-{self.recipe.label}-{p.name}"
             out[p.step_name] = step_bytes(p.brep, tag)
+        if self.casting is not None:
+            from .export.card import card_blocks, render_html, render_markdown
+
+            blocks = card_blocks([self], f"{self.recipe.name} {self.recipe.label}")
+            out["casting-card.md"] = render_markdown(blocks).encode()
+            out["casting-card.html"] = render_html(blocks).encode()
         out["manifest.json"] = json_bytes(self.manifest())
         return out
 
@@ -175,6 +201,29 @@ class MoldSet:
         paths = write_file_set(self.output_dir(root), files, last="manifest.json")
         self.timings_s["write"] = time.perf_counter() - t
         return paths
+
+
+def _casting_json(plan: Any) -> dict[str, Any] | None:
+    if plan is None:
+        return None
+    q, g = plan.quantities, plan.grade
+    return {
+        "grade": g.name, "shore": f"{g.scale}{g.hardness:g}", "cure": g.cure,
+        "density_g_cm3": round(g.density_g_cm3, 4),
+        "cast_volume_mm3": round(q.cast_mm3, 3), "fill_volume_mm3": round(q.fill_mm3, 3),
+        "waste_pct": q.waste_pct, "mixed_volume_mm3": round(q.mixed_mm3, 3),
+        "mixed_mass_g": round(q.mixed_g, 3),
+        "portions": [{"what": p.what, "g": p.grams, "ml": p.ml, "mix_by": p.by}
+                     for p in q.portions],
+        "pot_life_min": g.pot_life_min, "demold_h": g.demold_h,
+        "blend": None if plan.blend is None else {
+            "with": plan.blend.second.name,
+            "volume_fraction_first": round(plan.blend.volume_fraction_first, 4),
+            "weight_fraction_first": round(plan.blend.weight_fraction_first, 4)},
+        "prints": [{"part": pe.part, "volume_mm3": round(pe.volume_mm3, 1),
+                    "infill_pct": pe.infill_pct, "mass_g_estimate": round(pe.mass_g, 1)}
+                   for pe in plan.prints],
+    }
 
 
 def _print_json(plan: Any) -> dict[str, Any]:
@@ -215,6 +264,7 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     :class:`MeshIntegrityError` when a part's mesh is not a closed, consistent volume within
     0.5 % of its BRep volume.
     """
+    from .analysis.casting import plan_casting
     from .analysis.highpoints import plan_openings
     from .analysis.review import review
     from .geometry import mold
@@ -271,8 +321,12 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
         rev = review(recipe, cast_mesh, {p.name: (p.mesh, p.pull_dir) for p in parts
                                          if p.role != "cast"},
                      up, cs.layout.block_lo[0], openings)
-    return MoldSet(recipe, tuple(parts), tuple(openings), cs.layout,
-                   dict(cs.volumes_mm3), shells.funnel_diameter_mm, timings, rev, candidates)
+        volumes = dict(cs.volumes_mm3, fill=shells.fill_volume_mm3)
+        plan = plan_casting(recipe, volumes["cast"], volumes["fill"],
+                            [(p.name, p.mesh, p.brep_volume_mm3) for p in parts
+                             if p.role != "cast"])
+    return MoldSet(recipe, tuple(parts), tuple(openings), cs.layout, volumes,
+                   shells.funnel_diameter_mm, timings, rev, candidates, plan)
 
 
 def _choose_parting(recipe: Recipe, cast_mesh: TriMesh, core_mesh: TriMesh, cs: Any

@@ -13,7 +13,9 @@ Checks (``Finding.check``):
   ``core-slenderness``;
 - ``silicone-wall`` (outer walls and walls between neighbouring voids);
 - ``trapped-air`` (a high point of the cavity no opening of the built mold vents);
-- ``build-volume``, ``print-wall``, ``overhang``, ``flat-face`` per printable part.
+- ``build-volume``, ``print-wall``, ``overhang``, ``flat-face`` per printable part;
+- ``pressure``: the limit pressure of each group of pressurised walls against the working
+  pressure (an estimate, see :mod:`.pressure`).
 """
 
 from __future__ import annotations
@@ -30,6 +32,7 @@ from soft_molds.recipe.primitives import union_sdf
 from .demold import PlaneScore, PullReport, Surface, pull_report, score_plane
 from .extraction import Extraction, allowed_stretch, core_extraction
 from .findings import Finding, finding
+from .pressure import WallPressure, pressure_findings, wall_pressures
 from .printability import Printer, PrintPlan, plan_print, print_findings
 from .trapped_air import AirReport, combine, trapped_air
 from .walls import RESOLUTION_MM, WallMap, wall_map
@@ -45,6 +48,8 @@ class Review:
     walls: WallMap | None
     air: AirReport | None
     prints: dict[str, PrintPlan] = field(default_factory=dict)
+    modulus_mpa: float | None = None
+    pressures: tuple[WallPressure, ...] = ()
 
     @property
     def errors(self) -> tuple[Finding, ...]:
@@ -247,9 +252,13 @@ def review(
             prints[name] = plan
             out.extend(print_findings(plan, printer))
 
+    # 6. Pressure the walls will take (an estimate).
+    e_mpa, pressures = wall_pressures(r)
+    out.extend(pressure_findings(r, e_mpa, pressures))
+
     rank = {"error": 0, "warning": 1, "info": 2}
     out.sort(key=lambda f: rank[f.severity])  # stable: check order kept within a severity
-    return Review(tuple(out), tuple(pulls), ext, walls, air, prints)
+    return Review(tuple(out), tuple(pulls), ext, walls, air, prints, e_mpa, pressures)
 
 
 def _side(cs: Surface, contact: np.ndarray, r: Recipe, upper: bool) -> np.ndarray:

@@ -48,6 +48,8 @@ class ShellSolids:
     lower: k.Shape
     upper: k.Shape
     funnel_diameter_mm: float | None  # as cut (None: no sprue)
+    fill_volume_mm3: float = 0.0      # silicone standing in sprue, funnel and vents when
+    #                                   poured to the top face (from each mouth's centre up)
 
 
 def funnel_radius(lay: Layout, m, at_uv: tuple[float, float], sprue_r: float) -> float:
@@ -135,26 +137,31 @@ def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> Sh
     up_tools = list(sockets)
     top = w_hi
     funnel_d = None
+    fill = 0.0
     for op in openings:
         p = list(op.center_mm)
         floor = getattr(op, "floor_mm", None)
         start_w = (p[wa] if floor is None else floor) - CAVITY_OVERLAP_MM
         u, v = p[0], p[f.v_axis]
+        rise = top - p[wa]
         if op.kind == "sprue":
             funnel_r = funnel_radius(lay, m, (u, v), op.radius_mm)
             funnel_d = 2.0 * funnel_r
-            depth = 0.6 * (top - p[wa]) if funnel_r > op.radius_mm else 0.0
+            depth = 0.6 * rise if funnel_r > op.radius_mm else 0.0
             if depth > 0.0:
                 up_tools.append(k.frustum(wa, f.world(u, v, top + 0.1), depth + 0.1, funnel_r,
                                           op.radius_mm, sign=-1.0))
             up_tools.append(k.cylinder(wa, f.world(u, v, start_w), top - start_w - depth + 0.2,
                                        op.radius_mm))
+            fill += (math.pi * op.radius_mm ** 2 * (rise - depth)
+                     + frustum_volume(depth, funnel_r, op.radius_mm))
         else:
             up_tools.append(k.cylinder(wa, f.world(u, v, start_w), top - start_w + 0.1,
                                        op.radius_mm))
+            fill += math.pi * op.radius_mm ** 2 * rise
     before = k.volume(upper)
     upper = k.cut(upper, up_tools, "shell-upper", "cut key sockets, sprue and vents")
     if not k.volume(upper) < before:
         raise GeometryError("cut key sockets, sprue and vents", "nothing was removed",
                             "shell-upper")
-    return ShellSolids(lower, upper, funnel_d)
+    return ShellSolids(lower, upper, funnel_d, fill)

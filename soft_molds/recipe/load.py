@@ -8,9 +8,13 @@ from dataclasses import replace
 from pathlib import Path
 
 from ..errors import Problem, RecipeError
+from ..units import psi_to_kpa
 from .fields import MapReader, join_path
+from .materials import resolve
 from .model import (
+    CastingSettings,
     Checks,
+    Inflate,
     Inlet,
     Material,
     MeshSettings,
@@ -33,11 +37,16 @@ def load_recipe(path: str | os.PathLike) -> Recipe:
     """Read, validate and sanity-check a recipe file; raise :class:`RecipeError` listing
     every problem (field path, line, value found, what is allowed)."""
     root, source = read_recipe_file(path)
-    return recipe_from_node(root, source, default_name=_stem_name(path))
+    return recipe_from_node(root, source, default_name=_stem_name(path),
+                            base_dir=Path(path).resolve().parent)
 
 
-def recipe_from_text(text: str, source: str = "recipe", default_name: str = "recipe") -> Recipe:
-    return recipe_from_node(parse_recipe_text(text, source), source, default_name)
+def recipe_from_text(text: str, source: str = "recipe", default_name: str = "recipe",
+                     base_dir: str | os.PathLike | None = None) -> Recipe:
+    """Like :func:`load_recipe` for recipe text; ``base_dir`` is where relative file names
+    in it (``material.table_file``) are found."""
+    return recipe_from_node(parse_recipe_text(text, source), source, default_name,
+                            None if base_dir is None else Path(base_dir))
 
 
 def _stem_name(path: str | os.PathLike) -> str:
@@ -81,7 +90,8 @@ def _read_kind(node: Node | None, path: str, registry: dict, problems: list[Prob
     return cls(**values)
 
 
-def recipe_from_node(root: Node, source: str, default_name: str = "recipe") -> Recipe:
+def recipe_from_node(root: Node, source: str, default_name: str = "recipe",
+                     base_dir: Path | None = None) -> Recipe:
     problems: list[Problem] = []
     top = MapReader(root, "", problems, 1, what="a mapping (the recipe's top level)")
     if not isinstance(root.value, dict):
@@ -149,14 +159,34 @@ def recipe_from_node(root: Node, source: str, default_name: str = "recipe") -> R
         cy, cz = inlet_v["center_mm"]
         parting_v["offset_mm"] = cz if parting_v["axis"] == "z" else cy
 
+    lines = _lines(root)
+
+    def line(path: str) -> int | None:
+        while path and path not in lines:
+            path = path.rsplit(".", 1)[0] if "." in path else ""
+        return lines.get(path)
+
+    silicone, blend, mat_problems = resolve(blocks["material"], base_dir, line)
+    problems.extend(mat_problems)
+    inf = blocks["inflate"]
+    kpa, psi = inf["working_pressure_kpa"], inf["working_pressure_psi"]
+    if kpa is not None and psi is not None:
+        problems.append(Problem("inflate.working_pressure_psi", "is given with "
+                                "working_pressure_kpa", line("inflate.working_pressure_psi"),
+                                psi, "one of the two"))
+    if problems:
+        raise RecipeError(problems, source)
+    working = psi_to_kpa(psi) if psi is not None else kpa
+
     recipe = Recipe(
         name=name, label=label, description=vals["description"] or "", body=body,
         voids=tuple(voids), inlet=Inlet(**inlet_v), parting=Parting(**parting_v),
         mold=MoldSettings(**blocks["mold"]), checks=Checks(**blocks["checks"]),
-        mesh=MeshSettings(**blocks["mesh"]), material=Material(**blocks["material"]),
+        mesh=MeshSettings(**blocks["mesh"]),
+        material=Material(**blocks["material"], silicone=silicone, blend=blend),
+        inflate=Inflate(working), casting=CastingSettings(**blocks["casting"]),
         printer=PrinterSettings(**blocks["printer"]), source=source)
 
-    lines = _lines(root)
     problems.extend(sanity_problems(recipe, lines))
     if problems:
         raise RecipeError(problems, source)

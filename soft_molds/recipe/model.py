@@ -13,6 +13,7 @@ import json
 from dataclasses import asdict, dataclass
 from typing import Any
 
+from .materials import Blend, Grade
 from .primitives import Primitive, RoundedRod
 
 #: ISO 273 clearance holes, medium series (mm): the fit for a bolt through both shells.
@@ -76,18 +77,39 @@ class Checks:
 
 @dataclass(frozen=True)
 class Material:
-    """The silicone: a grade of the shipped table, with an optional measured elongation."""
+    """The silicone: the recipe's ``material`` values and the grade they resolve to
+    (``silicone``: table grade, measured overrides and blend applied; see
+    :mod:`.materials`)."""
 
     grade: str
+    table_file: str | None
+    shore_a: float | None
+    youngs_modulus_mpa: float | None
+    density_g_cm3: float | None
     elongation_pct: float | None
+    blend_with: str | None
+    target_shore_a: float | None
+    silicone: Grade
+    blend: Blend | None = None
 
     @property
     def elongation_at_break_pct(self) -> float:
-        from .materials import grades
+        return self.silicone.elongation_pct
 
-        if self.elongation_pct is not None:
-            return self.elongation_pct
-        return grades()[self.grade].elongation_pct
+
+@dataclass(frozen=True)
+class Inflate:
+    """Working (gauge) pressure in kPa, or None when the recipe gives none."""
+
+    working_pressure_kpa: float | None
+
+
+@dataclass(frozen=True)
+class CastingSettings:
+    waste_pct: float              # silicone mixed beyond the mold's fill (%)
+    scale_resolution_g: float     # weights are rounded up to this (g)
+    infill_pct: float             # of the printed mold parts, for the print estimate (%)
+    filament_density_g_cm3: float
 
 
 @dataclass(frozen=True)
@@ -123,6 +145,8 @@ class Recipe:
     checks: Checks
     mesh: MeshSettings
     material: Material
+    inflate: Inflate
+    casting: CastingSettings
     printer: PrinterSettings
     source: str = ""
 
@@ -150,6 +174,8 @@ class Recipe:
             "checks": asdict(self.checks),
             "mesh": asdict(self.mesh),
             "material": asdict(self.material),
+            "inflate": asdict(self.inflate),
+            "casting": asdict(self.casting),
             "printer": asdict(self.printer),
         }
 

@@ -66,10 +66,42 @@ CHECKS_FIELDS: tuple[Field, ...] = (
 )
 
 MATERIAL_FIELDS: tuple[Field, ...] = (
-    choice("grade", "platinum-cure silicone grade from the shipped table (typical values, "
-           "from memory)", GRADE_NAMES, "A10"),
+    text("grade", "silicone grade from the shipped table (" + ", ".join(GRADE_NAMES)
+         + "; typical values, from memory) or from table_file", "A10"),
+    text("table_file", "a YAML file of your own grades in the shipped table's format "
+         "(relative to the recipe); adds to and overrides the shipped grades", None),
+    number("shore_a", "measured Shore A hardness of your batch; default: the grade's",
+           None, unit="", lo=1.0, hi=99.0),
+    number("youngs_modulus_mpa", "measured Young's modulus; default: from Shore A by "
+           "Gent's relation", None, unit="MPa", lo=0.005, hi=50.0),
+    number("density_g_cm3", "measured density of the mixed silicone; default: the grade's",
+           None, unit="g/cm3", lo=0.5, hi=3.0),
     number("elongation_pct", "elongation at break of your silicone, measured or from its "
            "data sheet; default: the grade's", None, unit="%", lo=10.0, hi=2000.0),
+    text("blend_with", "a second grade of the same cure to mix with grade (needs "
+         "target_shore_a)", None),
+    number("target_shore_a", "Shore A the blend of grade and blend_with should land on "
+           "(mixed by modulus via Gent's relation; an approximation)", None, unit="",
+           lo=1.0, hi=99.0),
+)
+
+INFLATE_FIELDS: tuple[Field, ...] = (
+    number("working_pressure_kpa", "gauge pressure you mean to inflate to (typical soft "
+           "bending actuators: about 70-140 kPa, 10-20 psi; common practice)", None,
+           unit="kPa", lo=0.0, hi=2000.0),
+    number("working_pressure_psi", "the same in psi (give one of the two)", None, unit="psi",
+           lo=0.0, hi=300.0),
+)
+
+CASTING_FIELDS: tuple[Field, ...] = (
+    number("waste_pct", "silicone mixed beyond what the mold holds (cup, stirrer, spills)",
+           15.0, unit="%", lo=0.0, hi=200.0, lo_open=False),
+    number("scale_resolution_g", "resolution of the scale used to weigh parts A and B "
+           "(weights are rounded up to it)", 0.1, unit="g", lo=0.001, hi=10.0),
+    number("infill_pct", "infill of the printed mold parts, for the print estimate", 20.0,
+           unit="%", lo=0.0, hi=100.0, lo_open=False),
+    number("filament_density_g_cm3", "density of the filament, for the print estimate "
+           "(about 1.24 for PLA, from memory)", 1.24, unit="g/cm3", lo=0.5, hi=3.0),
 )
 
 PRINTER_FIELDS: tuple[Field, ...] = (
@@ -95,6 +127,8 @@ BLOCKS: dict[str, tuple[Field, ...]] = {
     "mold": MOLD_FIELDS,
     "checks": CHECKS_FIELDS,
     "material": MATERIAL_FIELDS,
+    "inflate": INFLATE_FIELDS,
+    "casting": CASTING_FIELDS,
     "printer": PRINTER_FIELDS,
     "mesh": MESH_FIELDS,
 }

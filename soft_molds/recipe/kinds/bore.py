@@ -2,11 +2,13 @@
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import ClassVar
 
 from ...errors import Problem
 from ..fields import Field, number, pair
+from ..membranes import Membrane
 from ..primitives import Primitive, RoundedRod
 from ..registry import void_kind
 
@@ -47,3 +49,18 @@ class Bore:
 
     def entry(self) -> tuple[tuple[float, float], float, float]:
         return self.center_mm, self.diameter_mm / 2.0, self.start_mm
+
+    def membranes(self, body_length_mm: float) -> tuple[Membrane, ...]:
+        """The tube wall at mid-length, probed at 8 points round the bore (the check takes
+        the thinnest), and the far end cap."""
+        r = self.diameter_mm / 2.0
+        y, z = self.center_mm
+        xm = self.start_mm + self.length_mm / 2.0
+        out = []
+        for k in range(8):
+            a = k * math.pi / 4.0
+            n = (0.0, round(math.cos(a), 12) + 0.0, round(math.sin(a), 12) + 0.0)
+            out.append(Membrane("bore wall", "tube", r, (xm, y + r * n[1], z + r * n[2]), n))
+        out.append(Membrane("end cap", "bulge", r, (self.start_mm + self.length_mm, y, z),
+                            (1.0, 0.0, 0.0)))
+        return tuple(out)

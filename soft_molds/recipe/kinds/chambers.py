@@ -12,6 +12,7 @@ from typing import ClassVar
 
 from ...errors import Problem
 from ..fields import Field, integer, number, pair
+from ..membranes import Membrane
 from ..primitives import Primitive, RoundedBox, RoundedRod
 from ..registry import void_kind
 
@@ -89,3 +90,22 @@ class Chambers:
     def entry(self) -> tuple[tuple[float, float], float, float]:
         """(y, z) of the passage at the inlet face, its radius, and the x where it starts."""
         return self.center_mm, self.feed_diameter_mm / 2.0, 0.0
+
+    def membranes(self, body_length_mm: float) -> tuple[Membrane, ...]:
+        """Top, bottom and side walls of every chamber, and the outer end walls of the
+        first and last chamber (the walls between chambers are pressed from both sides)."""
+        out = []
+        boxes = self.chamber_boxes(body_length_mm)
+        for i, b in enumerate(boxes):
+            (cx, cy, cz), (dx, dy, dz) = b.center_mm, b.size_mm
+            faces = [("top wall", (0, 0, 1), min(dx, dy)), ("bottom wall", (0, 0, -1), min(dx, dy)),
+                     ("side wall", (0, 1, 0), min(dx, dz)), ("side wall", (0, -1, 0), min(dx, dz))]
+            if i == 0:
+                faces.append(("end wall", (-1, 0, 0), min(dy, dz)))
+            if i == len(boxes) - 1:
+                faces.append(("end wall", (1, 0, 0), min(dy, dz)))
+            for group, n, span in faces:
+                at = (cx + n[0] * dx / 2, cy + n[1] * dy / 2, cz + n[2] * dz / 2)
+                out.append(Membrane(group, "bulge", span / 2.0, at,
+                                    (float(n[0]), float(n[1]), float(n[2]))))
+        return tuple(out)

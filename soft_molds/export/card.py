@@ -1,0 +1,200 @@
+"""The casting card: a printable page per family of variants, in Markdown and as one
+self-contained HTML file (no scripts, fonts or pictures fetched from anywhere).
+
+It says what to weigh, how long the mix stays workable and when to demold, the steps of a
+cast, what the checks found, how much pressure each variant's walls are estimated to take,
+and the cautions. The card is built once as a list of blocks and rendered twice, so the
+two files always say the same thing. Nothing in it depends on the time or the machine.
+"""
+
+from __future__ import annotations
+
+import html
+from collections.abc import Sequence
+from typing import Any
+
+from ..units import kpa_to_psi
+
+CAUTIONS = (
+    "Platinum-cure silicone fails to cure (stays tacky) where it touches sulfur or "
+    "sulfur-bearing clay, tin-cure silicone or its catalyst, latex gloves, amines or "
+    "uncured epoxy, and under-cured photopolymer (resin) prints: wash and fully post-cure "
+    "resin prints or seal the mold, and cast a test patch first.",
+    "Wear nitrile or vinyl gloves (not latex) and work in a ventilated space; uncured "
+    "photopolymer resin is a skin sensitiser. Follow the material safety data sheets.",
+    "When inflating, wear eye protection, use a regulator and a pressure relief valve set "
+    "below the pressure you have tested, raise pressure slowly, restrain the tubing, and "
+    "never exceed the tested pressure. The pressure figures here are estimates for "
+    "choosing sweep ranges, not ratings.",
+    "Actuators worn on a body are not medical devices unless certified under the local "
+    "rules; defer to local codes and licensed practice.",
+)
+
+STEPS = (
+    "Check the prints: clean, dry, no strings in the cavity, vents and sprue open.",
+    "Coat the cavity and the core with a thin release agent suited to silicone; let it dry.",
+    "Seat the core print in the lower shell, close the upper shell on the keys (they fit "
+    "one way only) and bolt or clamp the halves evenly.",
+    "Weigh part A and part B as listed (stir each first), then mix for about three minutes, "
+    "scraping the sides and bottom.",
+    "Degas under vacuum (common practice: near full vacuum, about 29 inHg, in a container "
+    "about four times the mixed volume) until the foam collapses.",
+    "Pour from the sprue in a thin, steady stream into the funnel until silicone shows in "
+    "every vent; keep the mold level.",
+    "Let it cure for at least the demold time at room temperature (heat shortens it, cold "
+    "lengthens it) without moving the mold.",
+    "Demold: remove the bolts, pry the halves apart at the notches, lift the upper shell "
+    "straight up and the cast off the lower shell.",
+    "Remove the core: hold the cast at its inlet and draw the core out through the tube "
+    "socket, slowly, along the body's axis (the inlet stretches as each chamber passes).",
+    "Trim the sprue and vent stubs flush.",
+)
+
+Block = tuple[Any, ...]
+
+
+def _fmt(x: float, nd: int = 1) -> str:
+    return f"{x:.{nd}f}"
+
+
+def card_blocks(family: Sequence[Any], title: str) -> list[Block]:
+    """The card's content for ``family`` (MoldSets with ``casting`` and ``pressures``)."""
+    first = family[0]
+    plan0 = first.casting
+    g = plan0.grade
+    blocks: list[Block] = [("h1", f"Casting card: {title}")]
+    hard = f"Shore {g.scale}{g.hardness:g}" if g.scale == "A" else f"Shore {g.scale}-{g.hardness:g}"
+    line = (f"Silicone: {g.name}, {g.cure}-cure, {hard}, density {g.density_g_cm3:g} g/cm3, "
+            f"mix {g.mix_ratio[0]:g}A : {g.mix_ratio[1]:g}B by {g.mix_by}; pot life about "
+            f"{g.pot_life_min:g} min, demold after about {g.demold_h:g} h at room temperature "
+            "(typical values, from memory; your data sheet wins).")
+    blocks.append(("p", line))
+    if g.note:
+        blocks.append(("p", f"Note: {g.note}."))
+    if plan0.blend is not None:
+        b = plan0.blend
+        blocks.append(("p", f"Blend: {b.volume_fraction_first * 100:.0f} % {b.first.name} and "
+                       f"{(1 - b.volume_fraction_first) * 100:.0f} % {b.second.name} by volume "
+                       f"({b.weight_fraction_first * 100:.0f} % / "
+                       f"{(1 - b.weight_fraction_first) * 100:.0f} % by weight) for about "
+                       f"Shore A{b.target_shore_a:g}: interpolated in modulus by Gent's "
+                       "relation, an approximation. Mix each grade's A and B as listed, then "
+                       "combine."))
+
+    names = [p.what for p in plan0.quantities.portions]
+    head = ["variant", "cast cm3", "sprue+vents cm3", "mixed cm3", "mixed g",
+            *[f"{n} g" for n in names], "checks"]
+    rows = []
+    totals = [0.0] * len(names)
+    for ms in family:
+        q = ms.casting.quantities
+        verdict = "errors" if ms.errors else ("warnings" if ms.warnings else "ok")
+        grams = [p.grams for p in q.portions]
+        totals = [t + x for t, x in zip(totals, grams)]
+        rows.append([ms.recipe.label, _fmt(q.cast_mm3 / 1000, 2), _fmt(q.fill_mm3 / 1000, 2),
+                     _fmt(q.mixed_mm3 / 1000, 2), _fmt(q.mixed_g, 1),
+                     *[f"{x:g}" for x in grams], verdict])
+    if len(family) > 1:
+        rows.append(["all", "", "", "", "", *[f"{round(t, 6):g}" for t in totals], ""])
+    blocks.append(("h2", "Weigh out"))
+    blocks.append(("p", f"Includes {plan0.quantities.waste_pct:g} % for waste; weights are "
+                   "rounded up to the scale's resolution. Mix each variant separately unless "
+                   "you can pour them all within the pot life."))
+    blocks.append(("table", head, rows))
+
+    blocks.append(("h2", "Steps"))
+    blocks.append(("ol", list(STEPS)))
+
+    blocks.append(("h2", "Wall pressure (estimate)"))
+    prow = []
+    for ms in family:
+        work = ms.recipe.inflate.working_pressure_kpa
+        for w in ms.pressures:
+            lim = "no peak" if w.limit_kpa is None else f"{w.limit_kpa:.0f}"
+            m = w.margin(work)
+            prow.append([ms.recipe.label, w.group, _fmt(w.thickness_mm, 2),
+                         f"{2 * w.radius_mm:g}", lim,
+                         "-" if work is None else f"{work:.0f} ({kpa_to_psi(work):.1f} psi)",
+                         "-" if m is None else f"{m:.2f}" + (" balloons" if m < 1 else ""),
+                         "rough" if w.thick else ""])
+    if prow:
+        blocks.append(("p", "Neo-Hookean membrane estimate from Gent's modulus (limit "
+                       "pressure, after which a wall balloons); thick walls are rough; a tube "
+                       "held at constant length has no limit point. For choosing sweep "
+                       "ranges, not a rating: test every part behind a relief valve."))
+        blocks.append(("table", ["variant", "wall", "thickness mm", "span mm", "limit kPa",
+                                 "working kPa", "margin", ""], prow))
+    else:
+        blocks.append(("p", "No estimate: the silicone's modulus is unknown (Shore 00 grade "
+                       "without a measured modulus)."))
+
+    blocks.append(("h2", "Checks"))
+    items = []
+    for ms in family:
+        bad = [f for f in ms.findings if f.severity in ("error", "warning")]
+        if not bad:
+            items.append(f"{ms.recipe.label}: no errors or warnings.")
+        for f in bad:
+            items.append(f"{ms.recipe.label}: {f.severity} {f.check} ({f.part}): {f.message}")
+    blocks.append(("ul", items))
+
+    blocks.append(("h2", "Printing (estimate; the slicer's figure wins)"))
+    prows = []
+    for ms in family:
+        for pe in ms.casting.prints:
+            prows.append([ms.recipe.label, pe.part, _fmt(pe.volume_mm3 / 1000, 1),
+                          f"{pe.infill_pct:g} %", _fmt(pe.mass_g, 0)])
+    blocks.append(("table", ["variant", "part", "volume cm3", "infill", "filament g"], prows))
+
+    blocks.append(("h2", "Cautions"))
+    blocks.append(("ul", list(CAUTIONS)))
+    return blocks
+
+
+def render_markdown(blocks: Sequence[Block]) -> str:
+    out: list[str] = []
+    for b in blocks:
+        kind = b[0]
+        if kind == "h1":
+            out += [f"# {b[1]}", ""]
+        elif kind == "h2":
+            out += [f"## {b[1]}", ""]
+        elif kind == "p":
+            out += [b[1], ""]
+        elif kind == "ol":
+            out += [f"{i}. {t}" for i, t in enumerate(b[1], 1)] + [""]
+        elif kind == "ul":
+            out += [f"- {t}" for t in b[1]] + [""]
+        elif kind == "table":
+            head, rows = b[1], b[2]
+            out.append("| " + " | ".join(head) + " |")
+            out.append("|" + "---|" * len(head))
+            out += ["| " + " | ".join(str(c).replace("|", "/") for c in r) + " |" for r in rows]
+            out.append("")
+    return "\n".join(out).rstrip() + "\n"
+
+
+_STYLE = ("body{font-family:sans-serif;max-width:60em;margin:1.5em auto;color:#111}"
+          "table{border-collapse:collapse;margin:.5em 0}td,th{border:1px solid #888;"
+          "padding:.2em .5em;text-align:left}th{background:#eee}h1{font-size:1.5em}"
+          "h2{font-size:1.15em;margin-top:1.2em}@media print{body{margin:0}}")
+
+
+def render_html(blocks: Sequence[Block]) -> str:
+    e = html.escape
+    title = next((b[1] for b in blocks if b[0] == "h1"), "Casting card")
+    out = ["<!DOCTYPE html>", '<html lang="en"><head><meta charset="utf-8">',
+           f"<title>{e(title)}</title><style>{_STYLE}</style></head><body>"]
+    for b in blocks:
+        kind = b[0]
+        if kind in ("h1", "h2", "p"):
+            out.append(f"<{kind}>{e(b[1])}</{kind}>")
+        elif kind in ("ol", "ul"):
+            out.append(f"<{kind}>" + "".join(f"<li>{e(t)}</li>" for t in b[1]) + f"</{kind}>")
+        elif kind == "table":
+            head, rows = b[1], b[2]
+            out.append("<table><tr>" + "".join(f"<th>{e(h)}</th>" for h in head) + "</tr>"
+                       + "".join("<tr>" + "".join(f"<td>{e(str(c))}</td>" for c in r) + "</tr>"
+                                 for r in rows) + "</table>")
+    out.append("</body></html>")
+    return "\n".join(out) + "\n"

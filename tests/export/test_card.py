@@ -1,0 +1,40 @@
+"""The casting card written with every build (demo scenario)."""
+
+from __future__ import annotations
+
+import re
+
+
+def test_card_markdown_and_html_say_the_same_numbers(finger):
+    files = finger.files()
+    md = files["casting-card.md"].decode()
+    page = files["casting-card.html"].decode()
+    q = finger.casting.quantities
+    for p in q.portions:
+        cell = f"{p.grams:g}"
+        assert f"| {cell} |" in md and f"<td>{cell}</td>" in page
+    nums_md = re.findall(r"\d+\.\d+", re.sub(r"<[^>]+>", " ", md))
+    body = page.split("<body>", 1)[1]  # the head holds the style sheet's own numbers
+    nums_html = re.findall(r"\d+\.\d+", re.sub(r"<[^>]+>", " ", body))
+    assert nums_md == nums_html
+
+
+def test_card_html_is_self_contained(finger):
+    page = finger.files()["casting-card.html"].decode()
+    assert page.startswith("<!DOCTYPE html>")
+    for fetch in ("http:", "https:", "src=", "<script", "@import", "<link"):
+        assert fetch not in page
+
+
+def test_card_lists_steps_pot_life_and_the_cautions(finger):
+    md = finger.files()["casting-card.md"].decode()
+    g = finger.casting.grade
+    assert f"pot life about {g.pot_life_min:g} min" in md
+    assert f"demold after about {g.demold_h:g} h" in md
+    for step in ("release agent", "Degas", "Pour from the sprue", "Remove the core"):
+        assert step in md
+    # cautions the trade asks for (common practice; casting-facts)
+    for caution in ("sulfur", "tin-cure", "latex", "photopolymer", "eye protection",
+                    "relief valve", "never exceed the tested pressure", "ventilated",
+                    "not medical devices"):
+        assert caution in md, caution
