@@ -8,6 +8,7 @@ problems, one line each, no traceback, nothing written).
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 import time
 from collections.abc import Sequence
@@ -87,88 +88,166 @@ def _axis_name(d: Sequence[float]) -> str:
     return "?"
 
 
-def _load(paths: Sequence[str]):
-    from .recipe import load_recipe
+def _expand(paths: Sequence[str]) -> list[str]:
+    """Recipe files named, with every ``*.yaml`` of a named folder (sorted)."""
+    from pathlib import Path
 
-    recipes, bad = [], False
-    for path in paths:
+    out: list[str] = []
+    for p in paths:
+        if Path(p).is_dir():
+            out += [str(q) for q in sorted(Path(p).glob("*.yaml"))]
+        else:
+            out.append(p)
+    return out
+
+
+def _load(paths: Sequence[str], label: str | None = None, folders: bool = True):
+    """(variants of every file as (spec, recipe), bad input?); problems printed. With
+    ``folders`` a folder stands for its recipe files."""
+    from .recipe import load_variants
+
+    found, bad = [], False
+    for path in (_expand(paths) if folders else paths):
         try:
-            recipes.append(load_recipe(path))
+            vs = load_variants(path)
         except RecipeError as exc:
             bad = True
             for line in exc.lines():
                 print(f"error: {line}", file=sys.stderr)
-    return recipes, bad
+            continue
+        if label is not None:
+            pick = [v for v in vs if v[1].label == label]
+            if not pick:
+                bad = True
+                print(f"error: {path}: no variant labelled {label}; allowed: "
+                      + ", ".join(r.label for _, r in vs), file=sys.stderr)
+            vs = tuple(pick)
+        found += list(vs)
+    return found, bad
 
 
 def cmd_build(args: argparse.Namespace) -> int:
-    recipes, bad = _load([args.recipe])
+    variants, bad = _load([args.recipe], args.variant, folders=False)
     if bad:
         return 2
     from .pipeline import build
 
-    r = recipes[0]
-    t = time.perf_counter()
-    try:
-        molds = build(r)
-    except SoftMoldsError as exc:
-        print(f"error: {r.source}: {exc}", file=sys.stderr)
-        return 1
-    print(f"{r.name} {r.label}: built in {time.perf_counter() - t:.1f} s")
-    for p in molds.parts:
-        print(_fmt_part(p))
-    print(f"  silicone {molds.silicone_volume_mm3 / 1000.0:.2f} cm3; sprue and vents: "
-          + ", ".join(o.kind for o in molds.openings))
-    if molds.parting_candidates:
-        pa = molds.recipe.parting
-        print(f"  parting plane chosen: {pa.axis} = {pa.offset_mm:g} mm "
-              f"(of {len(molds.parting_candidates)} candidates)")
-    for line in _findings_table(molds.findings, show_info=args.verbose):
-        print(line)
-    for line in _weigh_out(molds):
-        print(line)
-    if molds.errors and not args.force:
-        print(f"error: {r.source}: {len(molds.errors)} check(s) failed; nothing written "
-              "(fix the recipe, or pass --force to write the files anyway)", file=sys.stderr)
-        return 1
-    try:
-        paths = molds.export(args.out)
-    except OSError as exc:
-        print(f"error: cannot write under {args.out}: {exc.strerror or exc}", file=sys.stderr)
-        return 1
-    forced = " despite failed checks (--force)" if molds.errors else ""
-    print(f"  wrote {len(paths)} files to {molds.output_dir(args.out)}{forced}")
-    for line in CAUTIONS:
-        print(line)
-    return 0
-
-
-def cmd_check(args: argparse.Namespace) -> int:
-    recipes, bad = _load(args.recipes)
-    if bad:
-        return 2
-    from .pipeline import build
-
-    failed = 0
-    for r in recipes:
+    status = 0
+    for _, r in variants:
+        t = time.perf_counter()
         try:
             molds = build(r)
         except SoftMoldsError as exc:
-            failed += 1
-            print(f"FAIL {r.source}: {exc}")
+            print(f"error: {r.source}: {exc}", file=sys.stderr)
+            status = 1
             continue
-        bad = bool(molds.errors) or (args.strict and bool(molds.warnings))
-        failed += bad
-        verdict = "FAIL" if bad else "ok  "
+        print(f"{r.name} {r.label}: built in {time.perf_counter() - t:.1f} s")
+        for p in molds.parts:
+            print(_fmt_part(p))
+        print(f"  silicone {molds.silicone_volume_mm3 / 1000.0:.2f} cm3; sprue and vents: "
+              + ", ".join(o.kind for o in molds.openings))
+        if molds.parting_candidates:
+            pa = molds.recipe.parting
+            print(f"  parting plane chosen: {pa.axis} = {pa.offset_mm:g} mm "
+                  f"(of {len(molds.parting_candidates)} candidates)")
+        for line in _findings_table(molds.findings, show_info=args.verbose):
+            print(line)
+        for line in _weigh_out(molds):
+            print(line)
+        if molds.errors and not args.force:
+            print(f"error: {r.source}: {r.label}: {len(molds.errors)} check(s) failed; nothing "
+                  "written (fix the recipe, or pass --force to write the files anyway)",
+                  file=sys.stderr)
+            status = 1
+            continue
+        try:
+            paths = molds.export(args.out)
+        except OSError as exc:
+            print(f"error: cannot write under {args.out}: {exc.strerror or exc}",
+                  file=sys.stderr)
+            return 1
+        forced = " despite failed checks (--force)" if molds.errors else ""
+        print(f"  wrote {len(paths)} files to {molds.output_dir(args.out)}{forced}")
+    for line in CAUTIONS:
+        print(line)
+    return status
+
+
+def cmd_check(args: argparse.Namespace) -> int:
+    variants, bad = _load(args.recipes)
+    if bad:
+        return 2
+    from .pipeline import build
+
+    failed = []
+    for _, r in variants:
+        try:
+            molds = build(r)
+        except SoftMoldsError as exc:
+            failed.append(f"{r.source} {r.label}: {exc}".splitlines()[0])
+            print(f"FAIL {r.source} {r.label}: {exc}")
+            continue
+        bad_one = bool(molds.errors) or (args.strict and bool(molds.warnings))
+        verdict = "FAIL" if bad_one else "ok  "
         print(f"{verdict} {r.source}: {r.name} {r.label}, {len(molds.parts)} parts closed and "
               f"consistent")
         for p in molds.parts:
             print(_fmt_part(p))
         for line in _findings_table(molds.findings, show_info=args.verbose):
             print(line)
+        if bad_one:
+            worst = (molds.errors or molds.warnings)[0]
+            failed.append(f"{r.source} {r.label}: {worst.check}: {worst.message}")
     what = "errors or warnings" if args.strict else "errors"
-    print(f"{len(recipes) - failed} of {len(recipes)} recipes passed (no {what})")
+    print(f"{len(variants) - len(failed)} of {len(variants)} recipes passed (no {what})")
+    for line in failed:
+        print(f"  failed: {line}")
     return 1 if failed else 0
+
+
+def cmd_sweep(args: argparse.Namespace) -> int:
+    from .sweep import Progress, SweepInputError, plan_tasks, run_sweep, write_reports
+
+    try:
+        tasks = plan_tasks(_expand(args.recipes))
+    except SweepInputError as exc:
+        for line in exc.lines:
+            print(f"error: {line}", file=sys.stderr)
+        return 2
+    if not tasks:
+        print("error: no recipes given", file=sys.stderr)
+        return 2
+    try:
+        outcomes, interrupted = run_sweep(tasks, args.out, jobs=args.jobs, force=args.force,
+                                          recycle_after=args.recycle_after,
+                                          progress=Progress(len(tasks)),
+                                          scheduler=args.scheduler)
+    except SoftMoldsError as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return 2
+    try:
+        written = write_reports(outcomes, args.out)
+    except OSError as exc:
+        print(f"error: cannot write the report under {args.out}: {exc.strerror or exc}",
+              file=sys.stderr)
+        return 1
+    print(f"{'recipe':<18} {'label':<6} {'status':<11} {'checks':<8} {'silicone':>9} "
+          f"{'mix g':>7} {'s':>6}  changed / reason")
+    for o in outcomes:
+        vol = "-" if o.silicone_cm3 is None else f"{o.silicone_cm3:.2f} cm3"
+        mix = "-" if o.mix_g is None else f"{o.mix_g:g}"
+        note = o.reason or ", ".join(f"{k}={v}" for k, v in o.changed.items())
+        print(f"{o.recipe:<18} {o.label:<6} {o.status:<11} {o.verdict or '-':<8} {vol:>9} "
+              f"{mix:>7} {o.seconds:>6.1f}  {note}")
+    bad = [o for o in outcomes if not o.ok]
+    print(f"{len(outcomes) - len(bad)} of {len(tasks)} variants built or up to date; report: "
+          + ", ".join(str(p) for p in written[:2]))
+    for line in CAUTIONS:
+        print(line)
+    if interrupted:
+        print("interrupted: run the same command again to finish", file=sys.stderr)
+        return 130
+    return 1 if bad or len(outcomes) < len(tasks) else 0
 
 
 def cmd_reference(args: argparse.Namespace) -> int:
@@ -191,6 +270,16 @@ def cmd_reference(args: argparse.Namespace) -> int:
     return 0
 
 
+def _positive(text: str) -> int:
+    try:
+        n = int(text)
+    except ValueError:
+        n = 0
+    if n < 1:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a whole number of at least 1")
+    return n
+
+
 def make_parser() -> argparse.ArgumentParser:
     ap = argparse.ArgumentParser(
         prog="soft-molds",
@@ -203,6 +292,7 @@ def make_parser() -> argparse.ArgumentParser:
                                    "STL, STEP and manifest.json under DIR/<recipe>/<label>/. "
                                    "Nothing is written when a check fails, unless --force.")
     b.add_argument("recipe", metavar="RECIPE", help="path to a recipe YAML file")
+    b.add_argument("--variant", metavar="LABEL", help="build only this variant (default: all)")
     b.add_argument("--out", default="out", metavar="DIR", help="output root (default: out)")
     b.add_argument("--force", action="store_true",
                    help="write the files even when a check fails (the manifest records it)")
@@ -215,11 +305,29 @@ def make_parser() -> argparse.ArgumentParser:
                                    "the manufacturability checks. Exit 1 when a mesh or a "
                                    "check fails (with --strict, also on a warning), 2 on bad "
                                    "input.")
-    c.add_argument("recipes", nargs="+", metavar="RECIPE", help="recipe YAML files")
+    c.add_argument("recipes", nargs="+", metavar="RECIPE",
+                   help="recipe YAML files or folders of them (every variant is checked)")
     c.add_argument("--strict", action="store_true", help="fail on warnings too")
     c.add_argument("-v", "--verbose", action="store_true",
                    help="also list the checks' notes (figures that need no action)")
     c.set_defaults(func=cmd_check)
+    sw = sub.add_parser("sweep", help="build every variant of recipes in worker processes",
+                        description="Build, check and write every variant of each RECIPE in a "
+                                    "pool of worker processes; skip variants already built "
+                                    "from the same parameters (so an interrupted run resumes); "
+                                    "write summary.json, summary.csv, a family sheet and a "
+                                    "casting card per family. Exit 1 if a variant failed.")
+    sw.add_argument("recipes", nargs="+", metavar="RECIPE", help="recipe files or folders")
+    sw.add_argument("--jobs", type=_positive, default=max(1, (os.cpu_count() or 1)), metavar="N",
+                    help="worker processes (default: the number of CPUs)")
+    sw.add_argument("--out", default="out", metavar="DIR", help="output root (default: out)")
+    sw.add_argument("--force", action="store_true",
+                    help="write variants whose checks fail too (the manifest records it)")
+    sw.add_argument("--recycle-after", type=_positive, default=20, metavar="K",
+                    help="replace each worker after K variants (default 20)")
+    sw.add_argument("--scheduler", metavar="ADDRESS",
+                    help="run on a Dask distributed cluster instead (needs the cluster extra)")
+    sw.set_defaults(func=cmd_sweep)
     bl = sub.add_parser("blend", help="mix two grades to a target Shore A hardness",
                         description="Ratio of two compatible silicone grades of the shipped "
                                     "table that lands on a target Shore A (interpolated in "

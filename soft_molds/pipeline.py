@@ -7,6 +7,7 @@ part's mesh, and the geometry stage then cuts them into the upper shell).
 
 from __future__ import annotations
 
+import hashlib
 import os
 import time
 from collections.abc import Callable, Iterator
@@ -63,6 +64,7 @@ class MoldSet:
     review: Any = None             # analysis.review.Review: every manufacturability finding
     parting_candidates: tuple[Any, ...] = ()  # PlaneScore per plane tried (parting: auto)
     casting: Any = None            # analysis.casting.CastingPlan: what to weigh and print
+    labels: tuple[Any, ...] = ()   # geometry.mold.Label per printed part that carries one
 
     @property
     def pressures(self) -> tuple[Any, ...]:
@@ -149,6 +151,9 @@ class MoldSet:
             "registration_keys_uv_mm": [[round(a, 4) for a in k] for k in lay.keys_uv],
             "clamp": {"bolt": r.mold.clamp_bolt, "hole_diameter_mm": r.mold.clamp_hole_mm,
                       "holes_uv_mm": [[round(a, 4) for a in b] for b in lay.bolts_uv]},
+            "labels": [{"part": lab.part, "text": lab.text,
+                        "height_mm": round(lab.height_mm, 3),
+                        "depth_mm": r.label_settings.depth_mm} for lab in self.labels],
             "checks": [f.to_json() for f in self.findings],
             "verdict": ("error" if self.errors else "warning" if self.warnings else "ok"),
             "print": {name: _print_json(plan) for name, plan in
@@ -182,13 +187,16 @@ class MoldSet:
                                                 f"{p.name}")
             tag = f"{self.recipe.name}-{self.recipe.label}-{p.name}"
             out[p.step_name] = step_bytes(p.brep, tag)
+        man = self.manifest()
         if self.casting is not None:
-            from .export.card import card_blocks, render_html, render_markdown
+            from .export.card import card_files
 
-            blocks = card_blocks([self], f"{self.recipe.name} {self.recipe.label}")
-            out["casting-card.md"] = render_markdown(blocks).encode()
-            out["casting-card.html"] = render_html(blocks).encode()
-        out["manifest.json"] = json_bytes(self.manifest())
+            out.update(card_files([man], f"{self.recipe.name} {self.recipe.label}"))
+        # Every other file's digest, so a resumed sweep can tell a finished set from one
+        # a killed run left behind.
+        man["files"] = {name: hashlib.sha256(data).hexdigest()
+                        for name, data in sorted(out.items())}
+        out["manifest.json"] = json_bytes(man)
         return out
 
     def export(self, root: str | os.PathLike = "out") -> list[Path]:
@@ -208,8 +216,10 @@ def _casting_json(plan: Any) -> dict[str, Any] | None:
         return None
     q, g = plan.quantities, plan.grade
     return {
-        "grade": g.name, "shore": f"{g.scale}{g.hardness:g}", "cure": g.cure,
+        "grade": g.name, "shore": f"{g.scale}{g.hardness:g}", "scale": g.scale,
+        "hardness": round(g.hardness, 3), "cure": g.cure,
         "density_g_cm3": round(g.density_g_cm3, 4),
+        "mix_ratio": list(g.mix_ratio), "mix_by": g.mix_by, "note": g.note,
         "cast_volume_mm3": round(q.cast_mm3, 3), "fill_volume_mm3": round(q.fill_mm3, 3),
         "waste_pct": q.waste_pct, "mixed_volume_mm3": round(q.mixed_mm3, 3),
         "mixed_mass_g": round(q.mixed_g, 3),
@@ -217,7 +227,8 @@ def _casting_json(plan: Any) -> dict[str, Any] | None:
                      for p in q.portions],
         "pot_life_min": g.pot_life_min, "demold_h": g.demold_h,
         "blend": None if plan.blend is None else {
-            "with": plan.blend.second.name,
+            "first": plan.blend.first.name, "with": plan.blend.second.name,
+            "target_shore_a": plan.blend.target_shore_a,
             "volume_fraction_first": round(plan.blend.volume_fraction_first, 4),
             "weight_fraction_first": round(plan.blend.weight_fraction_first, 4)},
         "prints": [{"part": pe.part, "volume_mm3": round(pe.volume_mm3, 1),
@@ -283,13 +294,18 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
         cs = mold.build_cast(recipe, body)
     with _stage(timings, "tessellate", label):
         cast_mesh = tessellate(cs.cast, chord, angle, "cast")
-        core_mesh = tessellate(cs.core, chord, angle, "core")
     candidates: tuple[Any, ...] = ()
     if recipe.parting.auto:
         say("parting plane")
+        with _stage(timings, "tessellate", label):
+            bare_core = tessellate(cs.core, chord, angle, "core")
         with _stage(timings, "analysis", label):
-            recipe, candidates = _choose_parting(recipe, cast_mesh, core_mesh, cs)
+            recipe, candidates = _choose_parting(recipe, cast_mesh, bare_core, cs)
         cs = replace(cs, layout=plan_layout(recipe))
+    say("labels")
+    with _stage(timings, "labels", label):
+        core, core_label = mold.label_core(recipe, cs.layout, cs.core)
+        cs = replace(cs, core=core, volumes_mm3=dict(cs.volumes_mm3, core=k_volume(core)))
     up = tuple(_up(recipe))
     down = tuple(-c + 0.0 for c in up)  # + 0.0: no -0.0 in the manifest
     say("sprue and vents")
@@ -310,23 +326,30 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     say("tessellate and check")
     for name, role, solid, pull in solids:
         with _stage(timings, "tessellate", label):
-            mesh = {"cast": cast_mesh, "core": core_mesh}.get(name) or tessellate(
-                solid, chord, angle, name)
+            mesh = cast_mesh if name == "cast" else tessellate(solid, chord, angle, name)
             vol = cs.volumes_mm3.get(name) or float(solid.Volume())
             report = check_mesh(mesh, name, vol)
         require_ok(report, label)
         parts.append(Part(name, role, solid, mesh, vol, pull, report))  # type: ignore[arg-type]
     say("manufacturability checks")
     with _stage(timings, "analysis", label):
+        labels = tuple(x for x in (*shells.labels, core_label) if x is not None)
         rev = review(recipe, cast_mesh, {p.name: (p.mesh, p.pull_dir) for p in parts
                                          if p.role != "cast"},
-                     up, cs.layout.block_lo[0], openings)
+                     up, cs.layout.block_lo[0], openings,
+                     {lab.part: [lab.box] for lab in labels})
         volumes = dict(cs.volumes_mm3, fill=shells.fill_volume_mm3)
         plan = plan_casting(recipe, volumes["cast"], volumes["fill"],
                             [(p.name, p.mesh, p.brep_volume_mm3) for p in parts
                              if p.role != "cast"])
     return MoldSet(recipe, tuple(parts), tuple(openings), cs.layout, volumes,
-                   shells.funnel_diameter_mm, timings, rev, candidates, plan)
+                   shells.funnel_diameter_mm, timings, rev, candidates, plan, labels)
+
+
+def k_volume(shape: Any) -> float:
+    from .geometry.kernel import volume
+
+    return volume(shape)
 
 
 def _choose_parting(recipe: Recipe, cast_mesh: TriMesh, core_mesh: TriMesh, cs: Any

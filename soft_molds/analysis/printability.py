@@ -28,6 +28,7 @@ overhang; downward facets inside closed cavities (ceilings that must be bridged)
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -308,8 +309,11 @@ def _evaluate(mesh: TriMesh, hull_vertices: np.ndarray, normals: np.ndarray,
 
 
 def _walls(mesh: TriMesh, centroids: np.ndarray, normals: np.ndarray, areas: np.ndarray,
-           min_wall: float) -> tuple[float, tuple[float, float, float], float]:
+           min_wall: float, ignore_boxes: Sequence[tuple[Sequence[float], Sequence[float]]] = ()
+           ) -> tuple[float, tuple[float, float, float], float]:
     keep = areas >= MIN_FACET_AREA_MM2
+    for lo, hi in ignore_boxes:
+        keep &= ~np.all((centroids >= np.asarray(lo)) & (centroids <= np.asarray(hi)), axis=1)
     th, _ = thickness_along_normals(RayCaster(mesh), centroids[keep], normals[keep])
     finite = np.isfinite(th)
     if not finite.any():
@@ -323,8 +327,13 @@ def _walls(mesh: TriMesh, centroids: np.ndarray, normals: np.ndarray, areas: np.
     return float(th_f[k]), where, thin  # type: ignore[return-value]
 
 
-def plan_print(mesh: TriMesh, part: str, printer: Printer = DEFAULT_PRINTER) -> PrintPlan:
+def plan_print(mesh: TriMesh, part: str, printer: Printer = DEFAULT_PRINTER,
+               ignore_boxes: Sequence[tuple[Sequence[float], Sequence[float]]] = ()
+               ) -> PrintPlan:
     """Choose how ``part`` lies on the bed of ``printer`` (mesh in mm, world frame).
+
+    ``ignore_boxes`` are world boxes (lo, hi) whose facets the wall check skips: the label
+    cut into a face leaves thin ribs between its strokes that hold nothing back.
 
     Candidates are the convex-hull planes carrying at least ``FLAT_MIN_AREA_MM2`` of the part's
     own facets (the ``MAX_CANDIDATES`` largest, largest contact first, ties by normal); if
@@ -362,7 +371,8 @@ def plan_print(mesh: TriMesh, part: str, printer: Printer = DEFAULT_PRINTER) -> 
                    key=lambda i: (round(evaluated[i]["_excess"], _ROUND),
                                   round(evaluated[i]["overhang_area_mm2"], _ROUND), i))
     b = evaluated[best]
-    wall, where, thin = _walls(mesh, centroids, normals, areas, printer.min_wall_mm)
+    wall, where, thin = _walls(mesh, centroids, normals, areas, printer.min_wall_mm,
+                               ignore_boxes)
     public = ("down", "fits", "turn_deg", "overhang_area_mm2", "contact_area_mm2")
     return PrintPlan(
         part=part,

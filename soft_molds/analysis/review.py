@@ -124,6 +124,7 @@ def review(
     up: Sequence[float],
     block_lo_x: float,
     openings: Sequence = (),
+    label_boxes: dict[str, Sequence] | None = None,
 ) -> Review:
     """Run every check on a built mold set. ``parts`` maps part name -> (mesh, pull
     direction) for shell-lower, shell-upper and core; ``cast`` is the cast part's mesh."""
@@ -248,7 +249,7 @@ def review(
     prints = {}
     for name in ("shell-lower", "shell-upper", "core"):
         if name in parts:
-            plan = plan_print(parts[name][0], name, printer)
+            plan = plan_print(parts[name][0], name, printer, (label_boxes or {}).get(name, ()))
             prints[name] = plan
             out.extend(print_findings(plan, printer))
 

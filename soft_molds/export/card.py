@@ -57,49 +57,49 @@ def _fmt(x: float, nd: int = 1) -> str:
     return f"{x:.{nd}f}"
 
 
-def card_blocks(family: Sequence[Any], title: str) -> list[Block]:
-    """The card's content for ``family`` (MoldSets with ``casting`` and ``pressures``)."""
-    first = family[0]
-    plan0 = first.casting
-    g = plan0.grade
+def card_blocks(family: Sequence[dict[str, Any]], title: str) -> list[Block]:
+    """The card's content for ``family``: the manifests (``MoldSet.manifest()``, or read
+    back from ``manifest.json``) of its variants, in label order."""
+    first = family[0]["casting"]
     blocks: list[Block] = [("h1", f"Casting card: {title}")]
-    hard = f"Shore {g.scale}{g.hardness:g}" if g.scale == "A" else f"Shore {g.scale}-{g.hardness:g}"
-    line = (f"Silicone: {g.name}, {g.cure}-cure, {hard}, density {g.density_g_cm3:g} g/cm3, "
-            f"mix {g.mix_ratio[0]:g}A : {g.mix_ratio[1]:g}B by {g.mix_by}; pot life about "
-            f"{g.pot_life_min:g} min, demold after about {g.demold_h:g} h at room temperature "
-            "(typical values, from memory; your data sheet wins).")
-    blocks.append(("p", line))
-    if g.note:
-        blocks.append(("p", f"Note: {g.note}."))
-    if plan0.blend is not None:
-        b = plan0.blend
-        blocks.append(("p", f"Blend: {b.volume_fraction_first * 100:.0f} % {b.first.name} and "
-                       f"{(1 - b.volume_fraction_first) * 100:.0f} % {b.second.name} by volume "
-                       f"({b.weight_fraction_first * 100:.0f} % / "
-                       f"{(1 - b.weight_fraction_first) * 100:.0f} % by weight) for about "
-                       f"Shore A{b.target_shore_a:g}: interpolated in modulus by Gent's "
-                       "relation, an approximation. Mix each grade's A and B as listed, then "
-                       "combine."))
+    hard = (f"Shore {first['scale']}{first['hardness']:g}" if first["scale"] == "A"
+            else f"Shore {first['scale']}-{first['hardness']:g}")
+    ratio = first["mix_ratio"]
+    blocks.append(("p", f"Silicone: {first['grade']}, {first['cure']}-cure, {hard}, density "
+                   f"{first['density_g_cm3']:g} g/cm3, mix {ratio[0]:g}A : {ratio[1]:g}B by "
+                   f"{first['mix_by']}; pot life about {first['pot_life_min']:g} min, demold "
+                   f"after about {first['demold_h']:g} h at room temperature (typical values, "
+                   "from memory; your data sheet wins)."))
+    if first["note"]:
+        blocks.append(("p", f"Note: {first['note']}."))
+    b = first["blend"]
+    if b is not None:
+        phi, w = b["volume_fraction_first"], b["weight_fraction_first"]
+        blocks.append(("p", f"Blend: {phi * 100:.0f} % {b['first']} and {(1 - phi) * 100:.0f} % "
+                       f"{b['with']} by volume ({w * 100:.0f} % / {(1 - w) * 100:.0f} % by "
+                       f"weight) for about Shore A{b['target_shore_a']:g}: interpolated in "
+                       "modulus by Gent's relation, an approximation. Mix each grade's A and "
+                       "B as listed, then combine."))
 
-    names = [p.what for p in plan0.quantities.portions]
+    names = [p["what"] for p in first["portions"]]
     head = ["variant", "cast cm3", "sprue+vents cm3", "mixed cm3", "mixed g",
             *[f"{n} g" for n in names], "checks"]
     rows = []
     totals = [0.0] * len(names)
-    for ms in family:
-        q = ms.casting.quantities
-        verdict = "errors" if ms.errors else ("warnings" if ms.warnings else "ok")
-        grams = [p.grams for p in q.portions]
+    for man in family:
+        c = man["casting"]
+        grams = [p["g"] for p in c["portions"]]
         totals = [t + x for t, x in zip(totals, grams)]
-        rows.append([ms.recipe.label, _fmt(q.cast_mm3 / 1000, 2), _fmt(q.fill_mm3 / 1000, 2),
-                     _fmt(q.mixed_mm3 / 1000, 2), _fmt(q.mixed_g, 1),
-                     *[f"{x:g}" for x in grams], verdict])
+        rows.append([man["label"], _fmt(c["cast_volume_mm3"] / 1000, 2),
+                     _fmt(c["fill_volume_mm3"] / 1000, 2), _fmt(c["mixed_volume_mm3"] / 1000, 2),
+                     _fmt(c["mixed_mass_g"], 1), *[f"{x:g}" for x in grams],
+                     {"ok": "ok", "warning": "warnings", "error": "errors"}[man["verdict"]]])
     if len(family) > 1:
         rows.append(["all", "", "", "", "", *[f"{round(t, 6):g}" for t in totals], ""])
     blocks.append(("h2", "Weigh out"))
-    blocks.append(("p", f"Includes {plan0.quantities.waste_pct:g} % for waste; weights are "
-                   "rounded up to the scale's resolution. Mix each variant separately unless "
-                   "you can pour them all within the pot life."))
+    blocks.append(("p", f"Includes {first['waste_pct']:g} % for waste; weights are rounded up "
+                   "to the scale's resolution. Mix each variant separately unless you can "
+                   "pour them all within the pot life."))
     blocks.append(("table", head, rows))
 
     blocks.append(("h2", "Steps"))
@@ -107,16 +107,17 @@ def card_blocks(family: Sequence[Any], title: str) -> list[Block]:
 
     blocks.append(("h2", "Wall pressure (estimate)"))
     prow = []
-    for ms in family:
-        work = ms.recipe.inflate.working_pressure_kpa
-        for w in ms.pressures:
-            lim = "no peak" if w.limit_kpa is None else f"{w.limit_kpa:.0f}"
-            m = w.margin(work)
-            prow.append([ms.recipe.label, w.group, _fmt(w.thickness_mm, 2),
-                         f"{2 * w.radius_mm:g}", lim,
+    for man in family:
+        pr = man["pressure"]
+        work = pr["working_pressure_kpa"]
+        for w in pr["walls"]:
+            lim = "no peak" if w["limit_kpa"] is None else f"{w['limit_kpa']:.0f}"
+            m = w["margin"]
+            prow.append([man["label"], w["group"], _fmt(w["thickness_mm"], 2),
+                         f"{w['span_mm']:g}", lim,
                          "-" if work is None else f"{work:.0f} ({kpa_to_psi(work):.1f} psi)",
                          "-" if m is None else f"{m:.2f}" + (" balloons" if m < 1 else ""),
-                         "rough" if w.thick else ""])
+                         "rough" if w["thick_wall"] else ""])
     if prow:
         blocks.append(("p", "Neo-Hookean membrane estimate from Gent's modulus (limit "
                        "pressure, after which a wall balloons); thick walls are rough; a tube "
@@ -130,25 +131,34 @@ def card_blocks(family: Sequence[Any], title: str) -> list[Block]:
 
     blocks.append(("h2", "Checks"))
     items = []
-    for ms in family:
-        bad = [f for f in ms.findings if f.severity in ("error", "warning")]
+    for man in family:
+        bad = [f for f in man["checks"] if f["severity"] in ("error", "warning")]
         if not bad:
-            items.append(f"{ms.recipe.label}: no errors or warnings.")
+            items.append(f"{man['label']}: no errors or warnings.")
         for f in bad:
-            items.append(f"{ms.recipe.label}: {f.severity} {f.check} ({f.part}): {f.message}")
+            items.append(f"{man['label']}: {f['severity']} {f['check']} ({f['part']}): "
+                         f"{f['message']}")
     blocks.append(("ul", items))
 
     blocks.append(("h2", "Printing (estimate; the slicer's figure wins)"))
     prows = []
-    for ms in family:
-        for pe in ms.casting.prints:
-            prows.append([ms.recipe.label, pe.part, _fmt(pe.volume_mm3 / 1000, 1),
-                          f"{pe.infill_pct:g} %", _fmt(pe.mass_g, 0)])
+    for man in family:
+        for pe in man["casting"]["prints"]:
+            prows.append([man["label"], pe["part"], _fmt(pe["volume_mm3"] / 1000, 1),
+                          f"{pe['infill_pct']:g} %", _fmt(pe["mass_g_estimate"], 0)])
     blocks.append(("table", ["variant", "part", "volume cm3", "infill", "filament g"], prows))
 
     blocks.append(("h2", "Cautions"))
     blocks.append(("ul", list(CAUTIONS)))
     return blocks
+
+
+def card_files(family: Sequence[dict[str, Any]], title: str,
+               stem: str = "casting-card") -> dict[str, bytes]:
+    """``{stem}.md`` and ``{stem}.html`` for ``family`` (manifests, in label order)."""
+    blocks = card_blocks(family, title)
+    return {f"{stem}.md": render_markdown(blocks).encode(),
+            f"{stem}.html": render_html(blocks).encode()}
 
 
 def render_markdown(blocks: Sequence[Block]) -> str:

@@ -14,6 +14,7 @@ import itertools
 import json
 import math
 import os
+import re
 from collections.abc import Mapping
 from pathlib import Path
 from typing import Any
@@ -173,3 +174,20 @@ def json_bytes(obj: Any) -> bytes:
         default=_json_default,
     )
     return (text + "\n").encode("utf-8")
+
+
+_STALE = re.compile(r"^\..+\.\d+\.\d+\.tmp$")
+
+
+def remove_stale_temps(directory: Path) -> int:
+    """Remove temporary files a killed writer left in ``directory`` (the names
+    :func:`write_atomic` stages under); returns how many. Finished files are never
+    touched."""
+    if not directory.is_dir():
+        return 0
+    n = 0
+    for p in directory.iterdir():
+        if p.is_file() and _STALE.match(p.name):
+            _remove_quietly(p)
+            n += 1
+    return n

@@ -11,6 +11,9 @@ same bytes on every run and platform.
 
 from __future__ import annotations
 
+import struct
+from pathlib import Path
+
 import numpy as np
 
 from soft_molds.meshdata import TriMesh
@@ -57,3 +60,20 @@ def encode_binary_stl(mesh: TriMesh, label: str = "") -> bytes:
     records["vertices"] = mesh.triangles()
     # attribute stays 0 (np.zeros); the spec leaves it unused.
     return _header(label) + np.uint32(m).astype("<u4").tobytes() + records.tobytes()
+
+
+def read_binary_stl(path) -> TriMesh:
+    """A binary STL file as a triangle soup (three vertices per facet, none shared), mm.
+
+    Reads what :func:`encode_binary_stl` writes (header, count, 50-byte facets) and refuses
+    a file whose size does not match its count."""
+    data = Path(path).read_bytes()
+    if len(data) < 84:
+        raise ValueError(f"{path}: too short for a binary STL")
+    (n,) = struct.unpack_from("<I", data, 80)
+    if len(data) != 84 + 50 * n:
+        raise ValueError(f"{path}: {len(data)} bytes, but {n} facets need {84 + 50 * n}")
+    rec = np.frombuffer(data, dtype=np.dtype([("n", "<f4", 3), ("v", "<f4", (3, 3)),
+                                              ("a", "<u2")]), count=n, offset=84)
+    verts = rec["v"].reshape(-1, 3).astype(np.float64)
+    return TriMesh(verts, np.arange(len(verts), dtype=np.int64).reshape(-1, 3))

@@ -8,13 +8,17 @@ the inlet socket. All lengths mm.
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass
 from typing import Protocol
+
+import numpy as np
 
 from ..errors import GeometryError
 from ..recipe.layout import MIN_LAND_MM, NOTCH_HALF_HEIGHT_MM, Layout, plan_layout
 from ..recipe.model import Recipe
 from . import kernel as k
+from . import labels
 
 #: The cut tools for sprue and vents start this far below the lowest point of the
 #: ceiling under their mouth, so they always open fully into the cavity and leave no
@@ -43,6 +47,134 @@ class Opening(Protocol):
     floor_mm: float | None
 
 
+#: Least land kept between a label and the edges of the face it is cut into (mm); never
+#: less than a printed wall (perimeters x nozzle) beyond the strokes' round ends.
+LABEL_MARGIN_MM = 1.5
+
+
+def label_margin(r: Recipe) -> float:
+    wall = r.printer.perimeters * r.printer.nozzle_mm
+    return max(LABEL_MARGIN_MM, wall + r.label_settings.stroke_mm / 2.0 + 0.1)
+#: Smallest glyph height cut; lower faces get no label (mm).
+LABEL_MIN_HEIGHT_MM = 3.0
+
+
+@dataclass(frozen=True)
+class Label:
+    """A label cut into one part: the text, glyph height used (mm) and the world box
+    (lo, hi) that holds it, grown by half a stroke."""
+
+    part: str
+    text: str
+    height_mm: float
+    box: tuple[tuple[float, float, float], tuple[float, float, float]]
+
+
+def _label_tool(r: Recipe, part: str, centre: Sequence[float], right: Sequence[float],
+                up: Sequence[float], room_mm: float) -> tuple[k.Shape, Label] | None:
+    """The tool that cuts the recipe's label into the flat face through ``centre`` (the
+    middle of the text), reading along ``right`` with capitals along ``up`` (outward
+    normal right x up); ``room_mm`` is the face's height along ``up``. None when labels are
+    off or the face is too low."""
+    from ..recipe.strokefont import text_width_mm
+
+    ls = r.label_settings
+    h = min(ls.height_mm, room_mm - 2.0 * label_margin(r))
+    if ls.mode == "none" or h < LABEL_MIN_HEIGHT_MM:
+        return None
+    text = r.label_text
+    c, rv, uv = (np.asarray(v, dtype=np.float64) for v in (centre, right, up))
+    width = text_width_mm(text, h)
+    origin = c - rv * (width / 2.0) - uv * (h / 2.0)
+    tool = labels.label_solid(text, tuple(origin), tuple(rv), tuple(uv), h, ls.depth_mm,
+                              ls.stroke_mm, part)
+    n = np.cross(rv, uv)
+    corners = [origin + a * rv * width + b * uv * h + t * n
+               for a in (0, 1) for b in (0, 1) for t in (-ls.depth_mm, 0.2)]
+    grow = ls.stroke_mm / 2.0 + 0.05
+    lo = tuple(float(x) - grow for x in np.min(corners, axis=0))
+    hi = tuple(float(x) + grow for x in np.max(corners, axis=0))
+    return tool, Label(part, text, h, (lo, hi))  # type: ignore[arg-type]
+
+
+def _cut_label(r: Recipe, shape: k.Shape, part: str, centre: Sequence[float],
+               right: Sequence[float], up: Sequence[float], room_mm: float
+               ) -> tuple[k.Shape, Label | None]:
+    made = _label_tool(r, part, centre, right, up, room_mm)
+    if made is None:
+        return shape, None
+    tool, lab = made
+    out, _ = labels.deboss(shape, tool, part, "cut the label",
+                           depth_mm=r.label_settings.depth_mm)
+    return out, lab
+
+
+def _axis(i: int, sign: float = 1.0) -> np.ndarray:
+    e = np.zeros(3)
+    e[i] = sign
+    return e
+
+
+def shell_label_tool(r: Recipe, lay: Layout, part: str, lower: bool
+                     ) -> tuple[k.Shape, Label] | None:
+    """The tool for the label on the shell's -v side face (no keys, notches or bolts reach
+    it), read with up along +w in pour orientation."""
+    f = lay.frame
+    wa, va = f.w_axis, f.v_axis
+    w0, w1 = ((lay.block_lo[wa], lay.parting_w) if lower else (lay.parting_w, lay.block_hi[wa]))
+    up = _axis(wa)
+    normal = _axis(va, -1.0)
+    right = np.cross(up, normal)  # so that right x up = the outward normal
+    centre = np.zeros(3)
+    centre[0] = (lay.block_lo[0] + lay.block_hi[0]) / 2.0
+    centre[va] = lay.block_lo[va]
+    centre[wa] = (w0 + w1) / 2.0
+    return _label_tool(r, part, centre, right, up, w1 - w0)
+
+
+def core_tag(r: Recipe, lay: Layout) -> tuple[tuple[float, float, float],
+                                              tuple[float, float, float]] | None:
+    """The flat grip tab at the outer end of the core print that carries the label: a box
+    (lo, hi) in the parting plane's directions, thick enough for the cut and a printed wall
+    below it. None when labels are off."""
+    from ..recipe.strokefont import text_width_mm
+
+    ls = r.label_settings
+    if ls.mode == "none":
+        return None
+    f = lay.frame
+    wa, va = f.w_axis, f.v_axis
+    cy, cz = r.inlet.center_mm
+    c = (0.0, cy, cz)
+    length = text_width_mm(r.label_text, ls.height_mm) + 2.0 * label_margin(r)
+    across = ls.height_mm + 2.0 * label_margin(r)
+    thick = max(2.5, ls.depth_mm + r.printer.perimeters * r.printer.nozzle_mm)
+    lo, hi = [0.0] * 3, [0.0] * 3
+    lo[0], hi[0] = lay.core_start_x - length, lay.core_start_x
+    lo[va], hi[va] = c[va] - across / 2.0, c[va] + across / 2.0
+    lo[wa], hi[wa] = c[wa] - thick / 2.0, c[wa] + thick / 2.0
+    return tuple(lo), tuple(hi)  # type: ignore[return-value]
+
+
+def label_core(r: Recipe, lay: Layout, core: k.Shape) -> tuple[k.Shape, Label | None]:
+    """Add the grip tab to the core print and cut the label into its +w face."""
+    tab = core_tag(r, lay)
+    if tab is None:
+        return core, None
+    lo, hi = tab
+    f = lay.frame
+    wa, va = f.w_axis, f.v_axis
+    plate = k.box(lo, hi)
+    vol = k.volume(core) + float(np.prod(np.subtract(hi, lo)))
+    core = k.fuse([core, plate], "core", "add the grip tab", volume_mm3=vol)
+    centre = [(a + b) / 2.0 for a, b in zip(lo, hi)]
+    centre[wa] = hi[wa]
+    up = _axis(va)
+    normal = _axis(wa)
+    right = np.cross(up, normal)
+    return _cut_label(r, core, "core", centre, right, up, hi[va] - lo[va])
+
+
 @dataclass(frozen=True)
 class ShellSolids:
     lower: k.Shape
@@ -50,6 +182,7 @@ class ShellSolids:
     funnel_diameter_mm: float | None  # as cut (None: no sprue)
     fill_volume_mm3: float = 0.0      # silicone standing in sprue, funnel and vents when
     #                                   poured to the top face (from each mouth's centre up)
+    labels: tuple[Label, ...] = ()
 
 
 def funnel_radius(lay: Layout, m, at_uv: tuple[float, float], sprue_r: float) -> float:
@@ -119,7 +252,14 @@ def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> Sh
         hi = f.world(u + du / 2, v + dv / 2, lay.parting_w + NOTCH_HALF_HEIGHT_MM)
         tools.append(k.box(tuple(min(a, b) for a, b in zip(lo, hi)),
                            tuple(max(a, b) for a, b in zip(lo, hi))))
-    shell = k.cut(block, tools, "shell", "cut cavity, core seat, clamp holes, pry notches")
+    # The labels of both halves are cut with the cavity, in the same boolean (each of them
+    # alone would cost as much again); they stop short of the parting plane.
+    made = [shell_label_tool(r, lay, name, lower=name == "shell-lower")
+            for name in ("shell-lower", "shell-upper")]
+    shell_labels = tuple(m[1] for m in made if m is not None)
+    tools += [m[0] for m in made if m is not None]
+    shell = k.cut(block, tools, "shell", "cut cavity, core seat, clamp holes, pry notches, "
+                  "labels")
     lower, upper = k.split_at(shell, wa, lay.parting_w, "shell")
 
     # Registration keys: drafted pegs on the lower part, sockets with clearance above.
@@ -164,4 +304,4 @@ def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> Sh
     if not k.volume(upper) < before:
         raise GeometryError("cut key sockets, sprue and vents", "nothing was removed",
                             "shell-upper")
-    return ShellSolids(lower, upper, funnel_d, fill)
+    return ShellSolids(lower, upper, funnel_d, fill, shell_labels)

@@ -16,6 +16,7 @@ from .model import (
     Checks,
     Inflate,
     Inlet,
+    LabelSettings,
     Material,
     MeshSettings,
     MoldSettings,
@@ -26,10 +27,19 @@ from .model import (
 from .registry import body_kinds, void_kinds
 from .sanity import sanity_problems
 from .schema import BLOCKS, TOP_FIELDS
+from .variants import (
+    VariantSpec,
+    apply_changes,
+    expand,
+    merge_problems,
+    prefix_problems,
+    without_variants,
+)
 from .yamlsource import Node, parse_recipe_text, read_recipe_file
 
 NAME_RE = re.compile(r"^[a-z0-9][a-z0-9_-]{0,63}$")
 LABEL_RE = re.compile(r"^[A-Z0-9][A-Z0-9-]{0,11}$")
+TAG_RE = re.compile(r"^[A-Za-z0-9.-]{1,8}$")
 MAX_VOIDS = 16
 
 
@@ -90,8 +100,61 @@ def _read_kind(node: Node | None, path: str, registry: dict, problems: list[Prob
     return cls(**values)
 
 
+def load_variants(path: str | os.PathLike) -> tuple[tuple[VariantSpec, Recipe], ...]:
+    """Every variant of a recipe file (one, labelled as the recipe says, when it has no
+    ``variants`` block), each validated; a :class:`RecipeError` lists every problem, those
+    of a variant naming its label."""
+    root, source = read_recipe_file(path)
+    return variants_from_node(root, source, _stem_name(path), Path(path).resolve().parent)
+
+
+def variants_from_text(text: str, source: str = "recipe", default_name: str = "recipe",
+                       base_dir: str | os.PathLike | None = None
+                       ) -> tuple[tuple[VariantSpec, Recipe], ...]:
+    return variants_from_node(parse_recipe_text(text, source), source, default_name,
+                              None if base_dir is None else Path(base_dir))
+
+
+def variants_from_node(root: Node, source: str, default_name: str = "recipe",
+                       base_dir: Path | None = None) -> tuple[tuple[VariantSpec, Recipe], ...]:
+    specs, problems = expand(root)
+    if problems:
+        raise RecipeError(problems, source)
+    base = without_variants(root)
+    # The recipe as written first: its own problems are reported once, not per variant.
+    base_recipe = recipe_from_node(base, source, default_name, base_dir)
+    out = []
+    for spec in specs:
+        if not spec.changes:
+            r = base_recipe
+        else:
+            found: list[Problem] = []
+            node = apply_changes(base, spec.changes, found, spec.label)
+            if found:
+                problems.extend(found)
+                continue
+            try:
+                r = recipe_from_node(node, source, default_name, base_dir)
+            except RecipeError as exc:
+                problems.extend(prefix_problems(exc, spec))
+                continue
+        if spec.label:
+            r = replace(r, label=spec.label)
+        out.append((spec, r))
+    if problems:
+        raise RecipeError(merge_problems(problems), source)
+    labels = [r.label for _, r in out]
+    if len(set(labels)) != len(labels):
+        raise RecipeError([Problem("variants", "gives two variants the same label", None,
+                                   labels, "distinct labels")], source)
+    return tuple(out)
+
+
 def recipe_from_node(root: Node, source: str, default_name: str = "recipe",
                      base_dir: Path | None = None) -> Recipe:
+    """Validate a recipe document (its ``variants`` block, if any, is left to
+    :func:`variants_from_node`)."""
+    root = without_variants(root)
     problems: list[Problem] = []
     top = MapReader(root, "", problems, 1, what="a mapping (the recipe's top level)")
     if not isinstance(root.value, dict):
@@ -177,6 +240,15 @@ def recipe_from_node(root: Node, source: str, default_name: str = "recipe",
     if problems:
         raise RecipeError(problems, source)
     working = psi_to_kpa(psi) if psi is not None else kpa
+    lab = dict(blocks["marking"])
+    if lab["tag"] is None:
+        lab["tag"] = "".join(w[0] for w in re.split(r"[-_]+", str(name)) if w).upper()[:4]
+    elif not TAG_RE.match(lab["tag"]):
+        problems.append(Problem("marking.tag", "has characters the label font does not draw",
+                                line("marking.tag"), lab["tag"],
+                                "up to 8 of A-Z, 0-9, '-' and '.' (lower case is raised)"))
+        raise RecipeError(problems, source)
+    lab["tag"] = lab["tag"].upper()
 
     recipe = Recipe(
         name=name, label=label, description=vals["description"] or "", body=body,
@@ -185,6 +257,7 @@ def recipe_from_node(root: Node, source: str, default_name: str = "recipe",
         mesh=MeshSettings(**blocks["mesh"]),
         material=Material(**blocks["material"], silicone=silicone, blend=blend),
         inflate=Inflate(working), casting=CastingSettings(**blocks["casting"]),
+        label_settings=LabelSettings(**lab),
         printer=PrinterSettings(**blocks["printer"]), source=source)
 
     problems.extend(sanity_problems(recipe, lines))

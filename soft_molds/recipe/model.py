@@ -113,6 +113,18 @@ class CastingSettings:
 
 
 @dataclass(frozen=True)
+class LabelSettings:
+    """The label cut into every printed part: ``mode`` deboss or none, the recipe ``tag``
+    (resolved: never None), glyph ``height_mm``, ``depth_mm`` and ``stroke_mm``."""
+
+    mode: str
+    tag: str
+    height_mm: float
+    depth_mm: float
+    stroke_mm: float
+
+
+@dataclass(frozen=True)
 class PrinterSettings:
     """FDM printer limits: bed (x, y) and height (mm), nozzle (mm), wall perimeters and the
     steepest overhang from vertical (deg)."""
@@ -147,8 +159,14 @@ class Recipe:
     material: Material
     inflate: Inflate
     casting: CastingSettings
+    label_settings: LabelSettings
     printer: PrinterSettings
     source: str = ""
+
+    @property
+    def label_text(self) -> str:
+        """What is cut into the parts: the recipe tag and the variant label."""
+        return f"{self.label_settings.tag} {self.label}".strip()
 
     def body_primitives(self) -> tuple[Primitive, ...]:
         return self.body.primitives()
@@ -176,6 +194,7 @@ class Recipe:
             "material": asdict(self.material),
             "inflate": asdict(self.inflate),
             "casting": asdict(self.casting),
+            "label_settings": asdict(self.label_settings),
             "printer": asdict(self.printer),
         }
 

@@ -104,6 +104,18 @@ CASTING_FIELDS: tuple[Field, ...] = (
            "(about 1.24 for PLA, from memory)", 1.24, unit="g/cm3", lo=0.5, hi=3.0),
 )
 
+LABEL_FIELDS: tuple[Field, ...] = (
+    choice("mode", "cut the variant label into every printed part (deboss) or not",
+           ("deboss", "none"), "deboss"),
+    text("tag", "short recipe tag cut before the variant label (A-Z, 0-9, '-', '.'); "
+         "default: the initials of the recipe name", None),
+    number("height_mm", "capital height of the label glyphs (shrunk to fit a low face)",
+           5.0, lo=3.0, hi=20.0, lo_open=False),
+    number("depth_mm", "how deep the glyphs are cut", 0.6, lo=0.3, hi=3.0, lo_open=False),
+    number("stroke_mm", "glyph stroke width (at least two nozzle widths prints cleanly)", 1.0,
+           lo=0.5, hi=3.0, lo_open=False),
+)
+
 PRINTER_FIELDS: tuple[Field, ...] = (
     pair("bed_mm", "printable area of the bed (x, y)", (220.0, 220.0), lo=10.0, hi=2000.0),
     number("height_mm", "largest printable height", 250.0, lo=10.0, hi=2000.0),
@@ -129,6 +141,7 @@ BLOCKS: dict[str, tuple[Field, ...]] = {
     "material": MATERIAL_FIELDS,
     "inflate": INFLATE_FIELDS,
     "casting": CASTING_FIELDS,
+    "marking": LABEL_FIELDS,
     "printer": PRINTER_FIELDS,
     "mesh": MESH_FIELDS,
 }
