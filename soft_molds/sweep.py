@@ -271,37 +271,50 @@ def _with_spec(o: Outcome, t: Task) -> Outcome:
 
 
 def _run_pool(todo, root, jobs, force, recycle_after, prog, worker, outcomes, _sched) -> bool:
+    """Run ``todo`` in generations of worker processes: each generation's pool gets at most
+    ``recycle_after`` variants per worker and is then replaced by a fresh one (the pool's
+    own per-worker recycling is not dependable on every Python 3.11 release). A pool whose
+    worker dies takes only that worker's variants down: they are recorded as failed and a
+    new pool carries on."""
     import multiprocessing as mp
+    from concurrent.futures.process import BrokenProcessPool
 
     ctx = mp.get_context("spawn")
-    ex = ProcessPoolExecutor(max_workers=max(1, jobs), mp_context=ctx,
-                             initializer=_init_worker, max_tasks_per_child=recycle_after)
-    pending: dict[Future, Task] = {}
+    jobs = max(1, jobs)
     queue = list(todo)
     interrupted = False
-    try:
-        # Keep at most two tasks per worker in flight, so a Ctrl-C leaves little to cancel.
-        while queue or pending:
-            while queue and len(pending) < 2 * max(1, jobs):
-                t = queue.pop(0)
-                pending[ex.submit(worker, t.recipe, root, force)] = t
-            finished, _ = wait(list(pending), return_when=FIRST_COMPLETED)
-            for fut in finished:
+    while queue and not interrupted:
+        batch, queue = queue[: jobs * recycle_after], queue[jobs * recycle_after:]
+        ex = ProcessPoolExecutor(max_workers=min(jobs, len(batch)), mp_context=ctx,
+                                 initializer=_init_worker)
+        pending: dict[Future, Task] = {}
+        try:
+            # At most two variants per worker in flight, so a Ctrl-C leaves little to cancel.
+            while batch or pending:
+                while batch and len(pending) < 2 * jobs:
+                    t = batch.pop(0)
+                    pending[ex.submit(worker, t.recipe, root, force)] = t
+                finished, _ = wait(list(pending), return_when=FIRST_COMPLETED)
+                for fut in finished:
+                    _collect(fut, pending.pop(fut), outcomes, prog)
+        except BrokenProcessPool:
+            for fut in list(pending):
                 _collect(fut, pending.pop(fut), outcomes, prog)
-    except KeyboardInterrupt:
-        interrupted = True
-        queue.clear()
-        for fut in list(pending):
-            if fut.cancel():
-                pending.pop(fut)
-        print("interrupted: finishing the variants being built", file=prog.stream, flush=True)
-        for fut in list(pending):
-            try:
-                _collect(fut, pending.pop(fut), outcomes, prog)
-            except KeyboardInterrupt:
-                break
-    finally:
-        ex.shutdown(wait=True, cancel_futures=True)
+            queue = batch + queue  # the rest go to a fresh pool
+        except KeyboardInterrupt:
+            interrupted = True
+            for fut in list(pending):
+                if fut.cancel():
+                    pending.pop(fut)
+            print("interrupted: finishing the variants being built", file=prog.stream,
+                  flush=True)
+            for fut in list(pending):
+                try:
+                    _collect(fut, pending.pop(fut), outcomes, prog)
+                except KeyboardInterrupt:
+                    break
+        finally:
+            ex.shutdown(wait=True, cancel_futures=True)
     return interrupted
 
 

@@ -143,14 +143,19 @@ def fuse(shapes: Sequence[cq.Shape], part: str, step: str,
 
 
 def cut(base: cq.Shape, tools: Sequence[cq.Shape], part: str, step: str,
-        solids: int | None = 1, volume_mm3: float | None = None) -> cq.Shape:
-    """Cut every tool from ``base`` in one boolean."""
+        solids: int | None = 1, volume_mm3: float | None = None,
+        clean: bool = True) -> cq.Shape:
+    """Cut every tool from ``base`` in one boolean. ``clean=False`` skips merging coplanar
+    faces afterwards: right for a last cut of many small faces (a label), where merging
+    costs more than the cut and gains nothing."""
     if not tools:
         return base
     try:
         raw = base.cut(*tools)
     except Exception as exc:
         raise GeometryError(step, f"cut failed: {exc}", part) from exc
+    if not clean:
+        return checked(raw, part, step, solids, volume_mm3)
     shape, valid, vol = _clean(raw)
     return checked(shape, part, step, solids, volume_mm3, known_valid=valid, known_volume=vol)
 

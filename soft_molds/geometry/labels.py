@@ -21,7 +21,7 @@ import cadquery as cq
 import numpy as np
 
 from ..errors import GeometryError
-from ..recipe.strokefont import text_segments
+from ..recipe.strokefont import ADVANCE, GLYPH_HEIGHT, text_segments
 from . import kernel
 
 #: Defaults for labels on printed mold parts: 5 mm capitals, 0.6 mm deep, 1.0 mm strokes
@@ -138,15 +138,32 @@ def label_solid(text: str, origin: Sequence[float], right: Sequence[float],
                           solids=len(placed))
 
 
-@functools.lru_cache(maxsize=8)
 def _pieces(text: str, height_mm: float, depth_mm: float, stroke_mm: float,
             part: str) -> tuple[cq.Shape, ...]:
-    """The tool's connected pieces in the text frame (x right, y up, z out of the face),
-    built once per text and size and placed as often as needed (a mold set labels its
-    three printed parts with the same text)."""
-    segs = text_segments(text, height_mm)
-    if len(segs) == 0:
+    """The tool's connected pieces in the text frame (x right, y up, z out of the face).
+
+    Glyphs are built once per character and size (:func:`_glyph_pieces`) and moved to
+    their place: a sweep's labels share most of their characters, and a mold set cuts the
+    same text into three parts. Neighbouring glyphs stay apart (the font's gap exceeds
+    the stroke width, checked when the text is grouped)."""
+    if len(text_segments(text, height_mm)) == 0:
         raise ValueError(f"label {text!r} has no strokes to cut")
+    _stroke_groups(text_segments(text, height_mm), stroke_mm, part)  # refuses touching
+    step = ADVANCE * height_mm / GLYPH_HEIGHT
+    out: list[cq.Shape] = []
+    for i, ch in enumerate(text.upper()):
+        for piece in _glyph_pieces(ch, height_mm, depth_mm, stroke_mm, part):
+            out.append(piece.translate(cq.Vector(i * step, 0.0, 0.0)) if i else piece)
+    return tuple(out)
+
+
+@functools.lru_cache(maxsize=256)
+def _glyph_pieces(char: str, height_mm: float, depth_mm: float, stroke_mm: float,
+                  part: str) -> tuple[cq.Shape, ...]:
+    """One character's connected pieces at the text origin (empty for a space)."""
+    segs = text_segments(char, height_mm)
+    if len(segs) == 0:
+        return ()
 
     half = stroke_mm / 2.0
     length = depth_mm + OVERSHOOT_MM
@@ -199,5 +216,6 @@ def deboss(part_shape: cq.Shape, tool: cq.Shape, part: str, step: str,
         inside = kernel.volume(kernel.checked(common, part, step + " (tool inside part)",
                                               solids=None))
     before = kernel.volume(part_shape)
-    out = kernel.cut(part_shape, [tool], part, step, volume_mm3=before - inside)
+    # The label is the last cut into a part: leave its many small faces unmerged.
+    out = kernel.cut(part_shape, [tool], part, step, volume_mm3=before - inside, clean=False)
     return out, before - kernel.volume(out)

@@ -252,14 +252,11 @@ def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> Sh
         hi = f.world(u + du / 2, v + dv / 2, lay.parting_w + NOTCH_HALF_HEIGHT_MM)
         tools.append(k.box(tuple(min(a, b) for a, b in zip(lo, hi)),
                            tuple(max(a, b) for a, b in zip(lo, hi))))
-    # The labels of both halves are cut with the cavity, in the same boolean (each of them
-    # alone would cost as much again); they stop short of the parting plane.
+    # The labels are cut last (see labels.deboss); they stop short of the parting plane.
     made = [shell_label_tool(r, lay, name, lower=name == "shell-lower")
             for name in ("shell-lower", "shell-upper")]
     shell_labels = tuple(m[1] for m in made if m is not None)
-    tools += [m[0] for m in made if m is not None]
-    shell = k.cut(block, tools, "shell", "cut cavity, core seat, clamp holes, pry notches, "
-                  "labels")
+    shell = k.cut(block, tools, "shell", "cut cavity, core seat, clamp holes, pry notches")
     lower, upper = k.split_at(shell, wa, lay.parting_w, "shell")
 
     # Registration keys: drafted pegs on the lower part, sockets with clearance above.
@@ -304,4 +301,10 @@ def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> Sh
     if not k.volume(upper) < before:
         raise GeometryError("cut key sockets, sprue and vents", "nothing was removed",
                             "shell-upper")
+    depth = r.label_settings.depth_mm
+    for m_ in made:
+        if m_ is not None and m_[1].part == "shell-lower":
+            lower, _ = labels.deboss(lower, m_[0], "shell-lower", "cut the label", depth)
+        elif m_ is not None:
+            upper, _ = labels.deboss(upper, m_[0], "shell-upper", "cut the label", depth)
     return ShellSolids(lower, upper, funnel_d, fill, shell_labels)
