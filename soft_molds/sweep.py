@@ -190,12 +190,17 @@ def _rss_mb() -> float:
     return pages * os.sysconf("SC_PAGE_SIZE") / 2 ** 20
 
 
-def _init_worker() -> None:
+def _init_worker(threads: bool = True) -> None:
     import signal
 
     # Ctrl-C is the parent's to handle: a worker finishes the variant it is building.
     signal.signal(signal.SIGINT, signal.SIG_IGN)
     import cadquery  # noqa: F401  (the kernel import, once per worker)
+
+    from .geometry import kernel
+
+    # With a worker per core, OCCT's own threads only compete with the other workers.
+    kernel.set_parallel(threads)
 
 
 class Progress:
@@ -279,19 +284,20 @@ def _run_pool(todo, root, jobs, force, recycle_after, prog, worker, outcomes, _s
     import multiprocessing as mp
     from concurrent.futures.process import BrokenProcessPool
 
-    ctx = mp.get_context("spawn")
+    ctx = _context(mp)
     jobs = max(1, jobs)
     queue = list(todo)
     interrupted = False
     while queue and not interrupted:
         batch, queue = queue[: jobs * recycle_after], queue[jobs * recycle_after:]
         ex = ProcessPoolExecutor(max_workers=min(jobs, len(batch)), mp_context=ctx,
-                                 initializer=_init_worker)
+                                 initializer=_init_worker, initargs=(jobs == 1,))
         pending: dict[Future, Task] = {}
         try:
-            # At most two variants per worker in flight, so a Ctrl-C leaves little to cancel.
+            # One variant per worker in flight: a Ctrl-C then waits for no more than the
+            # variants being built (the pool would start queued ones it cannot cancel).
             while batch or pending:
-                while batch and len(pending) < 2 * jobs:
+                while batch and len(pending) < jobs:
                     t = batch.pop(0)
                     pending[ex.submit(worker, t.recipe, root, force)] = t
                 finished, _ = wait(list(pending), return_when=FIRST_COMPLETED)
@@ -316,6 +322,22 @@ def _run_pool(todo, root, jobs, force, recycle_after, prog, worker, outcomes, _s
         finally:
             ex.shutdown(wait=True, cancel_futures=True)
     return interrupted
+
+
+#: Imported once in the fork server, so every worker forked from it starts with the CAD
+#: kernel and the pipeline already loaded (a fresh import costs seconds per worker).
+PRELOAD = ["cadquery", "soft_molds.pipeline", "soft_molds.analysis.review",
+           "soft_molds.export.card"]
+
+
+def _context(mp):
+    """A fork server where the platform has one (it has not run the kernel, so forking
+    it is safe), else spawned workers that import everything themselves."""
+    if "forkserver" in mp.get_all_start_methods():
+        ctx = mp.get_context("forkserver")
+        ctx.set_forkserver_preload(PRELOAD)
+        return ctx
+    return mp.get_context("spawn")
 
 
 def _collect(fut: Future, t: Task, outcomes: dict[str, Outcome], prog: Progress) -> None:

@@ -33,7 +33,10 @@ def tessellate(shape: Shape, chord_mm: float, angle_deg: float, part: str) -> Tr
     relative to the part size) and ``angle_deg`` between neighbouring facets."""
     wrapped = shape.wrapped
     BRepTools.Clean_s(wrapped)  # a cached finer/coarser mesh would be reused silently
-    mesher = BRepMesh_IncrementalMesh(wrapped, chord_mm, False, math.radians(angle_deg), True)
+    from .kernel import parallel
+
+    mesher = BRepMesh_IncrementalMesh(wrapped, chord_mm, False, math.radians(angle_deg),
+                                      parallel())
     if not mesher.IsDone():
         raise GeometryError("tessellate", "the mesher did not finish", part)
     verts: list[np.ndarray] = []

@@ -42,3 +42,16 @@ def test_check_exits_1_on_an_error_and_strict_also_on_a_warning(tmp_path, capsys
     assert "WARNING core-slenderness" in out
     assert main(["check", "--strict", "recipes/seedling-finger.yaml"]) == 1
     assert "0 of 1 recipes passed (no errors or warnings)" in capsys.readouterr().out
+
+
+def test_check_of_a_folder_checks_every_variant_and_lists_the_failures(tmp_path, capsys):
+    # Two variants of the test finger; B's silicone stretches only 300 %: its core tears
+    # the inlet (hand arithmetic above), A passes.
+    text = FINGER_TEXT + ("variants:\n  labels:\n    A: {}\n    B:\n"
+                          "      material.elongation_pct: 300\n")
+    (tmp_path / "pair.yaml").write_text(text)
+    assert main(["check", str(tmp_path)]) == 1
+    out = capsys.readouterr().out
+    assert "1 of 2 recipes passed" in out
+    failed = [line for line in out.splitlines() if line.startswith("  failed:")]
+    assert len(failed) == 1 and " B: core-extraction" in failed[0]

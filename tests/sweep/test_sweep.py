@@ -178,3 +178,24 @@ def test_a_two_worker_dask_cluster_on_loopback_writes_the_same_bytes(one_job, re
     assert [o.status for o in outcomes] == ["built"] * 3
     a, b = _files(out1), _files(tmp_path)
     assert sorted(a) == sorted(b) and all(a[k] == b[k] for k in a)
+
+
+def test_ctrl_c_finishes_the_running_variant_and_reports_what_is_done(recipe_file,
+                                                                      tmp_path):
+    out = tmp_path / "out"
+    cmd = [sys.executable, "-m", "soft_molds", "sweep", str(recipe_file), "--jobs", "1",
+           "--out", str(out)]
+    proc = subprocess.Popen(cmd, cwd=ROOT, stdout=subprocess.PIPE, stderr=subprocess.PIPE,
+                            text=True)
+    first = out / "cushion-sweep" / "A" / "manifest.json"
+    deadline = time.monotonic() + 120
+    while not first.exists() and time.monotonic() < deadline and proc.poll() is None:
+        time.sleep(0.05)
+    assert first.exists(), "the first variant never finished"
+    proc.send_signal(signal.SIGINT)  # what Ctrl-C sends to the foreground process
+    stdout, stderr = proc.communicate(timeout=120)
+    assert proc.returncode == 130, stderr
+    assert "interrupted" in stderr and "Traceback" not in stderr
+    rows = json.loads((out / "summary.json").read_text())["variants"]
+    assert rows and all(r["status"] == "built" for r in rows) and len(rows) < 3
+    assert [p for p in out.rglob("*") if p.name.endswith(".tmp")] == []
