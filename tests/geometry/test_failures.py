@@ -20,10 +20,14 @@ def test_every_final_solid_passes_occt_validity(cushion):
 def test_a_kernel_failure_names_the_variant_and_the_step(monkeypatch):
     from soft_molds.geometry import kernel
 
-    def broken_split(*_a, **_k):
-        raise RuntimeError("Standard_ConstructionError (simulated)")
+    real = kernel.cq.Shape._bool_op
 
-    monkeypatch.setattr(kernel.cq.Shape, "split", broken_split)
+    def broken_split(self, args, tools, op, parallel=True):
+        if isinstance(op, kernel.BRepAlgoAPI_Splitter):
+            raise RuntimeError("Standard_ConstructionError (simulated)")
+        return real(self, args, tools, op, parallel)
+
+    monkeypatch.setattr(kernel.cq.Shape, "_bool_op", broken_split)
     with pytest.raises(GeometryError) as err:
         build(load_recipe(RECIPE))
     text = str(err.value)
