@@ -65,6 +65,7 @@ class MoldSet:
     parting_candidates: tuple[Any, ...] = ()  # PlaneScore per plane tried (parting: auto)
     casting: Any = None            # analysis.casting.CastingPlan: what to weigh and print
     labels: tuple[Any, ...] = ()   # geometry.mold.Label per printed part that carries one
+    source_params_sha256: str = ""  # hash of the recipe as given (before parting: auto)
 
     @property
     def pressures(self) -> tuple[Any, ...]:
@@ -125,6 +126,7 @@ class MoldSet:
             "tool_version": __version__,
             "units": "mm",
             "params_sha256": r.params_sha256(),
+            "source_params_sha256": self.source_params_sha256 or r.params_sha256(),
             "parts": parts,
             "silicone_volume_mm3": round(self.silicone_volume_mm3, 3),
             "void_volume_mm3": round(self.void_volume_mm3, 3),
@@ -286,6 +288,7 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     label = recipe.label
     chord, angle = recipe.mesh.chord_mm, recipe.mesh.angle_deg
 
+    source_hash = recipe.params_sha256()
     say("body")
     with _stage(timings, "body", label):
         body = mold.build_body(recipe)
@@ -343,7 +346,8 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
                             [(p.name, p.mesh, p.brep_volume_mm3) for p in parts
                              if p.role != "cast"])
     return MoldSet(recipe, tuple(parts), tuple(openings), cs.layout, volumes,
-                   shells.funnel_diameter_mm, timings, rev, candidates, plan, labels)
+                   shells.funnel_diameter_mm, timings, rev, candidates, plan, labels,
+                   source_hash)
 
 
 def k_volume(shape: Any) -> float:

@@ -88,14 +88,20 @@ def plan_tasks(paths: Iterable[str | os.PathLike]) -> list[Task]:
     the problems of every file at once."""
     from .recipe.load import load_variants
 
-    tasks, problems, sources = [], [], []
+    tasks, problems = [], []
     for p in paths:
         try:
             for spec, r in load_variants(p):
                 tasks.append(Task(str(p), spec, r))
         except RecipeError as exc:
             problems.extend(exc.lines())
-            sources.append(exc.source)
+    seen: dict[str, str] = {}
+    for t in tasks:
+        other = seen.setdefault(t.key, t.source)
+        if other != t.source:
+            problems.append(f"{t.source}: recipe {t.recipe.name!r} variant {t.recipe.label} "
+                            f"is also made by {other}; both would write {t.key}/ (give one "
+                            "of them another name)")
     if problems:
         raise SweepInputError(problems)
     return tasks
@@ -123,7 +129,10 @@ def up_to_date(root: str | os.PathLike, r: Recipe) -> dict[str, Any] | None:
         man = json.loads((d / "manifest.json").read_text())
     except (OSError, ValueError):
         return None
-    if man.get("params_sha256") != r.params_sha256() or man.get("tool_version") != __version__:
+    # The hash of the recipe as given: with parting: auto the build fills in the plane, so
+    # the manifest's own params hash differs from the task's.
+    if (man.get("source_params_sha256") != r.params_sha256()
+            or man.get("tool_version") != __version__):
         return None
     files = man.get("files")
     if not isinstance(files, dict) or not files:
@@ -207,14 +216,26 @@ class Progress:
     """One line per finished variant with a bar and an estimate of the time left."""
 
     def __init__(self, total: int, stream=None) -> None:
-        self.total, self.done = total, 0
+        self.total, self.done, self.worked = total, 0, 0
         self.start = time.perf_counter()
+        self.first_work: float | None = None
         self.stream = stream if stream is not None else sys.stderr
 
     def step(self, o: Outcome) -> None:
+        now = time.perf_counter()
         self.done += 1
-        el = time.perf_counter() - self.start
-        eta = el / self.done * (self.total - self.done) if self.done else 0.0
+        el = now - self.start
+        # The rate counts built variants only: up-to-date ones cost nothing and would make
+        # a resumed night look nearly finished.
+        if o.status != "up to date":
+            self.worked += 1
+            if self.first_work is None:
+                self.first_work = self.start
+        left = self.total - self.done
+        if self.worked and self.first_work is not None:
+            eta = (now - self.first_work) / self.worked * left
+        else:
+            eta = 0.0
         width = 20
         fill = round(width * self.done / max(self.total, 1))
         bar = "#" * fill + "." * (width - fill)
@@ -238,7 +259,7 @@ def run_sweep(tasks: Sequence[Task], out_root: str | os.PathLike, jobs: int = 1,
               scheduler: str | None = None) -> tuple[list[Outcome], bool]:
     """Build every task not already up to date; returns the outcomes in task order and
     whether the run was interrupted (Ctrl-C)."""
-    root = str(out_root)
+    root = str(Path(out_root).resolve())  # workers (or cluster nodes) may run elsewhere
     outcomes: dict[str, Outcome] = {}
     todo: list[Task] = []
     for t in tasks:
@@ -247,7 +268,13 @@ def run_sweep(tasks: Sequence[Task], out_root: str | os.PathLike, jobs: int = 1,
             todo.append(t)
             continue
         vol, mix = _figures(man)
-        outcomes[t.key] = Outcome(t.recipe.name, t.recipe.label, t.spec.family, "up to date",
+        refused = man["verdict"] == "error" and not force
+        first_err = next((f for f in man["checks"] if f["severity"] == "error"), None)
+        outcomes[t.key] = Outcome(t.recipe.name, t.recipe.label, t.spec.family,
+                                  "refused" if refused else "up to date",
+                                  reason=(f"{first_err['check']}: {first_err['message']} "
+                                          "(written earlier with --force)"
+                                          if refused and first_err else ""),
                                   verdict=man["verdict"],
                                   errors=sum(f["severity"] == "error" for f in man["checks"]),
                                   warnings=sum(f["severity"] == "warning" for f in man["checks"]),
@@ -256,6 +283,8 @@ def run_sweep(tasks: Sequence[Task], out_root: str | os.PathLike, jobs: int = 1,
     prog = progress or Progress(len(tasks))
     for o in outcomes.values():
         prog.step(o)
+    if isinstance(prog, Progress):
+        prog.first_work = time.perf_counter()  # building starts now
     interrupted = False
     if todo:
         run = _run_dask if scheduler else _run_pool
@@ -278,35 +307,54 @@ def _with_spec(o: Outcome, t: Task) -> Outcome:
 def _run_pool(todo, root, jobs, force, recycle_after, prog, worker, outcomes, _sched) -> bool:
     """Run ``todo`` in generations of worker processes: each generation's pool gets at most
     ``recycle_after`` variants per worker and is then replaced by a fresh one (the pool's
-    own per-worker recycling is not dependable on every Python 3.11 release). A pool whose
-    worker dies takes only that worker's variants down: they are recorded as failed and a
-    new pool carries on."""
+    own per-worker recycling is not dependable on every Python 3.11 release).
+
+    A worker that dies (a crash inside the kernel) breaks its pool and every variant in
+    flight with it, and which of them killed it cannot be told. Those variants become
+    suspects and are built again one at a time, each in a pool of its own: a suspect that
+    kills its worker again is recorded as failed, the others are built as usual."""
     import multiprocessing as mp
     from concurrent.futures.process import BrokenProcessPool
 
     ctx = _context(mp)
     jobs = max(1, jobs)
     queue = list(todo)
+    suspects: list[Task] = []
     interrupted = False
-    while queue and not interrupted:
-        batch, queue = queue[: jobs * recycle_after], queue[jobs * recycle_after:]
-        ex = ProcessPoolExecutor(max_workers=min(jobs, len(batch)), mp_context=ctx,
+    while (queue or suspects) and not interrupted:
+        alone = bool(suspects)
+        if alone:
+            batch = [suspects.pop(0)]
+        else:
+            batch, queue = queue[: jobs * recycle_after], queue[jobs * recycle_after:]
+        width = 1 if alone else min(jobs, len(batch))
+        ex = ProcessPoolExecutor(max_workers=width, mp_context=ctx,
                                  initializer=_init_worker, initargs=(jobs == 1,))
         pending: dict[Future, Task] = {}
         try:
             # One variant per worker in flight: a Ctrl-C then waits for no more than the
             # variants being built (the pool would start queued ones it cannot cancel).
             while batch or pending:
-                while batch and len(pending) < jobs:
-                    t = batch.pop(0)
-                    pending[ex.submit(worker, t.recipe, root, force)] = t
+                while batch and len(pending) < width:
+                    # Submit before taking the task off the list: a broken pool raises
+                    # here, and the task must stay queued for the next pool.
+                    fut = ex.submit(worker, batch[0].recipe, root, force)
+                    pending[fut] = batch.pop(0)
                 finished, _ = wait(list(pending), return_when=FIRST_COMPLETED)
+                if any(isinstance(f.exception(), BrokenProcessPool) for f in finished):
+                    raise BrokenProcessPool("a worker died")
                 for fut in finished:
                     _collect(fut, pending.pop(fut), outcomes, prog)
         except BrokenProcessPool:
-            for fut in list(pending):
-                _collect(fut, pending.pop(fut), outcomes, prog)
-            queue = batch + queue  # the rest go to a fresh pool
+            hit = list(pending.values())
+            pending.clear()
+            if alone:  # built on its own and killed its worker again: this is the one
+                for t in hit:
+                    _record(t, "failed", "the worker process died while building it (twice)",
+                            outcomes, prog)
+            else:
+                suspects += hit
+            queue = batch + queue
         except KeyboardInterrupt:
             interrupted = True
             for fut in list(pending):
@@ -322,6 +370,13 @@ def _run_pool(todo, root, jobs, force, recycle_after, prog, worker, outcomes, _s
         finally:
             ex.shutdown(wait=True, cancel_futures=True)
     return interrupted
+
+
+def _record(t: Task, status: str, reason: str, outcomes: dict[str, Outcome],
+            prog: Progress) -> None:
+    o = Outcome(t.recipe.name, t.recipe.label, t.spec.family, status, reason=reason)
+    outcomes[t.key] = o
+    prog.step(o)
 
 
 #: Imported once in the fork server, so every worker forked from it starts with the CAD

@@ -21,3 +21,14 @@ def worker(recipe, root, force):
         return sweep.run_variant(recipe, root, force)
     finally:
         kernel.split_at = real
+
+
+def dying_worker(recipe, root, force):
+    """Kills its own process on variant B, as a crash inside the kernel would."""
+    import os
+
+    from soft_molds import sweep
+
+    if recipe.label == "B":
+        os._exit(1)
+    return sweep.run_variant(recipe, root, force)

@@ -120,6 +120,13 @@ def pressure_findings(r: Recipe, e_mpa: float | None, walls: tuple[WallPressure,
                 limit=work, where=w.at_mm))
             continue
         m = w.margin(work)
+        if m is None and work is not None:
+            out.append(finding(
+                "pressure", "info", "cast",
+                f"{where} balloons at about {w.limit_kpa:.0f} kPa{rough} (E {e_mpa:.3f} MPa); "
+                f"working pressure {work:g} kPa; {ESTIMATE}", value=w.limit_kpa, limit=work,
+                where=w.at_mm))
+            continue
         if m is None:
             out.append(finding(
                 "pressure", "info", "cast",

@@ -62,37 +62,50 @@ def card_blocks(family: Sequence[dict[str, Any]], title: str) -> list[Block]:
     back from ``manifest.json``) of its variants, in label order."""
     first = family[0]["casting"]
     blocks: list[Block] = [("h1", f"Casting card: {title}")]
-    hard = (f"Shore {first['scale']}{first['hardness']:g}" if first["scale"] == "A"
-            else f"Shore {first['scale']}-{first['hardness']:g}")
-    ratio = first["mix_ratio"]
-    blocks.append(("p", f"Silicone: {first['grade']}, {first['cure']}-cure, {hard}, density "
-                   f"{first['density_g_cm3']:g} g/cm3, mix {ratio[0]:g}A : {ratio[1]:g}B by "
-                   f"{first['mix_by']}; pot life about {first['pot_life_min']:g} min, demold "
-                   f"after about {first['demold_h']:g} h at room temperature (typical values, "
-                   "from memory; your data sheet wins)."))
-    if first["note"]:
-        blocks.append(("p", f"Note: {first['note']}."))
-    b = first["blend"]
-    if b is not None:
+    # One line per distinct silicone: a sweep may vary the grade or blend it.
+    seen: dict[str, list[str]] = {}
+    for man in family:
+        seen.setdefault(_silicone_line(man["casting"]), []).append(man["label"])
+    for line, labels in seen.items():
+        who = "" if len(seen) == 1 else f" ({', '.join(labels)})"
+        blocks.append(("p", f"Silicone{who}: {line}"))
+    for man in family:
+        c = man["casting"]
+        if c["note"] and (len(seen) == 1 and man is family[0] or len(seen) > 1):
+            blocks.append(("p", f"Note{'' if len(seen) == 1 else ' ' + man['label']}: "
+                           f"{c['note']}."))
+    for man in family:
+        b = man["casting"]["blend"]
+        if b is None:
+            continue
         phi, w = b["volume_fraction_first"], b["weight_fraction_first"]
-        blocks.append(("p", f"Blend: {phi * 100:.0f} % {b['first']} and {(1 - phi) * 100:.0f} % "
-                       f"{b['with']} by volume ({w * 100:.0f} % / {(1 - w) * 100:.0f} % by "
+        who = "" if len(family) == 1 else f" ({man['label']})"
+        blocks.append(("p", f"Blend{who}: {phi * 100:.0f} % {b['first']} and "
+                       f"{(1 - phi) * 100:.0f} % {b['with']} by volume ({w * 100:.0f} % / "
+                       f"{(1 - w) * 100:.0f} % by "
                        f"weight) for about Shore A{b['target_shore_a']:g}: interpolated in "
                        "modulus by Gent's relation, an approximation. Mix each grade's A and "
                        "B as listed, then combine."))
 
-    names = [p["what"] for p in first["portions"]]
+    # Columns by component name (the union over the family), so variants of different
+    # grades or blends each fill their own columns.
+    names: list[str] = []
+    for man in family:
+        for p in man["casting"]["portions"]:
+            if p["what"] not in names:
+                names.append(p["what"])
     head = ["variant", "cast cm3", "sprue+vents cm3", "mixed cm3", "mixed g",
             *[f"{n} g" for n in names], "checks"]
     rows = []
     totals = [0.0] * len(names)
     for man in family:
         c = man["casting"]
-        grams = [p["g"] for p in c["portions"]]
-        totals = [t + x for t, x in zip(totals, grams)]
+        by = {p["what"]: p["g"] for p in c["portions"]}
+        grams = [by.get(n) for n in names]
+        totals = [t + (x or 0.0) for t, x in zip(totals, grams)]
         rows.append([man["label"], _fmt(c["cast_volume_mm3"] / 1000, 2),
                      _fmt(c["fill_volume_mm3"] / 1000, 2), _fmt(c["mixed_volume_mm3"] / 1000, 2),
-                     _fmt(c["mixed_mass_g"], 1), *[f"{x:g}" for x in grams],
+                     _fmt(c["mixed_mass_g"], 1), *["" if x is None else f"{x:g}" for x in grams],
                      {"ok": "ok", "warning": "warnings", "error": "errors"}[man["verdict"]]])
     if len(family) > 1:
         rows.append(["all", "", "", "", "", *[f"{round(t, 6):g}" for t in totals], ""])
@@ -151,6 +164,16 @@ def card_blocks(family: Sequence[dict[str, Any]], title: str) -> list[Block]:
     blocks.append(("h2", "Cautions"))
     blocks.append(("ul", list(CAUTIONS)))
     return blocks
+
+
+def _silicone_line(c: dict[str, Any]) -> str:
+    hard = (f"Shore {c['scale']}{c['hardness']:g}" if c["scale"] == "A"
+            else f"Shore {c['scale']}-{c['hardness']:g}")
+    ratio = c["mix_ratio"]
+    return (f"{c['grade']}, {c['cure']}-cure, {hard}, density {c['density_g_cm3']:g} g/cm3, "
+            f"mix {ratio[0]:g}A : {ratio[1]:g}B by {c['mix_by']}; pot life about "
+            f"{c['pot_life_min']:g} min, demold after about {c['demold_h']:g} h at room "
+            "temperature (typical values, from memory; your data sheet wins).")
 
 
 def card_files(family: Sequence[dict[str, Any]], title: str,

@@ -178,6 +178,11 @@ def blend(first: Grade, second: Grade, target_shore_a: float) -> Blend:
                          f"{first.name} and {second.name}")
     e1, e2 = first.youngs_modulus_mpa(), second.youngs_modulus_mpa()
     et = gent_modulus_mpa(target_shore_a)
+    # Measured moduli may not follow the Shore numbers: the target must lie between the
+    # moduli that are mixed, or the fractions leave 0..1.
+    if e1 is None or e2 is None or math.isclose(e1, e2) or not min(e1, e2) <= et <= max(e1, e2):
+        raise ValueError(f"the modulus for Shore A{target_shore_a:g} ({et:.3f} MPa) is not "
+                         f"between {first.name}'s and {second.name}'s")
     phi = (et - e2) / (e1 - e2)  # type: ignore[operator]
     m1, m2 = phi * first.density_g_cm3, (1.0 - phi) * second.density_g_cm3
     return Blend(first, second, target_shore_a, phi, m1 / (m1 + m2), et)

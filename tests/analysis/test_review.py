@@ -131,3 +131,14 @@ def test_trapped_air_is_found_on_the_built_mold_not_on_the_plan(monkeypatch):
     assert len(trapped) == 1
     # the top of the 14 mm bar is the only ceiling: z = 7 (closed form)
     assert trapped[0].where_mm[2] == pytest.approx(7.0, abs=0.01)
+
+
+def test_the_manifest_keeps_the_hash_of_the_recipe_as_given_for_resuming(twister):
+    # parting: auto is filled in by the build; a resumed sweep compares the recipe as
+    # written, so the manifest records that hash too
+    from soft_molds import load_recipe
+
+    given = load_recipe("recipes/wrist-twister.yaml")
+    man = twister.manifest()
+    assert man["source_params_sha256"] == given.params_sha256()
+    assert man["params_sha256"] == twister.recipe.params_sha256() != given.params_sha256()

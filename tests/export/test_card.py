@@ -38,3 +38,25 @@ def test_card_lists_steps_pot_life_and_the_cautions(finger):
                     "relief valve", "never exceed the tested pressure", "ventilated",
                     "not medical devices"):
         assert caution in md, caution
+
+
+def test_a_family_of_different_grades_gets_a_column_per_component(finger):
+    import copy
+
+    from soft_molds.export.card import card_blocks
+
+    a = finger.manifest()
+    b = copy.deepcopy(a)
+    b["label"] = "B"
+    b["casting"]["grade"] = "A30"
+    b["casting"]["portions"] = [{**p, "what": p["what"].replace("A10", "A30")}
+                                for p in b["casting"]["portions"]]
+    blocks = card_blocks([a, b], "mixed")
+    (table,) = [blk for blk in blocks if blk[0] == "table" and blk[1][0] == "variant"
+                and "checks" in blk[1]]
+    head, rows = table[1], table[2]
+    assert [h for h in head if h.endswith(" g") and "part" in h] == [
+        "A10 part A g", "A10 part B g", "A30 part A g", "A30 part B g"]
+    assert all(len(r) == len(head) for r in rows)
+    assert rows[0][7] == "" and rows[1][5] == ""  # each variant fills its own columns
+    assert sum(blk[0] == "p" and blk[1].startswith("Silicone (") for blk in blocks) == 2

@@ -308,3 +308,19 @@ def test_working_pressure_in_both_units_is_refused_on_the_psi_line():
     assert err.lines() == [
         f"t.yaml:{line_of(text, 'working_pressure_psi')}: inflate.working_pressure_psi: is "
         "given with working_pressure_kpa (got 15.0); allowed: one of the two"]
+
+
+def test_a_blend_whose_measured_modulus_leaves_no_mix_in_range_is_refused():
+    # A10 measured at 1.5 MPa is stiffer than A30 by Gent (1.142 MPa): Shore A20's
+    # 0.732 MPa is not between them, so no positive mix reaches it (hand arithmetic)
+    from recipe_text import FINGER_TEXT as TEXT
+
+    from soft_molds.errors import RecipeError
+    from soft_molds.recipe import recipe_from_text
+
+    text = TEXT.replace("checks:\n", "material:\n  youngs_modulus_mpa: 1.5\n  blend_with: A30\n"
+                        "  target_shore_a: 20\nchecks:\n", 1)
+    with pytest.raises(RecipeError) as e:
+        recipe_from_text(text, "m.yaml", "m")
+    (line,) = e.value.lines()
+    assert "material.blend_with" in line and "not between" in line

@@ -199,3 +199,22 @@ def test_ctrl_c_finishes_the_running_variant_and_reports_what_is_done(recipe_fil
     rows = json.loads((out / "summary.json").read_text())["variants"]
     assert rows and all(r["status"] == "built" for r in rows) and len(rows) < 3
     assert [p for p in out.rglob("*") if p.name.endswith(".tmp")] == []
+
+
+def test_a_worker_that_dies_fails_only_its_variant_and_loses_none(recipe_file, tmp_path):
+    import faulty_worker
+
+    outcomes, _ = run_sweep(plan_tasks([recipe_file]), tmp_path, jobs=2, progress=Quiet(),
+                            worker=faulty_worker.dying_worker)
+    got = {o.label: o.status for o in outcomes}
+    assert got == {"A": "built", "B": "failed", "C": "built"}
+
+
+def test_two_files_writing_the_same_folder_are_refused(recipe_file, tmp_path):
+    from soft_molds.sweep import SweepInputError
+
+    other = tmp_path / "copy.yaml"
+    other.write_text(FAMILY.replace("mold: {clamp_bolt: M3}", "mold: {clamp_bolt: M4}"))
+    with pytest.raises(SweepInputError) as e:
+        plan_tasks([recipe_file, other])
+    assert len(e.value.lines) == 3 and "both would write cushion-sweep/A/" in e.value.lines[0]
