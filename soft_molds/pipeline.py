@@ -77,11 +77,11 @@ class MoldSet:
 
     @property
     def errors(self) -> tuple[Any, ...]:
-        return tuple(f for f in self.findings if f.severity == "error")
+        return () if self.review is None else self.review.errors
 
     @property
     def warnings(self) -> tuple[Any, ...]:
-        return tuple(f for f in self.findings if f.severity == "warning")
+        return () if self.review is None else self.review.warnings
 
     def part(self, name: str) -> Part:
         for p in self.parts:

@@ -230,16 +230,18 @@ def side_masks(surface: Surface, contact: np.ndarray, axis: str, offset_mm: floa
 
 def score_plane(cast: Surface, cast_contact: np.ndarray, axis: str, offset_mm: float,
                 core: Surface | None = None, core_contact: np.ndarray | None = None,
-                min_draft_deg: float = 0.5) -> tuple[PlaneScore, list[PullReport]]:
+                min_draft_deg: float = 0.5, openings: Sequence = ()
+                ) -> tuple[PlaneScore, list[PullReport]]:
     """Pull both shells of a plane normal to ``axis`` at ``offset_mm`` off the cast (its
-    outer-surface facets ``cast_contact``) and off the core print (``core_contact``)."""
+    outer-surface facets ``cast_contact``) and off the core print (``core_contact``).
+    ``openings`` (sprue and vents) are holes in the upper shell."""
     w = AXIS_INDEX[axis]
     up = np.zeros(3)
     up[w] = 1.0
     reports = []
     lower, upper = side_masks(cast, cast_contact, axis, offset_mm)
     reports.append(pull_report(cast, lower, -up, "shell-lower", min_draft_deg))
-    reports.append(pull_report(cast, upper, up, "shell-upper", min_draft_deg))
+    reports.append(pull_report(cast, upper, up, "shell-upper", min_draft_deg, openings))
     rigid = 0.0
     if core is not None and core_contact is not None:
         clo, chi = side_masks(core, core_contact, axis, offset_mm)

@@ -141,11 +141,9 @@ def review(
     core_mesh = parts["core"][0]
     core_s = Surface(core_mesh)
     core_contact = core_print_facets(core_s, block_lo_x)
-    _, pulls = score_plane(cs, outer, r.parting.axis, float(r.parting.offset_mm), core_s,
-                           core_contact, c.min_draft_deg)
     # Rays that leave through a sprue or vent do not lock the upper shell.
-    pulls[1] = pull_report(cs, _side(cs, outer, r, upper=True), upv, "shell-upper",
-                           c.min_draft_deg, openings)
+    _, pulls = score_plane(cs, outer, r.parting.axis, float(r.parting.offset_mm), core_s,
+                           core_contact, c.min_draft_deg, openings)
     for rep in pulls:
         if rep.area_mm2 == 0.0:
             continue
@@ -260,13 +258,6 @@ def review(
     rank = {"error": 0, "warning": 1, "info": 2}
     out.sort(key=lambda f: rank[f.severity])  # stable: check order kept within a severity
     return Review(tuple(out), tuple(pulls), ext, walls, air, prints, e_mpa, pressures)
-
-
-def _side(cs: Surface, contact: np.ndarray, r: Recipe, upper: bool) -> np.ndarray:
-    from .demold import side_masks
-
-    lo, hi = side_masks(cs, contact, r.parting.axis, float(r.parting.offset_mm))
-    return hi if upper else lo
 
 
 def _dir(v: Sequence[float]) -> str:
