@@ -1,0 +1,82 @@
+"""Every file a build writes, for every bundled recipe and variant, is byte-identical to the
+digests recorded in ``tests/data/build-digests.json``.
+
+The record was taken before the stage refactor; a difference means the output changed. When
+a change is intended, record again (``python tests/export/test_build_digests.py --record``)
+and say in the commit which files changed and why. ``manifest.json`` is compared without
+``timings_s`` (seconds differ from run to run) after a canonical JSON dump.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import json
+import sys
+import tempfile
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parents[2]
+RECORD = ROOT / "tests" / "data" / "build-digests.json"
+RECIPES = sorted((ROOT / "recipes").glob("*.yaml"))
+
+
+def _digests_of_folder(folder: Path, prefix: str) -> dict[str, str]:
+    out = {}
+    for path in sorted(folder.iterdir()):
+        data = path.read_bytes()
+        if path.name == "manifest.json":
+            man = json.loads(data)
+            man.pop("timings_s", None)
+            data = json.dumps(man, sort_keys=True).encode()
+        out[f"{prefix}/{path.name}"] = hashlib.sha256(data).hexdigest()
+    return out
+
+
+def _variants():
+    from soft_molds import load_variants
+
+    return [(p, r) for p in RECIPES for _, r in load_variants(p)]
+
+
+def _digests_of(recipe, built_default=None) -> dict[str, str]:
+    from soft_molds import build
+
+    molds = built_default if built_default is not None else build(recipe)
+    with tempfile.TemporaryDirectory() as tmp:
+        molds.export(tmp)
+        return _digests_of_folder(Path(tmp) / recipe.name / recipe.label,
+                                  f"{recipe.name}/{recipe.label}")
+
+
+def record() -> dict[str, str]:
+    out: dict[str, str] = {}
+    for _, r in _variants():
+        out.update(_digests_of(r))
+    return out
+
+
+_IDS = [f"{p.stem}-{r.label}" for p, r in _variants()]
+
+
+@pytest.mark.parametrize("index", range(len(_IDS)), ids=_IDS)
+def test_every_written_file_matches_the_recorded_digest(index, bundled):
+    from soft_molds import load_recipe
+
+    path, recipe = _variants()[index]
+    default = load_recipe(path)
+    # The default variant is shared with the other tests (built once per session).
+    same = default.params_sha256() == recipe.params_sha256()
+    molds = bundled(path.stem) if same else None
+    got = _digests_of(recipe, molds)
+    want = {k: v for k, v in json.loads(RECORD.read_text()).items()
+            if k.startswith(f"{recipe.name}/{recipe.label}/")}
+    assert sorted(got) == sorted(want), "a different set of files was written"
+    changed = sorted(k for k in got if got[k] != want[k])
+    assert changed == [], f"files whose bytes changed: {changed}"
+
+
+if __name__ == "__main__" and "--record" in sys.argv:
+    RECORD.write_text(json.dumps(record(), indent=1, sort_keys=True) + "\n")
+    print(f"recorded {RECORD}")
