@@ -381,7 +381,7 @@ def _record(t: Task, status: str, reason: str, outcomes: dict[str, Outcome],
 
 #: Imported once in the fork server, so every worker forked from it starts with the CAD
 #: kernel and the pipeline already loaded (a fresh import costs seconds per worker).
-PRELOAD = ["cadquery", "soft_molds.pipeline", "soft_molds.analysis.review",
+PRELOAD = ["cadquery", "soft_molds.pipeline", "soft_molds.moldset", "soft_molds.analysis.review",
            "soft_molds.export.card"]
 
 
