@@ -15,6 +15,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+from .analysis.findings import Finding, verdict
 from .analysis.integrity import MeshReport
 from .meshdata import TriMesh
 from .recipe.model import Recipe
@@ -153,8 +154,8 @@ class MoldSet:
             "labels": [{"part": lab.part, "text": lab.text,
                         "height_mm": round(lab.height_mm, 3),
                         "depth_mm": r.label_settings.depth_mm} for lab in self.labels],
-            "checks": [f.to_json() for f in self.findings],
-            "verdict": ("error" if self.errors else "warning" if self.warnings else "ok"),
+            "checks": [_finding_json(f) for f in self.findings],
+            "verdict": str(verdict(self.findings)),
             "print": {name: _print_json(plan) for name, plan in
                       (self.review.prints.items() if self.review is not None else ())},
             "casting": _casting_json(self.casting),
@@ -250,3 +251,18 @@ def _print_json(plan: Any) -> dict[str, Any]:
 
 def pour_up(r: Recipe) -> list[float]:
     return [0.0, 0.0, 1.0] if r.parting.axis == "z" else [0.0, 1.0, 0.0]
+
+
+def _finding_json(f: Finding) -> dict[str, Any]:
+    def r(x: float | None, nd: int = 4) -> float | None:
+        return None if x is None else round(float(x), nd) + 0.0
+
+    return {
+        "check": f.check,
+        "severity": str(f.severity),
+        "part": f.part,
+        "value": r(f.value),
+        "limit": r(f.limit),
+        "where_mm": None if f.where_mm is None else [r(c) for c in f.where_mm],
+        "message": f.message,
+    }

@@ -1,7 +1,7 @@
-"""One finding of the manufacturability analysis, as recorded in ``manifest.json``.
+"""One finding of the manufacturability analysis, and the one verdict every report uses.
 
-A finding names the ``check`` that produced it, its ``severity`` (``error``: the mold will
-fail and the build refuses to write unless forced; ``warning``: it may fail, look at it;
+A finding names the ``check`` that produced it, its :class:`Severity` (``error``: the mold
+will fail and nothing is written unless forced; ``warning``: it may fail, look at it;
 ``info``: a figure worth knowing), the ``part`` it concerns, the measured ``value`` against
 its ``limit`` (both in the unit the message states), a representative location ``where_mm``
 (world frame, mm; ``None`` when the finding has no single place) and a one-line ``message``.
@@ -11,15 +11,44 @@ from __future__ import annotations
 
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
-from typing import Any
+from enum import StrEnum
 
-SEVERITIES = ("error", "warning", "info")
+
+class Severity(StrEnum):
+    """How much a finding matters; the value is the word written to the manifest."""
+
+    ERROR = "error"
+    WARNING = "warning"
+    INFO = "info"
+
+    @property
+    def rank(self) -> int:
+        """0 for the worst: findings are listed errors first."""
+        return _RANK[self]
+
+
+_RANK = {Severity.ERROR: 0, Severity.WARNING: 1, Severity.INFO: 2}
+
+
+class Verdict(StrEnum):
+    """The worst severity among a set of findings, as written to the manifest."""
+
+    OK = "ok"
+    WARNING = "warning"
+    ERROR = "error"
+
+
+@dataclass(frozen=True)
+class SeverityCounts:
+    errors: int
+    warnings: int
+    infos: int
 
 
 @dataclass(frozen=True)
 class Finding:
     check: str
-    severity: str
+    severity: Severity
     part: str
     value: float | None
     limit: float | None
@@ -27,40 +56,34 @@ class Finding:
     message: str
 
     def __post_init__(self) -> None:
-        if self.severity not in SEVERITIES:
-            raise ValueError(f"severity must be one of {SEVERITIES}, got {self.severity!r}")
-
-    def to_json(self) -> dict[str, Any]:
-        def r(x: float | None, nd: int = 4) -> float | None:
-            return None if x is None else round(float(x), nd) + 0.0
-
-        return {
-            "check": self.check,
-            "severity": self.severity,
-            "part": self.part,
-            "value": r(self.value),
-            "limit": r(self.limit),
-            "where_mm": None if self.where_mm is None else [r(c) for c in self.where_mm],
-            "message": self.message,
-        }
+        # Accept the manifest's word too (a manifest read back from disk).
+        object.__setattr__(self, "severity", Severity(self.severity))
 
 
-def finding(check: str, severity: str, part: str, message: str, *, value: float | None = None,
-            limit: float | None = None, where: Sequence[float] | None = None) -> Finding:
+def finding(check: str, severity: Severity | str, part: str, message: str, *,
+            value: float | None = None, limit: float | None = None,
+            where: Sequence[float] | None = None) -> Finding:
     """Build a :class:`Finding`, turning a numpy point into a plain tuple."""
-    w = None if where is None else tuple(float(c) for c in where)
-    return Finding(check, severity, part, None if value is None else float(value),
-                   None if limit is None else float(limit), w, message)  # type: ignore[arg-type]
+    w = None if where is None else (float(where[0]), float(where[1]), float(where[2]))
+    return Finding(check, Severity(severity), part, None if value is None else float(value),
+                   None if limit is None else float(limit), w, message)
 
 
-def count(findings: Iterable[Finding], severity: str) -> int:
-    return sum(1 for f in findings if f.severity == severity)
+def counts(findings: Iterable[Finding]) -> SeverityCounts:
+    fs = list(findings)
+    return SeverityCounts(sum(f.severity is Severity.ERROR for f in fs),
+                          sum(f.severity is Severity.WARNING for f in fs),
+                          sum(f.severity is Severity.INFO for f in fs))
 
 
-def worst(findings: Iterable[Finding]) -> str:
-    """``error``, ``warning`` or ``info`` (also when there are no findings at all)."""
-    sev = {f.severity for f in findings}
-    for s in SEVERITIES:
-        if s in sev:
-            return s
-    return "info"
+def verdict(findings: Iterable[Finding]) -> Verdict:
+    """``error`` when any finding is an error, else ``warning`` when any is a warning, else
+    ``ok``. The CLI, pipeline, sweep, casting card and family sheet all use this one."""
+    c = counts(findings)
+    return Verdict.ERROR if c.errors else Verdict.WARNING if c.warnings else Verdict.OK
+
+
+def refuses_to_write(v: Verdict, force: bool) -> bool:
+    """The house rule for ``build`` and ``sweep``: a mold set with an error-level finding is
+    not written unless the person forces it (the manifest then records the error)."""
+    return v is Verdict.ERROR and not force

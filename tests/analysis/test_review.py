@@ -12,7 +12,7 @@ from conftest import BUNDLED
 from recipe_text import FINGER_TEXT, edit
 
 from soft_molds import build
-from soft_molds.analysis.findings import SEVERITIES
+from soft_molds.analysis.findings import Severity
 from soft_molds.recipe import recipe_from_text
 
 
@@ -42,10 +42,10 @@ def test_manifest_findings_carry_check_severity_part_value_limit_place_message(f
     assert len(man["checks"]) == len(finger.findings) >= 8
     for f in man["checks"]:
         assert set(f) == {"check", "severity", "part", "value", "limit", "where_mm", "message"}
-        assert f["severity"] in SEVERITIES
+        assert f["severity"] in {s.value for s in Severity}
         assert f["where_mm"] is None or len(f["where_mm"]) == 3
     # errors first, then warnings, then notes
-    ranks = [SEVERITIES.index(f["severity"]) for f in man["checks"]]
+    ranks = [Severity(f["severity"]).rank for f in man["checks"]]
     assert ranks == sorted(ranks)
     for name in ("shell-lower", "shell-upper", "core"):
         plan = man["print"][name]
