@@ -9,16 +9,23 @@ Public API::
     for spec, variant in load_variants("recipes/finger-family.yaml"):   # A-E
         build(variant).export("out")
 
-``build``, ``MoldSet`` and ``Part`` load the mesh and CAD libraries on first use, so a bad
-recipe is reported without paying for them.
+``load_recipe`` and ``load_variants`` check the recipe and the rules of the mold it plans
+(parting plane, block features), every problem at once, before any CAD kernel is loaded;
+``build``, ``MoldSet`` and ``Part`` load the mesh and CAD libraries on first use.
 """
 
 from __future__ import annotations
 
+import os
+from dataclasses import replace
 from typing import Any
 
 from .errors import GeometryError, MeshIntegrityError, RecipeError, SoftMoldsError
-from .recipe import Recipe, load_recipe, load_variants
+from .plan import plan_problems
+from .recipe import Recipe, VariantSpec
+from .recipe import load_recipe as _load_recipe
+from .recipe import load_variants as _load_variants
+from .recipe.variants import merge_problems, prefix_problems
 from .version import __version__
 
 __all__ = [
@@ -27,6 +34,48 @@ __all__ = [
 ]
 
 _LAZY = {"build", "MoldSet", "Part"}
+
+
+def load_recipe(path: str | os.PathLike) -> Recipe:
+    """Read and validate a recipe file, and check the rules of the mold it plans; raise
+    :class:`RecipeError` listing every problem (field path, line, value, what is allowed)."""
+    try:
+        r = _load_recipe(path)
+    except RecipeError as exc:
+        raise _with_plan_problems(exc) from None
+    problems = plan_problems(r)
+    if problems:
+        raise RecipeError(problems, r.source)
+    return r
+
+
+def _with_plan_problems(exc: RecipeError) -> RecipeError:
+    """The recipe's problems and, when its fields were all valid, the mold's too."""
+    if not isinstance(exc.recipe, Recipe):
+        return exc
+    return RecipeError([*exc.problems, *plan_problems(exc.recipe)], exc.source)
+
+
+def load_variants(path: str | os.PathLike) -> tuple[tuple[VariantSpec, Recipe], ...]:
+    """Every variant of a recipe file, each validated and planned; one RecipeError lists the
+    problems of every variant (merged where variants share them)."""
+    try:
+        pairs = _load_variants(path)
+    except RecipeError as exc:
+        raise _with_plan_problems(exc) from None
+    problems = []
+    for spec, r in pairs:
+        found = plan_problems(r)
+        if found:
+            problems += prefix_problems(RecipeError(found, r.source), spec) if spec.label \
+                else found
+    if problems:
+        merged = merge_problems(problems)
+        # A problem every variant shares is the recipe's own: say it once, unlabelled.
+        every = "[" + ", ".join(r.label for _, r in pairs) + "] "
+        raise RecipeError([replace(p, path=p.path.removeprefix(every)) for p in merged],
+                          pairs[0][1].source)
+    return pairs
 
 
 def __getattr__(name: str) -> Any:

@@ -104,7 +104,7 @@ def _expand(paths: Sequence[str]) -> list[str]:
 def _load(paths: Sequence[str], label: str | None = None, folders: bool = True):
     """(variants of every file as (spec, recipe), bad input?); problems printed. With
     ``folders`` a folder stands for its recipe files."""
-    from .recipe import load_variants
+    from . import load_variants
 
     found, bad = [], False
     for path in (_expand(paths) if folders else paths):

@@ -41,11 +41,17 @@ class Problem:
 
 
 class RecipeError(SoftMoldsError):
-    """A recipe could not be read or is invalid; carries every problem found at once."""
+    """A recipe could not be read or is invalid; carries every problem found at once.
 
-    def __init__(self, problems: list[Problem] | tuple[Problem, ...], source: str = "recipe"):
+    ``recipe`` is the recipe as read when every field was valid and only its geometry was
+    not (so later rules can still be checked and reported in the same breath), else None.
+    """
+
+    def __init__(self, problems: list[Problem] | tuple[Problem, ...], source: str = "recipe",
+                 recipe: object | None = None):
         self.problems: tuple[Problem, ...] = tuple(problems)
         self.source = source
+        self.recipe = recipe
         super().__init__("\n".join(p.format(source) for p in self.problems))
 
     def lines(self) -> list[str]:

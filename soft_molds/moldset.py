@@ -18,6 +18,7 @@ from typing import Any
 from .analysis.findings import Finding, verdict
 from .analysis.integrity import MeshReport
 from .meshdata import TriMesh
+from .plan.model import MoldPlan
 from .recipe.model import Recipe
 from .version import __version__
 
@@ -64,6 +65,7 @@ class MoldSet:
     casting: Any = None            # analysis.casting.CastingPlan: what to weigh and print
     labels: tuple[Any, ...] = ()   # geometry.mold.Label per printed part that carries one
     source_params_sha256: str = ""  # hash of the recipe as given (before parting: auto)
+    plan: MoldPlan | None = None   # the plan the parts were built to
 
     @property
     def pressures(self) -> tuple[Any, ...]:

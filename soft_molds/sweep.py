@@ -86,7 +86,7 @@ class Outcome:
 def plan_tasks(paths: Iterable[str | os.PathLike]) -> list[Task]:
     """Every variant of every recipe file, in file then label order; a RecipeError lists
     the problems of every file at once."""
-    from .recipe.load import load_variants
+    from . import load_variants
 
     tasks, problems = [], []
     for p in paths:

@@ -19,3 +19,17 @@ def line_of(text: str, needle: str) -> int:
     hits = [i for i, ln in enumerate(text.splitlines(), 1) if needle in ln]
     assert len(hits) == 1, f"{needle!r} on lines {hits}"
     return hits[0]
+
+
+def planned_from_text(text: str, source: str = "recipe", name: str = "recipe"):
+    """A recipe from text, refused (RecipeError) when it breaks a recipe rule or a rule of
+    the mold it plans: what ``soft_molds.load_recipe`` does for a file."""
+    from soft_molds.errors import RecipeError
+    from soft_molds.plan import plan_problems
+    from soft_molds.recipe import recipe_from_text
+
+    r = recipe_from_text(text, source, name)
+    problems = plan_problems(r)
+    if problems:
+        raise RecipeError(problems, source)
+    return r

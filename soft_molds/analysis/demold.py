@@ -27,6 +27,7 @@ from scipy.sparse import coo_matrix
 from scipy.sparse.csgraph import connected_components
 
 from soft_molds.meshdata import TriMesh
+from soft_molds.plan.model import PlaneScore
 
 from .rays import EPS_MM, RayCaster, face_normals
 
@@ -189,27 +190,6 @@ def _regions(surface: Surface, locked: np.ndarray, d: np.ndarray
     empty = np.empty(0, dtype=np.int64)
     return (np.concatenate(keep) if keep else empty, np.concatenate(drop) if drop else empty,
             best, best_where, kept)
-
-
-@dataclass(frozen=True)
-class PlaneScore:
-    """How well a candidate parting plane releases the cast (mm, mm2, deg)."""
-
-    axis: str
-    offset_mm: float
-    locked_area_mm2: float        # silicone locked against either shell
-    rigid_locked_area_mm2: float  # the core's print locked against either shell
-    min_draft_deg: float
-    rule: str | None = None       # a recipe rule the plane breaks, if any
-
-    @property
-    def usable(self) -> bool:
-        return self.rule is None and self.rigid_locked_area_mm2 <= 0.0
-
-    def key(self) -> tuple[float, float]:
-        """Sort key: least locked area, then the greatest minimum draft."""
-        return (round(self.locked_area_mm2 + self.rigid_locked_area_mm2, 3),
-                -round(self.min_draft_deg, 3))
 
 
 AXIS_INDEX = {"x": 0, "y": 1, "z": 2}

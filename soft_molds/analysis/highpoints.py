@@ -24,6 +24,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from soft_molds.meshdata import TriMesh
+from soft_molds.plan.model import Opening, OpeningKind
 
 CEILING_MIN_UP = 0.1
 """A plateau whose area-weighted mean normal has ``n·up`` above this holds a bubble."""
@@ -58,19 +59,6 @@ class HighPoint:
     persistence_mm: float
     plateau_triangles_mm: np.ndarray = field(compare=False, repr=False,
                                              default_factory=lambda: np.empty((0, 3, 3)))
-
-
-@dataclass(frozen=True)
-class Opening:
-    """A sprue (pour inlet) or vent where it meets the cavity (mm, world frame)."""
-
-    kind: str
-    center_mm: tuple[float, float, float]
-    radius_mm: float
-    floor_mm: float | None = None
-    """Lowest height (along up) of the cavity ceiling under the mouth, where the cut into
-    the mold must start so that no sliver of mold is left between the cut and the cavity
-    (``None``: the centre's height)."""
 
 
 def _unit(up: Sequence[float]) -> np.ndarray:
@@ -452,7 +440,7 @@ def plan_openings(
     hps = find_high_points(mesh, u, persistence_mm, plateau_mm)
     if not hps:
         return ()
-    openings = [Opening("sprue", hps[0].position_mm, float(sprue_radius_mm))]
+    openings = [Opening(OpeningKind.SPRUE, hps[0].position_mm, float(sprue_radius_mm))]
     # At most one vent per high point from the first pass and MAX_EXTRA_VENTS from the second:
     # preallocate the arrays the reach tests run on instead of rebuilding them every time.
     centres = np.empty(((MAX_EXTRA_VENTS + 1) * len(hps) + 1, 3))
@@ -461,7 +449,7 @@ def plan_openings(
 
     def add(where: tuple[float, float, float]) -> None:
         centres[len(openings)], radii[len(openings)] = where, vent_radius_mm
-        openings.append(Opening("vent", where, float(vent_radius_mm)))
+        openings.append(Opening(OpeningKind.VENT, where, float(vent_radius_mm)))
 
     for hp in hps[1:]:
         k = len(openings)

@@ -66,10 +66,10 @@ def wall_pressures(r: Recipe) -> tuple[float | None, tuple[WallPressure, ...]]:
         return None, ()
     mu = shear_modulus_mpa(e)
     body = r.body_primitives()
-    length = r.body.size_mm()[0]
+    length = r.body_length_mm
     worst: dict[str, WallPressure] = {}
     for v in r.voids:
-        for m in getattr(v, "membranes", lambda _l: ())(length):
+        for m in v.membranes(length):
             h = float(-union_sdf(body, np.asarray([m.at_mm]))[0])
             if h <= 0.0:
                 continue

@@ -20,7 +20,7 @@ Checks (``Finding.check``):
 
 from __future__ import annotations
 
-from collections.abc import Callable, Sequence
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -29,7 +29,7 @@ from soft_molds.meshdata import TriMesh
 from soft_molds.recipe.model import Recipe
 from soft_molds.recipe.primitives import union_sdf
 
-from .demold import PlaneScore, PullReport, Surface, pull_report, score_plane
+from .demold import PullReport, Surface, pull_report, score_plane
 from .extraction import Extraction, allowed_stretch, core_extraction
 from .findings import Finding, finding
 from .pressure import WallPressure, pressure_findings, wall_pressures
@@ -77,44 +77,6 @@ def core_print_facets(core: Surface, block_lo_x: float, tol_mm: float = 0.05) ->
     its key, seated in the two shells)."""
     x = core.centroids[:, 0]
     return (x > block_lo_x + tol_mm) & (x < -tol_mm)
-
-
-def plane_candidates(r: Recipe) -> list[tuple[str, float]]:
-    """Planes worth trying for ``parting: auto``: for each cross axis (the body's thinner
-    direction first), the plane through the socket axis, the body's mid-plane (body kinds
-    are centred on the x axis; the mid-plane is their widest section) and planes a quarter
-    and a half of the way from the mid-plane to the surface on either side."""
-    cy, cz = r.inlet.center_mm
-    _, w, h = r.body.size_mm()
-    axes = ("y", "z") if w < h else ("z", "y")
-    out: list[tuple[str, float]] = []
-    for ax in axes:
-        mid = 0.0
-        half = (w if ax == "y" else h) / 2.0
-        for off in (cy if ax == "y" else cz, mid, mid - 0.25 * half, mid + 0.25 * half,
-                    mid - 0.5 * half, mid + 0.5 * half):
-            off = round(off, 6) + 0.0
-            if (ax, off) not in out:
-                out.append((ax, off))
-    return out
-
-
-def rank_planes(cast: Surface, cast_contact: np.ndarray, core: Surface | None,
-                core_contact: np.ndarray | None, candidates: Sequence[tuple[str, float]],
-                rule: Callable[[str, float], str | None] | None = None,
-                min_draft_deg: float = 0.5) -> list[PlaneScore]:
-    """Score every candidate plane; usable planes first, best first (least locked area,
-    then the greatest minimum draft, then the candidates' own order)."""
-    scores = []
-    for ax, off in candidates:
-        s, _ = score_plane(cast, cast_contact, ax, off, core, core_contact, min_draft_deg)
-        why = rule(ax, off) if rule is not None else None
-        if why is None and s.rigid_locked_area_mm2 > 0.0:
-            why = f"locks the core print in a shell ({s.rigid_locked_area_mm2:.1f} mm2)"
-        scores.append(PlaneScore(s.axis, s.offset_mm, s.locked_area_mm2,
-                                 s.rigid_locked_area_mm2, s.min_draft_deg, why))
-    order = sorted(range(len(scores)), key=lambda i: (not scores[i].usable, scores[i].key(), i))
-    return [scores[i] for i in order]
 
 
 def review(

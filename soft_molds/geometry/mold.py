@@ -1,4 +1,5 @@
-"""Recipe -> BRep solids: cast part, removable core and the two shell parts.
+"""Plan -> BRep solids: cast part, removable core and the two shell parts, built exactly as
+the casting step of the plan says (core support, layout, openings).
 
 Pour orientation: the parting axis w points up; the lower shell pulls along -w, the
 upper shell along +w and carries the sprue and vents; the core pulls out along -x through
@@ -10,13 +11,13 @@ from __future__ import annotations
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass
-from typing import Protocol
 
 import numpy as np
 
 from ..errors import GeometryError
-from ..recipe.layout import MIN_LAND_MM, NOTCH_HALF_HEIGHT_MM, Layout, plan_layout
-from ..recipe.model import Recipe
+from ..plan.layout import MIN_LAND_MM, NOTCH_HALF_HEIGHT_MM, Layout
+from ..plan.model import CastingStep, CoreSupport, OpeningKind, PartingPlane
+from ..recipe.model import MoldSettings, Recipe
 from . import kernel as k
 from . import labels
 
@@ -32,19 +33,6 @@ class CastSolids:
     core: k.Shape
     cast: k.Shape
     volumes_mm3: dict[str, float]  # exact (BRep) volumes: body, void_set, core, cast
-    layout: Layout
-
-
-class Opening(Protocol):
-    """A sprue or vent: where it meets the cavity (world mm) and its radius (the
-    analysis stage plans them; any object with these attributes will do). ``floor_mm``
-    is the lowest ceiling height under the mouth along the parting axis (None: the
-    centre's)."""
-
-    kind: str
-    center_mm: tuple[float, float, float]
-    radius_mm: float
-    floor_mm: float | None
 
 
 #: Least land kept between a label and the edges of the face it is cut into (mm); never
@@ -132,8 +120,8 @@ def shell_label_tool(r: Recipe, lay: Layout, part: str, lower: bool
     return _label_tool(r, part, centre, right, up, w1 - w0)
 
 
-def core_tag(r: Recipe, lay: Layout) -> tuple[tuple[float, float, float],
-                                              tuple[float, float, float]] | None:
+def core_tag(r: Recipe, support: CoreSupport, parting: PartingPlane
+             ) -> tuple[tuple[float, float, float], tuple[float, float, float]] | None:
     """The flat grip tab at the outer end of the core print that carries the label: a box
     (lo, hi) in the parting plane's directions, thick enough for the cut and a printed wall
     below it. None when labels are off."""
@@ -142,28 +130,29 @@ def core_tag(r: Recipe, lay: Layout) -> tuple[tuple[float, float, float],
     ls = r.label_settings
     if ls.mode == "none":
         return None
-    f = lay.frame
-    wa, va = f.w_axis, f.v_axis
-    cy, cz = r.inlet.center_mm
+    wa = parting.w_axis
+    va = 3 - wa
+    cy, cz = support.inlet.center_mm
     c = (0.0, cy, cz)
     length = text_width_mm(r.label_text, ls.height_mm) + 2.0 * label_margin(r)
     across = ls.height_mm + 2.0 * label_margin(r)
     thick = max(2.5, ls.depth_mm + r.printer.perimeters * r.printer.nozzle_mm)
     lo, hi = [0.0] * 3, [0.0] * 3
-    lo[0], hi[0] = lay.core_start_x - length, lay.core_start_x
+    lo[0], hi[0] = support.start_x_mm - length, support.start_x_mm
     lo[va], hi[va] = c[va] - across / 2.0, c[va] + across / 2.0
     lo[wa], hi[wa] = c[wa] - thick / 2.0, c[wa] + thick / 2.0
     return tuple(lo), tuple(hi)  # type: ignore[return-value]
 
 
-def label_core(r: Recipe, lay: Layout, core: k.Shape) -> tuple[k.Shape, Label | None]:
+def label_core(r: Recipe, step: CastingStep, core: k.Shape) -> tuple[k.Shape, Label | None]:
     """Add the grip tab to the core print and cut the label into its +w face."""
-    tab = core_tag(r, lay)
+    parting = step.settled_parting
+    tab = core_tag(r, step.core_supports[0], parting)
     if tab is None:
         return core, None
     lo, hi = tab
-    f = lay.frame
-    wa, va = f.w_axis, f.v_axis
+    wa = parting.w_axis
+    va = 3 - wa
     plate = k.box(lo, hi)
     vol = k.volume(core) + float(np.prod(np.subtract(hi, lo)))
     core = k.fuse([core, plate], "core", "add the grip tab", volume_mm3=vol)
@@ -185,7 +174,8 @@ class ShellSolids:
     labels: tuple[Label, ...] = ()
 
 
-def funnel_radius(lay: Layout, m, at_uv: tuple[float, float], sprue_r: float) -> float:
+def funnel_radius(lay: Layout, m: MoldSettings, at_uv: tuple[float, float],
+                  sprue_r: float) -> float:
     """The pour funnel's rim radius (mm): the recipe's, shrunk so that a land of
     MIN_LAND_MM stays to every clamp hole and to the block's edges; the bare sprue radius
     when no useful funnel fits."""
@@ -207,8 +197,9 @@ def build_body(r: Recipe) -> k.Shape:
                   "build body")
 
 
-def build_cast(r: Recipe, body: k.Shape | None = None) -> CastSolids:
-    """Void set, core and cast part (the body minus the core) for ``r``."""
+def build_cast(r: Recipe, step: CastingStep, body: k.Shape | None = None) -> CastSolids:
+    """Void set, core and cast part (the body minus the core) for ``r``, the core held by
+    the step's core support."""
     if body is None:
         body = build_body(r)
     void_prims = [p for group in r.void_primitives() for p in group]
@@ -216,30 +207,31 @@ def build_cast(r: Recipe, body: k.Shape | None = None) -> CastSolids:
     socket = k.build_primitive(r.inlet.socket(), "voids")
     void_set = k.fuse([voids, socket], "voids", "join voids to the inlet socket")
 
-    layout = plan_layout(r)
-    cy, cz = r.inlet.center_mm
-    rs = r.inlet.socket_diameter_mm / 2.0
+    sup = step.core_supports[0]
+    cy, cz = sup.inlet.center_mm
     # One cylinder is both the socket plug inside the body and the core print outside it.
-    x0 = layout.core_start_x
-    print_cyl = k.cylinder(0, (x0, cy, cz), r.inlet.socket_depth_mm - x0, rs)
-    key_lo, key_hi = layout.core_key_box
+    x0 = sup.start_x_mm
+    print_cyl = k.cylinder(0, (x0, cy, cz), sup.end_x_mm - x0, sup.radius_mm)
+    key_lo, key_hi = sup.key_box
     key_box = k.box(key_lo, key_hi)
     core = k.fuse([voids, print_cyl, key_box], "core", "build core")
     vols = {"body": k.volume(body), "void_set": k.volume(void_set), "core": k.volume(core)}
     cast = k.cut(body, [core], "cast", "cut voids from body",
                  volume_mm3=vols["body"] - vols["void_set"])
     vols["cast"] = k.volume(cast)
-    return CastSolids(body, core, cast, vols, layout)
+    return CastSolids(body, core, cast, vols)
 
 
-def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> ShellSolids:
-    lay = cs.layout
+def build_shells(r: Recipe, step: CastingStep, cs: CastSolids) -> ShellSolids:
+    """Both shells of ``step``: the block of its layout split at its parting plane, keys,
+    clamp holes, notches, the core seat, and the step's openings cut into the upper shell."""
+    lay = step.settled_layout
     f = lay.frame
     m = r.mold
     wa = f.w_axis
     block = k.box(lay.block_lo, lay.block_hi)
     c = m.clearance_mm
-    (klo, khi) = lay.core_key_box
+    (klo, khi) = step.core_supports[0].key_box
     pocket = k.box(tuple(a - c for a in klo), tuple(b + c for b in khi))
     w_lo, w_hi = lay.block_lo[wa], lay.block_hi[wa]
     tools = [cs.body, cs.core, pocket]
@@ -275,13 +267,13 @@ def build_shells(r: Recipe, cs: CastSolids, openings: tuple[Opening, ...]) -> Sh
     top = w_hi
     funnel_d = None
     fill = 0.0
-    for op in openings:
+    for op in step.openings:
         p = list(op.center_mm)
-        floor = getattr(op, "floor_mm", None)
+        floor = op.floor_mm
         start_w = (p[wa] if floor is None else floor) - CAVITY_OVERLAP_MM
         u, v = p[0], p[f.v_axis]
         rise = top - p[wa]
-        if op.kind == "sprue":
+        if op.kind is OpeningKind.SPRUE:
             funnel_r = funnel_radius(lay, m, (u, v), op.radius_mm)
             funnel_d = 2.0 * funnel_r
             depth = 0.6 * rise if funnel_r > op.radius_mm else 0.0

@@ -9,6 +9,7 @@ from pathlib import Path
 
 from ..errors import Problem, RecipeError
 from ..units import psi_to_kpa
+from .contracts import bounds_of
 from .fields import MapReader, join_path
 from .materials import resolve
 from .model import (
@@ -206,8 +207,8 @@ def recipe_from_node(root: Node, source: str, default_name: str = "recipe",
         inlet_v["center_mm"] = voids[0].entry()[0]
     parting_v = blocks["parting"]
     if parting_v["axis"] is None:
-        _, w, h = body.size_mm()
-        parting_v["axis"] = "y" if w < h else "z"
+        lo, hi = bounds_of(body.primitives())
+        parting_v["axis"] = "y" if hi[1] - lo[1] < hi[2] - lo[2] else "z"
     if parting_v["axis"] == "auto":
         if parting_v["offset_mm"] is not None:
             problems.append(Problem("parting.offset_mm", "is set while parting.axis is auto",
@@ -258,11 +259,11 @@ def recipe_from_node(root: Node, source: str, default_name: str = "recipe",
         material=Material(**blocks["material"], silicone=silicone, blend=blend),
         inflate=Inflate(working), casting=CastingSettings(**blocks["casting"]),
         label_settings=LabelSettings(**lab),
-        printer=PrinterSettings(**blocks["printer"]), source=source)
+        printer=PrinterSettings(**blocks["printer"]), source=source, lines=lines)
 
     problems.extend(sanity_problems(recipe, lines))
     if problems:
-        raise RecipeError(problems, source)
+        raise RecipeError(problems, source, recipe)
     return recipe
 
 

@@ -10,9 +10,11 @@ from __future__ import annotations
 
 import hashlib
 import json
-from dataclasses import asdict, dataclass
+from collections.abc import Mapping
+from dataclasses import asdict, dataclass, field
 from typing import Any
 
+from .contracts import BodyKind, VoidKind, bounds_of
 from .materials import Blend, Grade
 from .primitives import Primitive, RoundedRod
 
@@ -144,13 +146,14 @@ class MeshSettings:
 
 @dataclass(frozen=True)
 class Recipe:
-    """A validated recipe. ``body`` and ``voids`` are instances of registered kinds."""
+    """A validated recipe. ``body`` and ``voids`` are instances of registered kinds (see
+    :mod:`.contracts` for what they provide and the frame they share)."""
 
     name: str
     label: str
     description: str
-    body: Any
-    voids: tuple[Any, ...]
+    body: BodyKind
+    voids: tuple[VoidKind, ...]
     inlet: Inlet
     parting: Parting
     mold: MoldSettings
@@ -162,6 +165,8 @@ class Recipe:
     label_settings: LabelSettings
     printer: PrinterSettings
     source: str = ""
+    #: Field path -> source line, for problems found after loading (the plan stage's).
+    lines: Mapping[str, int] = field(default_factory=dict, compare=False, repr=False)
 
     @property
     def label_text(self) -> str:
@@ -171,15 +176,25 @@ class Recipe:
     def body_primitives(self) -> tuple[Primitive, ...]:
         return self.body.primitives()
 
+    def body_bounds(self) -> tuple[tuple[float, float, float], tuple[float, float, float]]:
+        """The body's axis-aligned bounds (lo, hi), mm, derived from its primitives."""
+        return bounds_of(self.body_primitives())
+
+    @property
+    def body_length_mm(self) -> float:
+        """Extent along x from the inlet face (mm)."""
+        lo, hi = self.body_bounds()
+        return hi[0] - lo[0]
+
     def void_primitives(self) -> tuple[tuple[Primitive, ...], ...]:
         """Primitives per void entry, in recipe order (without the inlet socket)."""
-        length = self.body.size_mm()[0]
+        length = self.body_length_mm
         return tuple(v.primitives(length) for v in self.voids)
 
     def params(self) -> dict[str, Any]:
         """Every value that shapes the output, as plain JSON-ready data."""
-        def kind_dict(obj: Any) -> dict[str, Any]:
-            return {"kind": obj.KIND, **asdict(obj)}
+        def kind_dict(obj: BodyKind | VoidKind) -> dict[str, Any]:
+            return {"kind": obj.KIND, **asdict(obj)}  # type: ignore[call-overload]
 
         return {
             "name": self.name,

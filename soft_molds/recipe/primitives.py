@@ -42,6 +42,18 @@ class RoundedBox:
         """Points on the surface, at most ``spacing_mm`` apart along each face."""
         return _project_to_surface(self, _box_shell_grid(*self.bounds(), spacing_mm))
 
+    def section_extent(self, v: int, w: int, t: float) -> tuple[float, float] | None:
+        """Extent (lo, hi) along axis ``v`` of the section by the plane ``coord[w] = t``,
+        taken over the third axis (None: the plane misses). Exact: the section across a
+        rounded edge narrows by r - sqrt(r^2 - d^2) at depth d into the rounding."""
+        c, h, r = self.center_mm, np.asarray(self.size_mm) / 2.0, self.radius_mm
+        off = abs(t - c[w])
+        if off > h[w]:
+            return None
+        d = off - (h[w] - r)
+        half = h[v] - (r - float(np.sqrt(max(r * r - d * d, 0.0))) if d > 0.0 else 0.0)
+        return (c[v] - half, c[v] + half)
+
 
 @dataclass(frozen=True)
 class RoundedRod:
@@ -85,6 +97,33 @@ class RoundedRod:
 
     def surface_samples(self, spacing_mm: float) -> np.ndarray:
         return _project_to_surface(self, _box_shell_grid(*self.bounds(), spacing_mm))
+
+    def section_extent(self, v: int, w: int, t: float) -> tuple[float, float] | None:
+        """Extent (lo, hi) along axis ``v`` of the section by the plane ``coord[w] = t``,
+        taken over the third axis (None: the plane misses). Exact for the revolved rounded
+        rectangle: across the axis a chord of the circle, along it the length less the end
+        roundings' shortfall at that radius."""
+        a = AXES[self.axis]
+        others = [i for i in range(3) if i != a]
+        big, f = self.radius_mm, self.end_radius_mm
+        if w == a:  # a plane across the rod: a disc whose radius the end rounding trims
+            s = t - self.start_mm
+            if s < 0.0 or s > self.length_mm:
+                return None
+            e = max(f - s, s - (self.length_mm - f), 0.0)
+            rho = big - (f - float(np.sqrt(max(f * f - e * e, 0.0))) if e > 0.0 else 0.0)
+            cv = self.center_mm[others.index(v)]
+            return (cv - rho, cv + rho)
+        rho = abs(t - self.center_mm[others.index(w)])
+        if rho > big:
+            return None
+        if v == a:  # along the axis at radial distance rho
+            d = rho - (big - f)
+            short = f - float(np.sqrt(max(f * f - d * d, 0.0))) if d > 0.0 else 0.0
+            return (self.start_mm + short, self.start_mm + self.length_mm - short)
+        half = float(np.sqrt(big * big - rho * rho))
+        cv = self.center_mm[others.index(v)]
+        return (cv - half, cv + half)
 
 
 Primitive = RoundedBox | RoundedRod

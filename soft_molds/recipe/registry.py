@@ -1,36 +1,44 @@
 """Registries of body and void kinds.
 
-A kind is a frozen dataclass with a ``FIELDS`` tuple and a ``primitives`` method, put in
-its own module under ``soft_molds/recipe/kinds/`` and decorated with :func:`body_kind`
-or :func:`void_kind`. Every module in that package is imported on first use, so adding
-a kind is adding one file.
+A kind is a frozen dataclass meeting the contract in :mod:`.contracts` (checked when it
+registers), put in its own module under ``soft_molds/recipe/kinds/`` and decorated with
+:func:`body_kind` or :func:`void_kind`. Every module in that package is imported on first
+use, so adding a kind is adding one file.
 """
 
 from __future__ import annotations
 
 import importlib
 import pkgutil
-from typing import Any
+from collections.abc import Callable
+from typing import TypeVar
+
+from .contracts import check_kind
+
+T = TypeVar("T", bound=type)
 
 BODY_KINDS: dict[str, type] = {}
 VOID_KINDS: dict[str, type] = {}
 _loaded = False
 
 
-def body_kind(name: str):
-    def deco(cls: type) -> type:
+def _register(table: dict[str, type], what: str, name: str) -> Callable[[T], T]:
+    def deco(cls: T) -> T:
+        check_kind(cls, what)
+        if name in table and table[name] is not cls:
+            raise TypeError(f"{what} kind {name!r} is registered twice")
         cls.KIND = name  # type: ignore[attr-defined]
-        BODY_KINDS[name] = cls
+        table[name] = cls
         return cls
     return deco
 
 
-def void_kind(name: str):
-    def deco(cls: type) -> type:
-        cls.KIND = name  # type: ignore[attr-defined]
-        VOID_KINDS[name] = cls
-        return cls
-    return deco
+def body_kind(name: str) -> Callable[[T], T]:
+    return _register(BODY_KINDS, "body", name)
+
+
+def void_kind(name: str) -> Callable[[T], T]:
+    return _register(VOID_KINDS, "void", name)
 
 
 def _load() -> None:
@@ -44,11 +52,11 @@ def _load() -> None:
     _loaded = True
 
 
-def body_kinds() -> dict[str, Any]:
+def body_kinds() -> dict[str, type]:
     _load()
     return dict(sorted(BODY_KINDS.items()))
 
 
-def void_kinds() -> dict[str, Any]:
+def void_kinds() -> dict[str, type]:
     _load()
     return dict(sorted(VOID_KINDS.items()))

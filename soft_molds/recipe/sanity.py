@@ -1,14 +1,13 @@
 """Geometric sanity of a validated recipe, checked with exact distance functions before
 any kernel call: voids inside the body with the minimum silicone wall, every void
-reached from the inlet socket, the socket on the flat inlet face, and the parting plane
-through the socket axis (so the core print can be seated in both shell parts)."""
+reached from the inlet socket and the socket on the flat inlet face. The rules of the mold
+(parting plane, block features, printer) are the plan stage's (:mod:`soft_molds.plan.rules`)."""
 
 from __future__ import annotations
 
 import numpy as np
 
 from ..errors import Problem
-from .layout import layout_problems, plan_layout
 from .model import Recipe
 from .primitives import Primitive, union_sdf
 
@@ -98,48 +97,7 @@ def sanity_problems(r: Recipe, lines: dict[str, int]) -> list[Problem]:
                                f"(centre ({cy:g}, {cz:g}), radius {sock_r:g} mm, depth "
                                f"{r.inlet.socket_depth_mm:g} mm)"))
 
-    if not r.parting.auto:
-        out.extend(parting_problems(r, line))
     return out
-
-
-def parting_problems(r: Recipe, line) -> list[Problem]:
-    """The parting plane's own rules (through the socket axis and the widest section) and
-    the mold-block rules that depend on it; ``line(path)`` gives a field's source line."""
-    out: list[Problem] = []
-    body = r.body_primitives()
-    cy, cz = r.inlet.center_mm
-    inlet_on_axis = cz if r.parting.axis == "z" else cy
-    parting_line = line("parting.offset_mm") or line("parting") or line("")
-    if abs(inlet_on_axis - r.parting.offset_mm) > EPS:
-        out.append(Problem("parting.offset_mm", "does not pass through the inlet socket axis",
-                           parting_line, r.parting.offset_mm,
-                           f"{inlet_on_axis:g} mm (the socket centre's {r.parting.axis}), so "
-                           "the core print can be seated in both shell parts"))
-    elif not _parting_at_widest(body, r):
-        out.append(Problem("parting.offset_mm", "does not run through the body's widest "
-                           "section: one shell part would lock the cast in an undercut",
-                           parting_line, r.parting.offset_mm,
-                           "a plane through the straight sides of the body (for a rod, its "
-                           "axis; move the voids and socket to that plane)"))
-    out.extend(layout_problems(r, plan_layout(r), line))
-    return out
-
-
-def _parting_at_widest(body, r: Recipe) -> bool:
-    """Both shells pull straight off only if the body is as wide at the parting plane as
-    anywhere: probe just inside the body's bounding box at the plane, along the body's
-    length (kinds are extrusions or revolutions along x)."""
-    w = 2 if r.parting.axis == "z" else 1
-    v = 1 if w == 2 else 2
-    length, width, height = r.body.size_mm()
-    half_v = (width if v == 1 else height) / 2.0
-    xs = np.linspace(0.25 * length, 0.75 * length, 5)
-    pts = np.zeros((2 * len(xs), 3))
-    pts[:, 0] = np.tile(xs, 2)
-    pts[:, v] = np.repeat([-1.0, 1.0], len(xs)) * (half_v - 1e-3)
-    pts[:, w] = r.parting.offset_mm
-    return bool(np.all(union_sdf(body, pts) <= 0.0))
 
 
 def _wall_problems(out: list[Problem], path: str, line: int | None, body, samples: np.ndarray,

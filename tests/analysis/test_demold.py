@@ -24,8 +24,9 @@ from soft_molds.analysis.demold import (
     score_plane,
     side_masks,
 )
-from soft_molds.analysis.review import rank_planes
+from soft_molds.analysis.parting_scores import score_planes
 from soft_molds.meshdata import TriMesh
+from soft_molds.plan.parting import rank
 
 UP = (0.0, 0.0, 1.0)
 SEGMENTS = 256
@@ -146,7 +147,7 @@ def test_rank_planes_puts_the_releasing_planes_of_the_tee_first():
     s = Surface(_tee())
     contact = np.ones(len(s.areas), dtype=bool)
     cands = [("z", 0.0), ("z", 10.0), ("z", 20.0), ("y", 10.0)]
-    ranked = rank_planes(s, contact, None, None, cands, rule=None, min_draft_deg=0.5)
+    ranked = rank(score_planes(s, contact, None, None, cands, rule=None, min_draft_deg=0.5))
     order = [(p.axis, p.offset_mm) for p in ranked]
     assert ranked[0].locked_area_mm2 == 0.0
     assert order[0] in {("z", 20.0), ("y", 10.0)}

@@ -67,7 +67,7 @@ def test_core_print_is_seated_in_both_halves_with_a_square_key(finger):
     assert hit_lower[0][2] == pytest.approx(cz - rs, abs=0.02)
     # At the key, a point beside the round print (radius rs < |y - cy| < key half-width)
     # is core: the key is square, so the core cannot turn in its seat.
-    klo, khi = lay.core_key_box
+    klo, khi = finger.plan.step.core_supports[0].key_box
     kx = (klo[0] + khi[0]) / 2
     half = (khi[1] - klo[1]) / 2
     y = cy + (rs + half) / 2

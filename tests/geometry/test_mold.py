@@ -11,7 +11,7 @@ import numpy as np
 import pytest
 import trimesh
 
-from soft_molds.recipe.layout import key_symmetry_clashes
+from soft_molds.plan.layout import key_symmetry_clashes
 from soft_molds.recipe.model import ISO273_MEDIUM_MM
 
 NAMES = ["seedling-finger", "tray-pusher", "stem-cushion", "wrist-twister", "soil-tamper"]

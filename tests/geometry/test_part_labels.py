@@ -65,7 +65,8 @@ def test_the_core_grows_by_its_grip_tab_less_the_label(pair):
     on, off = pair
     from soft_molds.geometry.mold import core_tag
 
-    lo, hi = core_tag(on.recipe, on.layout)
+    step = on.plan.step
+    lo, hi = core_tag(on.recipe, step.core_supports[0], step.settled_parting)
     tab = float(np.prod(np.subtract(hi, lo)))
     lab = next(x for x in on.labels if x.part == "core")
     grown = on.part("core").brep_volume_mm3 - off.part("core").brep_volume_mm3

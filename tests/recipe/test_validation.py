@@ -16,7 +16,7 @@ import time
 from pathlib import Path
 
 import pytest
-from recipe_text import FINGER_TEXT, edit, line_of
+from recipe_text import FINGER_TEXT, edit, line_of, planned_from_text
 
 from soft_molds.errors import RecipeError
 from soft_molds.recipe import load_recipe, recipe_from_text
@@ -38,7 +38,7 @@ FINGER = FINGER_TEXT
 
 def problems_of(text: str) -> list:
     with pytest.raises(RecipeError) as exc:
-        recipe_from_text(text, "t.yaml")
+        planned_from_text(text, "t.yaml")
     return list(exc.value.problems)
 
 

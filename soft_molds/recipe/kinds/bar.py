@@ -2,8 +2,9 @@
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass
-from typing import ClassVar
+from typing import Any, ClassVar
 
 from ...errors import Problem
 from ..fields import Field, number
@@ -29,7 +30,7 @@ class Bar:
     edge_radius_mm: float
 
     @classmethod
-    def cross_check(cls, v: dict, path: str, line: int | None) -> list[Problem]:
+    def cross_check(cls, v: Mapping[str, Any], path: str, line: int | None) -> list[Problem]:
         smallest = min(v["length_mm"], v["width_mm"], v["height_mm"])
         # A fillet of half the smallest side or more leaves no flat face and fails in the kernel.
         limit = 0.45 * smallest
@@ -41,6 +42,3 @@ class Bar:
     def primitives(self) -> tuple[Primitive, ...]:
         return (RoundedBox((self.length_mm / 2.0, 0.0, 0.0),
                            (self.length_mm, self.width_mm, self.height_mm), self.edge_radius_mm),)
-
-    def size_mm(self) -> tuple[float, float, float]:
-        return (self.length_mm, self.width_mm, self.height_mm)

@@ -3,10 +3,12 @@
 from __future__ import annotations
 
 import math
+from collections.abc import Mapping
 from dataclasses import dataclass
-from typing import ClassVar
+from typing import Any, ClassVar
 
 from ...errors import Problem
+from ..contracts import Entry
 from ..fields import Field, number, pair
 from ..membranes import Membrane
 from ..primitives import Primitive, RoundedRod
@@ -36,7 +38,7 @@ class Bore:
     end_round_mm: float
 
     @classmethod
-    def cross_check(cls, v: dict, path: str, line: int | None) -> list[Problem]:
+    def cross_check(cls, v: Mapping[str, Any], path: str, line: int | None) -> list[Problem]:
         limit = min(v["diameter_mm"] / 2.0, v["length_mm"] / 2.0)
         if v["end_round_mm"] > limit:
             return [Problem(f"{path}.end_round_mm", "is too large for the bore", line,
@@ -47,8 +49,8 @@ class Bore:
         return (RoundedRod("x", self.start_mm, self.length_mm, self.center_mm,
                            self.diameter_mm / 2.0, self.end_round_mm),)
 
-    def entry(self) -> tuple[tuple[float, float], float, float]:
-        return self.center_mm, self.diameter_mm / 2.0, self.start_mm
+    def entry(self) -> Entry:
+        return Entry(self.center_mm, self.diameter_mm / 2.0, self.start_mm)
 
     def membranes(self, body_length_mm: float) -> tuple[Membrane, ...]:
         """The tube wall at mid-length, probed at 8 points round the bore (the check takes

@@ -7,10 +7,12 @@ the last chamber, so one core carries every chamber.
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass
-from typing import ClassVar
+from typing import Any, ClassVar
 
 from ...errors import Problem
+from ..contracts import Entry
 from ..fields import Field, integer, number, pair
 from ..membranes import Membrane
 from ..primitives import Primitive, RoundedBox, RoundedRod
@@ -47,7 +49,7 @@ class Chambers:
     feed_diameter_mm: float
 
     @classmethod
-    def cross_check(cls, v: dict, path: str, line: int | None) -> list[Problem]:
+    def cross_check(cls, v: Mapping[str, Any], path: str, line: int | None) -> list[Problem]:
         out = []
         if v["depth_mm"] >= v["pitch_mm"]:
             out.append(Problem(f"{path}.depth_mm", "leaves no wall between chambers", line,
@@ -87,9 +89,9 @@ class Chambers:
     def primitives(self, body_length_mm: float) -> tuple[Primitive, ...]:
         return (*self.chamber_boxes(body_length_mm), self.feed_channel(body_length_mm))
 
-    def entry(self) -> tuple[tuple[float, float], float, float]:
+    def entry(self) -> Entry:
         """(y, z) of the passage at the inlet face, its radius, and the x where it starts."""
-        return self.center_mm, self.feed_diameter_mm / 2.0, 0.0
+        return Entry(self.center_mm, self.feed_diameter_mm / 2.0, 0.0)
 
     def membranes(self, body_length_mm: float) -> tuple[Membrane, ...]:
         """Top, bottom and side walls of every chamber, and the outer end walls of the

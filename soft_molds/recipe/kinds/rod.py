@@ -2,8 +2,9 @@
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from dataclasses import dataclass
-from typing import ClassVar
+from typing import Any, ClassVar
 
 from ...errors import Problem
 from ..fields import Field, number
@@ -28,7 +29,7 @@ class Rod:
     end_round_mm: float
 
     @classmethod
-    def cross_check(cls, v: dict, path: str, line: int | None) -> list[Problem]:
+    def cross_check(cls, v: Mapping[str, Any], path: str, line: int | None) -> list[Problem]:
         limit = min(v["diameter_mm"] / 2.0, v["length_mm"] / 2.0) * 0.9
         if v["end_round_mm"] > limit:
             return [Problem(f"{path}.end_round_mm", "is too large for the rod", line,
@@ -40,6 +41,3 @@ class Rod:
     def primitives(self) -> tuple[Primitive, ...]:
         return (RoundedRod("x", 0.0, self.length_mm, (0.0, 0.0), self.diameter_mm / 2.0,
                            self.end_round_mm),)
-
-    def size_mm(self) -> tuple[float, float, float]:
-        return (self.length_mm, self.diameter_mm, self.diameter_mm)

@@ -1,4 +1,4 @@
-"""Mold-block rules checked with the recipe, before the kernel: keys, clamp holes, notches,
+"""Mold-block rules checked on the plan, before the kernel: keys, clamp holes, notches,
 sprue and parting plane must leave printable walls and no undercut. Wall figures are
 worked out by hand from the layout (keys and bolts on a line flange_mm / 2 in from the
 block edge; MIN_LAND_MM = 1.5 mm, about four 0.4 mm perimeters, common practice)."""
@@ -6,6 +6,7 @@ block edge; MIN_LAND_MM = 1.5 mm, about four 0.4 mm perimeters, common practice)
 from __future__ import annotations
 
 import pytest
+from recipe_text import planned_from_text
 
 from soft_molds.errors import RecipeError
 from soft_molds.recipe import recipe_from_text
@@ -21,7 +22,7 @@ inlet: {socket_diameter_mm: 5, socket_depth_mm: 6}
 
 def problems(extra: str) -> dict[str, str]:
     try:
-        recipe_from_text(BASE + extra, "rules.yaml", "rules")
+        planned_from_text(BASE + extra, "rules.yaml", "rules")
     except RecipeError as exc:
         return {p.path: p.message + " " + p.allowed for p in exc.problems}
     return {}
@@ -54,13 +55,13 @@ def test_clamp_hole_rule_guards_a_narrow_flange():
     edge; an M5 hole (5.5 mm, ISO 273 medium) leaves 0.75 mm < 1.5 mm of wall."""
     from dataclasses import replace
 
-    from soft_molds.recipe.layout import layout_problems, plan_layout
+    from soft_molds.plan.layout import layout_problems, plan_layout
 
     r = recipe_from_text(BASE, "rules.yaml", "rules")
-    assert layout_problems(r, plan_layout(r), lambda _p: None) == []
+    assert layout_problems(r, plan_layout(r, "z", 0.0), lambda _p: None) == []
     narrow = replace(r, mold=replace(r.mold, flange_mm=7.0, clamp_bolt="M5",
                                      key_diameter_mm=3.0))
-    got = {p.path: p.message for p in layout_problems(narrow, plan_layout(narrow),
+    got = {p.path: p.message for p in layout_problems(narrow, plan_layout(narrow, "z", 0.0),
                                                       lambda _p: None)}
     assert "clamp holes" in got["mold.clamp_bolt"]
 
@@ -79,7 +80,7 @@ voids:
   - {kind: bore, diameter_mm: 4, length_mm: 30, center_mm: [0, 4]}
 """
     with pytest.raises(RecipeError) as err:
-        recipe_from_text(rod, "rod.yaml", "rod")
+        planned_from_text(rod, "rod.yaml", "rod")
     paths = {p.path: p for p in err.value.problems}
     assert "parting.offset_mm" in paths and "undercut" in paths["parting.offset_mm"].message
 

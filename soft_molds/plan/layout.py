@@ -1,7 +1,7 @@
 """Where the mold's features go, as plain numbers (no kernel): block extents, clamp holes,
-registration keys, pry notches and the core key; and the rules that keep them clear of each
-other, of the cavity and of the block's faces (checked with the recipe, before any kernel
-call).
+registration keys and pry notches; and the rules that keep them clear of each other, of the
+cavity and of the block's faces (checked before any kernel call). The block is laid around
+the body's bounds as its primitives give them, wherever the body lies.
 
 Local frame: ``u`` = x (the body's long axis), ``v`` = the other in-plane axis, ``w`` = the
 parting axis (up in pour orientation). ``world()`` maps (u, v, w) to (x, y, z).
@@ -13,7 +13,8 @@ import math
 from dataclasses import dataclass
 
 from ..errors import Problem
-from .model import Recipe
+from ..recipe.model import Recipe
+from .lines import LineOf
 
 #: Pry notch: how deep it cuts into a face, its length along the face and its half height
 #: either side of the parting plane (mm): room for a flat screwdriver tip.
@@ -56,8 +57,6 @@ class Layout:
     bolts_uv: tuple[tuple[float, float], ...]
     keys_uv: tuple[tuple[float, float], ...]
     notches: tuple[tuple[float, float, float, float], ...]  # (u, v, along-u size, along-v size)
-    core_start_x: float  # outer end of the core print (x < 0)
-    core_key_box: tuple[tuple[float, float, float], tuple[float, float, float]]  # (lo, hi)
 
     @property
     def block_center_uv(self) -> tuple[float, float]:
@@ -66,13 +65,18 @@ class Layout:
                 (self.block_lo[f.v_axis] + self.block_hi[f.v_axis]) / 2)
 
 
-def plan_layout(r: Recipe) -> Layout:
-    frame = Frame(2 if r.parting.axis == "z" else 1)
-    length, width, height = r.body.size_mm()
-    body_lo = (0.0, -width / 2, -height / 2)
-    body_hi = (length, width / 2, height / 2)
+def block_band_mm(r: Recipe) -> float:
+    """How far the block reaches beyond the body in the parting plane (mm): wall + flange."""
+    return r.mold.wall_mm + r.mold.flange_mm
+
+
+def plan_layout(r: Recipe, axis: str, offset_mm: float) -> Layout:
+    """The block and its features for a parting plane normal to ``axis`` ("y" or "z") at
+    ``offset_mm``."""
+    frame = Frame(2 if axis == "z" else 1)
+    body_lo, body_hi = r.body_bounds()
     m = r.mold
-    band = m.wall_mm + m.flange_mm
+    band = block_band_mm(r)
     lo = [body_lo[0] - band, 0.0, 0.0]
     hi = [body_hi[0] + band, 0.0, 0.0]
     va, wa = frame.v_axis, frame.w_axis
@@ -97,25 +101,8 @@ def plan_layout(r: Recipe) -> Layout:
         (hi[0], (v0 + v1) / 2, 2 * NOTCH_DEPTH_MM, NOTCH_LENGTH_MM),  # far end face, centred
         (mid_last, hi[va], NOTCH_LENGTH_MM, 2 * NOTCH_DEPTH_MM),      # +v face, no key there
     )
-    return Layout(frame, r.parting.offset_mm, tuple(lo), tuple(hi), body_lo, body_hi,  # type: ignore[arg-type]
-                  bolts, keys, notches, lo[0] - m.core_handle_mm, _core_key(r, lo[0]))
-
-
-#: Wall left on each side of the core key pocket (mm), toward the cavity and outside.
-KEY_LAND_MM = 1.5
-#: How far the square key stands out beyond the round print on each side (mm).
-KEY_SHOULDER_MM = 1.5
-
-
-def _core_key(r: Recipe, wall_x: float) -> tuple[tuple[float, float, float],
-                                                  tuple[float, float, float]]:
-    """The square key on the core print, centred in the block's inlet wall (x from
-    ``wall_x`` < 0 to 0): its flats stop the core turning, its shoulders stop it sliding."""
-    cy, cz = r.inlet.center_mm
-    key_len = min(6.0, -wall_x - 2 * KEY_LAND_MM)
-    x0 = wall_x / 2.0 - key_len / 2.0
-    half = r.inlet.socket_diameter_mm / 2.0 + KEY_SHOULDER_MM
-    return (x0, cy - half, cz - half), (x0 + key_len, cy + half, cz + half)
+    return Layout(frame, offset_mm, (lo[0], lo[1], lo[2]), (hi[0], hi[1], hi[2]), body_lo,
+                  body_hi, bolts, keys, notches)
 
 
 def key_symmetry_clashes(keys_uv: tuple[tuple[float, float], ...],
@@ -136,7 +123,7 @@ def key_symmetry_clashes(keys_uv: tuple[tuple[float, float], ...],
     return clashes
 
 
-def layout_problems(r: Recipe, lay: Layout, line) -> list[Problem]:
+def layout_problems(r: Recipe, lay: Layout, line: LineOf) -> list[Problem]:
     """Keys, clamp holes and notches that would collide with each other, break into the
     cavity or out of the block. ``line(path)`` gives a field's source line."""
     m = r.mold

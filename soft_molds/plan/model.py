@@ -1,0 +1,212 @@
+"""The typed, immutable plan of a mold set: what the geometry stage builds and what each part
+is for. Made from a validated recipe by :func:`soft_molds.plan.plan_mold`; completed by the
+choice of a parting plane (``parting: auto``) and by the openings located on the cast.
+
+Frame (mm, world): the body starts at the inlet face x = 0 and lies at x >= 0. In pour
+orientation the parting plane's normal axis (y or z) points up: the upper shell lies on its
++ side and pulls along +up, the lower shell pulls along -up, and the core pulls along -x out
+through the inlet socket.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+from enum import StrEnum
+
+from ..recipe.model import Recipe
+from .layout import Layout
+
+Vec3 = tuple[float, float, float]
+Box = tuple[Vec3, Vec3]
+
+AXIS_INDEX = {"x": 0, "y": 1, "z": 2}
+
+
+def unit(axis: int, sign: float = 1.0) -> Vec3:
+    """The unit vector along world axis ``axis`` (0, 1, 2) with ``sign``; never -0.0."""
+    v = [0.0, 0.0, 0.0]
+    v[axis] = sign
+    return (v[0] + 0.0, v[1] + 0.0, v[2] + 0.0)
+
+
+class Role(StrEnum):
+    """What a part is for: ``shell`` parts hold the silicone, the ``core`` forms the voids,
+    the ``cast`` is the silicone part itself (a preview, never printed)."""
+
+    SHELL = "shell"
+    CORE = "core"
+    CAST = "cast"
+
+
+class ChosenBy(StrEnum):
+    RECIPE = "recipe"
+    ANALYSIS = "analysis"
+
+
+class OpeningKind(StrEnum):
+    SPRUE = "sprue"
+    VENT = "vent"
+
+
+@dataclass(frozen=True)
+class PartingPlane:
+    """The plane ``coord[axis] = offset_mm`` (axis "y" or "z"); ``axis`` points up in pour
+    orientation."""
+
+    axis: str
+    offset_mm: float
+    chosen_by: ChosenBy = ChosenBy.RECIPE
+
+    def __post_init__(self) -> None:
+        if self.axis not in ("y", "z"):
+            raise ValueError(f"parting axis must be y or z, got {self.axis!r}")
+
+    @property
+    def w_axis(self) -> int:
+        return AXIS_INDEX[self.axis]
+
+    @property
+    def up(self) -> Vec3:
+        return unit(self.w_axis)
+
+    @property
+    def down(self) -> Vec3:
+        return unit(self.w_axis, -1.0)
+
+
+@dataclass(frozen=True)
+class PlaneScore:
+    """One candidate parting plane, scored on the cast and core meshes by the analysis
+    stage: silicone area locked in undercuts by either shell (mm2), core-print area a shell
+    would lock (mm2; rigid against rigid, never acceptable), the least draft (deg) and the
+    rule it breaks (None: usable)."""
+
+    axis: str
+    offset_mm: float
+    locked_area_mm2: float
+    rigid_locked_area_mm2: float
+    min_draft_deg: float
+    rule: str | None = None
+
+    @property
+    def usable(self) -> bool:
+        return self.rule is None and self.rigid_locked_area_mm2 <= 0.0
+
+    def key(self) -> tuple[float, float]:
+        """Sort key: least locked area, then the greatest least draft."""
+        return (round(self.locked_area_mm2 + self.rigid_locked_area_mm2, 3),
+                -round(self.min_draft_deg, 3))
+
+
+@dataclass(frozen=True)
+class Inlet:
+    """A tube socket into the inlet face: centre (y, z) on x = 0, diameter and depth (mm)."""
+
+    center_mm: tuple[float, float]
+    socket_diameter_mm: float
+    socket_depth_mm: float
+
+
+@dataclass(frozen=True)
+class CoreSupport:
+    """How the core is held: one round print, both socket plug and the part seated in the
+    shells, from ``start_x_mm`` (outside the block, < 0) to the socket floor ``end_x_mm``,
+    radius ``radius_mm`` about the inlet centre; and a square ``key_box`` (lo, hi) in the
+    block's inlet wall whose flats stop it turning and shoulders stop it sliding."""
+
+    inlet: Inlet
+    start_x_mm: float
+    end_x_mm: float
+    radius_mm: float
+    key_box: Box
+    pull_dir: Vec3 = (-1.0, 0.0, 0.0)
+
+
+@dataclass(frozen=True)
+class Opening:
+    """A sprue (pour inlet) or vent where it meets the cavity (mm, world frame).
+
+    ``floor_mm`` is the lowest height (along up) of the cavity ceiling under the mouth,
+    where the cut into the mold must start so that no sliver of mold is left between the
+    cut and the cavity (``None``: the centre's height)."""
+
+    kind: OpeningKind
+    center_mm: Vec3
+    radius_mm: float
+    floor_mm: float | None = None
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "kind", OpeningKind(self.kind))
+
+
+@dataclass(frozen=True)
+class PartPlan:
+    """A part to build: its name (also the file stem), role and pull direction (unit, world;
+    None for the cast)."""
+
+    name: str
+    role: Role
+    pull_dir: Vec3 | None
+
+    @property
+    def printable(self) -> bool:
+        return self.role is not Role.CAST
+
+
+@dataclass(frozen=True)
+class CastingStep:
+    """One pour: the mold that is closed around the core(s) and filled.
+
+    ``parting`` and ``layout`` are None only while a ``parting: auto`` plane is still to be
+    chosen; ``openings`` is empty until the analysis stage has located the high points."""
+
+    name: str
+    inlets: tuple[Inlet, ...]
+    core_supports: tuple[CoreSupport, ...]
+    parting: PartingPlane | None
+    layout: Layout | None
+    candidates: tuple[PlaneScore, ...] = ()
+    openings: tuple[Opening, ...] = ()
+
+    @property
+    def parts(self) -> tuple[PartPlan, ...]:
+        """shell-lower, shell-upper, core, cast, in the order files and reports list them."""
+        p = self.settled_parting
+        return (PartPlan("shell-lower", Role.SHELL, p.down),
+                PartPlan("shell-upper", Role.SHELL, p.up),
+                PartPlan("core", Role.CORE, self.core_supports[0].pull_dir),
+                PartPlan("cast", Role.CAST, None))
+
+    @property
+    def settled_parting(self) -> PartingPlane:
+        if self.parting is None:
+            raise ValueError(f"step {self.name}: the parting plane is not chosen yet")
+        return self.parting
+
+    @property
+    def settled_layout(self) -> Layout:
+        if self.layout is None:
+            raise ValueError(f"step {self.name}: the layout waits for the parting plane")
+        return self.layout
+
+
+@dataclass(frozen=True)
+class MoldPlan:
+    """Every casting step of one variant, in pour order. ``recipe`` carries the chosen
+    parting plane once there is one; ``source_params_sha256`` is the hash of the recipe as
+    given (so an auto-parted variant is recognised as up to date)."""
+
+    recipe: Recipe
+    source_params_sha256: str
+    steps: tuple[CastingStep, ...]
+
+    @property
+    def step(self) -> CastingStep:
+        """The one step of a one-shot process."""
+        if len(self.steps) != 1:
+            raise ValueError(f"{len(self.steps)} casting steps; name the one you mean")
+        return self.steps[0]
+
+    def with_step(self, step: CastingStep, recipe: Recipe | None = None) -> MoldPlan:
+        steps = tuple(step if s.name == step.name else s for s in self.steps)
+        return replace(self, steps=steps, recipe=recipe or self.recipe)

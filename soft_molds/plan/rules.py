@@ -1,0 +1,67 @@
+"""Rules of the mold, checked on the plan before any kernel call: the parting plane runs
+through the socket axis (so the core print seats in both shells) and through the body's
+widest section (so neither shell locks the cast), the block's features keep clear of each
+other, and the body starts at the inlet face. Each broken rule is a recipe
+:class:`~soft_molds.errors.Problem` naming the field to change."""
+
+from __future__ import annotations
+
+from ..errors import Problem
+from ..recipe.model import Recipe
+from .layout import layout_problems, plan_layout
+from .lines import LineOf
+from .sections import WIDTH_TOL_MM, widest_offset, width_at
+
+#: Coordinates closer than this are the same (mm): float noise of recipe arithmetic.
+EPS_MM = 1e-6
+#: A parting plane this much narrower than the widest section still releases the cast (mm):
+#: the rounding of a cylinder's section within a micrometre of its axis.
+WIDEST_SLACK_MM = 2e-3
+
+
+def frame_problems(r: Recipe, line: LineOf) -> list[Problem]:
+    """The body must start at the inlet face x = 0 (the frame every kind shares)."""
+    lo, _ = r.body_bounds()
+    if abs(lo[0]) > EPS_MM:
+        return [Problem("body", "does not start at the inlet face x = 0", line("body"), lo[0],
+                        "a body whose least x is 0 mm (the socket enters that face)")]
+    return []
+
+
+def parting_problems(r: Recipe, axis: str, offset_mm: float, line: LineOf) -> list[Problem]:
+    """The plane normal to ``axis`` at ``offset_mm``: through the socket axis and the widest
+    section, and the mold-block rules of the layout it gives."""
+    out: list[Problem] = []
+    cy, cz = r.inlet.center_mm
+    inlet_on_axis = cz if axis == "z" else cy
+    parting_line = line("parting.offset_mm")
+    if abs(inlet_on_axis - offset_mm) > EPS_MM:
+        out.append(Problem("parting.offset_mm", "does not pass through the inlet socket axis",
+                           parting_line, offset_mm,
+                           f"{inlet_on_axis:g} mm (the socket centre's {axis}), so the core "
+                           "print can be seated in both shell parts"))
+    elif not at_widest(r, axis, offset_mm):
+        out.append(Problem("parting.offset_mm", "does not run through the body's widest "
+                           "section: one shell part would lock the cast in an undercut",
+                           parting_line, offset_mm,
+                           "a plane through the straight sides of the body (for a rod, its "
+                           "axis; move the voids and socket to that plane)"))
+    out.extend(layout_problems(r, plan_layout(r, axis, offset_mm), line))
+    return out
+
+
+def at_widest(r: Recipe, axis: str, offset_mm: float) -> bool:
+    """Both shells pull straight off only if the body's section at the plane is as wide
+    (across the other cross axis) as the widest section along the parting axis."""
+    w = 2 if axis == "z" else 1
+    v = 3 - w
+    prims = r.body_primitives()
+    _, widest = widest_offset(prims, v, w)
+    return width_at(prims, v, w, offset_mm) >= widest - WIDEST_SLACK_MM - WIDTH_TOL_MM
+
+
+def first_rule_broken(r: Recipe, axis: str, offset_mm: float) -> str | None:
+    """The message of the first parting rule the plane breaks, or None (for ranking
+    ``parting: auto`` candidates)."""
+    problems = parting_problems(r, axis, offset_mm, lambda _path: None)
+    return problems[0].message if problems else None
