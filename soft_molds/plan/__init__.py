@@ -10,7 +10,7 @@ from dataclasses import replace
 
 from ..errors import Problem, RecipeError
 from ..recipe.model import Recipe
-from .layout import Layout, block_band_mm, plan_layout
+from .layout import Layout, plan_layout
 from .lines import line_finder
 from .model import (
     CastingStep,
@@ -25,18 +25,15 @@ from .model import (
     PlaneScore,
     Role,
 )
+from .processes import steps_of
 from .rules import frame_problems, parting_problems
 
 __all__ = ["CastingStep", "ChosenBy", "CoreSupport", "Inlet", "Layout", "MoldPlan", "Opening",
            "OpeningKind", "PartPlan", "PartingPlane", "PlaneScore", "Role", "plan_mold",
            "plan_problems", "with_openings", "with_parting"]
 
-#: The one pour of today's process.
-ONE_SHOT_STEP = "silicone"
-#: Wall left on each side of the core key pocket (mm), toward the cavity and outside.
-KEY_LAND_MM = 1.5
-#: How far the square key stands out beyond the round print on each side (mm).
-KEY_SHOULDER_MM = 1.5
+#: The process every recipe uses until recipes can name another.
+DEFAULT_PROCESS = "one-shot"
 
 
 def plan_problems(r: Recipe) -> list[Problem]:
@@ -50,30 +47,13 @@ def plan_problems(r: Recipe) -> list[Problem]:
 
 
 def plan_mold(r: Recipe) -> MoldPlan:
-    """The plan of ``r``'s one-shot mold; RecipeError listing every broken rule. With
-    ``parting: auto`` the step's plane and layout stay open until :func:`with_parting`."""
+    """The plan of ``r``: the steps of its casting process; RecipeError listing every broken
+    rule of the mold. With ``parting: auto`` the step's plane and layout stay open until
+    :func:`with_parting`."""
     problems = plan_problems(r)
     if problems:
         raise RecipeError(problems, r.source or "recipe")
-    inlet = Inlet(r.inlet.center_mm, r.inlet.socket_diameter_mm, r.inlet.socket_depth_mm)
-    parting = None if r.parting.auto else PartingPlane(r.parting.axis,
-                                                       float(r.parting.offset_mm or 0.0))
-    layout = None if parting is None else plan_layout(r, parting.axis, parting.offset_mm)
-    step = CastingStep(ONE_SHOT_STEP, (inlet,), (core_support(r, inlet),), parting, layout)
-    return MoldPlan(r, r.params_sha256(), (step,))
-
-
-def core_support(r: Recipe, inlet: Inlet) -> CoreSupport:
-    """The core print through the block's inlet wall (x from -(wall + flange) to 0), standing
-    out ``mold.core_handle_mm`` beyond it, with its square key centred in that wall."""
-    wall_x = r.body_bounds()[0][0] - block_band_mm(r)
-    cy, cz = inlet.center_mm
-    key_len = min(6.0, -wall_x - 2 * KEY_LAND_MM)
-    x0 = wall_x / 2.0 - key_len / 2.0
-    half = inlet.socket_diameter_mm / 2.0 + KEY_SHOULDER_MM
-    key = ((x0, cy - half, cz - half), (x0 + key_len, cy + half, cz + half))
-    return CoreSupport(inlet, wall_x - r.mold.core_handle_mm, inlet.socket_depth_mm,
-                       inlet.socket_diameter_mm / 2.0, key)
+    return MoldPlan(r, r.params_sha256(), steps_of(DEFAULT_PROCESS, r))
 
 
 def with_parting(plan: MoldPlan, ranked: tuple[PlaneScore, ...]) -> MoldPlan:
