@@ -21,6 +21,9 @@ from ..recipe.model import MoldSettings, Recipe
 from . import kernel as k
 from . import labels
 
+#: A point or direction, world mm: a tuple or a numpy vector.
+Point = Sequence[float] | np.ndarray
+
 #: The cut tools for sprue and vents start this far below the lowest point of the
 #: ceiling under their mouth, so they always open fully into the cavity and leave no
 #: sliver of mold where the ceiling falls away (the overlap is cavity, already empty), mm.
@@ -58,8 +61,8 @@ class Label:
     box: tuple[tuple[float, float, float], tuple[float, float, float]]
 
 
-def _label_tool(r: Recipe, part: str, centre: Sequence[float], right: Sequence[float],
-                up: Sequence[float], room_mm: float) -> tuple[k.Shape, Label] | None:
+def _label_tool(r: Recipe, part: str, centre: Point, right: Point, up: Point,
+                room_mm: float) -> tuple[k.Shape, Label] | None:
     """The tool that cuts the recipe's label into the flat face through ``centre`` (the
     middle of the text), reading along ``right`` with capitals along ``up`` (outward
     normal right x up); ``room_mm`` is the face's height along ``up``. None when labels are
@@ -85,8 +88,8 @@ def _label_tool(r: Recipe, part: str, centre: Sequence[float], right: Sequence[f
     return tool, Label(part, text, h, (lo, hi))  # type: ignore[arg-type]
 
 
-def _cut_label(r: Recipe, shape: k.Shape, part: str, centre: Sequence[float],
-               right: Sequence[float], up: Sequence[float], room_mm: float
+def _cut_label(r: Recipe, shape: k.Shape, part: str, centre: Point, right: Point, up: Point,
+               room_mm: float
                ) -> tuple[k.Shape, Label | None]:
     made = _label_tool(r, part, centre, right, up, room_mm)
     if made is None:
