@@ -26,7 +26,7 @@ from .model import (
     Role,
 )
 from .processes import steps_of
-from .rules import frame_problems, parting_problems
+from .rules import frame_problems, parting_problems, printer_problems
 
 __all__ = ["CastingStep", "ChosenBy", "CoreSupport", "Inlet", "Layout", "MoldPlan", "Opening",
            "OpeningKind", "PartPlan", "PartingPlane", "PlaneScore", "Role", "plan_mold",
@@ -40,10 +40,17 @@ def plan_problems(r: Recipe) -> list[Problem]:
     """Every rule of the mold the recipe breaks (empty when it can be planned)."""
     line = line_finder(r.lines)
     out = frame_problems(r, line)
-    if not r.parting.auto and not out:
+    if out:
+        return out
+    if not r.parting.auto:
         assert r.parting.offset_mm is not None
-        out += parting_problems(r, r.parting.axis, r.parting.offset_mm, line)
-    return out
+        return parting_problems(r, r.parting.axis, r.parting.offset_mm, line)
+    # parting: auto is chosen after the build, but a block that fits the printer on
+    # neither cross axis is known now.
+    cy, cz = r.inlet.center_mm
+    misfits = [printer_problems(r, plan_layout(r, ax, off), line)
+               for ax, off in (("y", cy), ("z", cz))]
+    return misfits[0] if all(misfits) else []
 
 
 def plan_mold(r: Recipe) -> MoldPlan:

@@ -8,8 +8,9 @@ from __future__ import annotations
 
 from ..errors import Problem
 from ..recipe.model import Recipe
-from .layout import layout_problems, plan_layout
+from .layout import Layout, layout_problems, plan_layout
 from .lines import LineOf
+from .printer_fit import box_fits
 from .sections import WIDTH_TOL_MM, widest_offset, width_at
 
 #: Coordinates closer than this are the same (mm): float noise of recipe arithmetic.
@@ -46,8 +47,36 @@ def parting_problems(r: Recipe, axis: str, offset_mm: float, line: LineOf) -> li
                            parting_line, offset_mm,
                            "a plane through the straight sides of the body (for a rod, its "
                            "axis; move the voids and socket to that plane)"))
-    out.extend(layout_problems(r, plan_layout(r, axis, offset_mm), line))
+    lay = plan_layout(r, axis, offset_mm)
+    out.extend(layout_problems(r, lay, line))
+    out.extend(printer_problems(r, lay, line))
     return out
+
+
+def shell_sizes(lay: Layout) -> dict[str, tuple[float, float, float]]:
+    """Block size (x, y, z extents, mm) of each shell part, without keys or funnel."""
+    w = lay.frame.w_axis
+    out = {}
+    for name, (a, b) in (("shell-lower", (lay.block_lo[w], lay.parting_w)),
+                         ("shell-upper", (lay.parting_w, lay.block_hi[w]))):
+        size = [hi - lo for lo, hi in zip(lay.block_lo, lay.block_hi)]
+        size[w] = b - a
+        out[name] = (size[0], size[1], size[2])
+    return out
+
+
+def printer_problems(r: Recipe, lay: Layout, line: LineOf) -> list[Problem]:
+    """A shell that cannot lie on the printer in any orientation: refused before building."""
+    pr = r.printer
+    for name, size in shell_sizes(lay).items():
+        if not box_fits(size, pr.bed_mm, pr.height_mm):
+            dims = " x ".join(f"{d:g}" for d in size)
+            return [Problem("printer.bed_mm", f"is too small for the {name} ({dims} mm, "
+                            f"on any face and turned as needed, under {pr.height_mm:g} mm)",
+                            line("printer.bed_mm"), list(pr.bed_mm),
+                            "a bed and height that hold the mold block (or a smaller body, "
+                            "mold.wall_mm or mold.flange_mm)")]
+    return []
 
 
 def at_widest(r: Recipe, axis: str, offset_mm: float) -> bool:
