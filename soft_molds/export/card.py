@@ -13,7 +13,9 @@ import html
 from collections.abc import Sequence
 from typing import Any
 
+from ..analysis.findings import Severity, Verdict
 from ..units import kpa_to_psi
+from .manifest import CastingRecord, Manifest
 
 CAUTIONS = (
     "Platinum-cure silicone fails to cure (stays tacky) where it touches sulfur or "
@@ -57,126 +59,145 @@ def _fmt(x: float, nd: int = 1) -> str:
     return f"{x:.{nd}f}"
 
 
-def card_blocks(family: Sequence[dict[str, Any]], title: str) -> list[Block]:
-    """The card's content for ``family``: the manifests (``MoldSet.manifest()``, or read
-    back from ``manifest.json``) of its variants, in label order."""
-    first = family[0]["casting"]
+def verdict_word(v: Verdict) -> str:
+    """The verdict as a card or sheet says it: "ok", "warnings" or "errors"."""
+    return {Verdict.OK: "ok", Verdict.WARNING: "warnings", Verdict.ERROR: "errors"}[v]
+
+
+def card_blocks(family: Sequence[Manifest], title: str) -> list[Block]:
+    """The card's content for ``family``: the manifests of its variants (built in memory or
+    read back with :func:`~soft_molds.export.manifest.read_manifest`), in label order.
+    Variants without a casting plan are left out; ValueError when none has one."""
+    cast = [(man, man.casting) for man in family if man.casting is not None]
+    if not cast:
+        raise ValueError(f"no casting plan in the manifests of {title!r}")
     blocks: list[Block] = [("h1", f"Casting card: {title}")]
-    # One line per distinct silicone: a sweep may vary the grade or blend it.
-    seen: dict[str, list[str]] = {}
-    for man in family:
-        seen.setdefault(_silicone_line(man["casting"]), []).append(man["label"])
-    for line, labels in seen.items():
-        who = "" if len(seen) == 1 else f" ({', '.join(labels)})"
-        blocks.append(("p", f"Silicone{who}: {line}"))
-    for man in family:
-        c = man["casting"]
-        if c["note"] and (len(seen) == 1 and man is family[0] or len(seen) > 1):
-            blocks.append(("p", f"Note{'' if len(seen) == 1 else ' ' + man['label']}: "
-                           f"{c['note']}."))
-    for man in family:
-        b = man["casting"]["blend"]
-        if b is None:
-            continue
-        phi, w = b["volume_fraction_first"], b["weight_fraction_first"]
-        who = "" if len(family) == 1 else f" ({man['label']})"
-        blocks.append(("p", f"Blend{who}: {phi * 100:.0f} % {b['first']} and "
-                       f"{(1 - phi) * 100:.0f} % {b['with']} by volume ({w * 100:.0f} % / "
-                       f"{(1 - w) * 100:.0f} % by "
-                       f"weight) for about Shore A{b['target_shore_a']:g}: interpolated in "
-                       "modulus by Gent's relation, an approximation. Mix each grade's A and "
-                       "B as listed, then combine."))
-
-    # Columns by component name (the union over the family), so variants of different
-    # grades or blends each fill their own columns.
-    names: list[str] = []
-    for man in family:
-        for p in man["casting"]["portions"]:
-            if p["what"] not in names:
-                names.append(p["what"])
-    head = ["variant", "cast cm3", "sprue+vents cm3", "mixed cm3", "mixed g",
-            *[f"{n} g" for n in names], "checks"]
-    rows = []
-    totals = [0.0] * len(names)
-    for man in family:
-        c = man["casting"]
-        by = {p["what"]: p["g"] for p in c["portions"]}
-        grams = [by.get(n) for n in names]
-        totals = [t + (x or 0.0) for t, x in zip(totals, grams)]
-        rows.append([man["label"], _fmt(c["cast_volume_mm3"] / 1000, 2),
-                     _fmt(c["fill_volume_mm3"] / 1000, 2), _fmt(c["mixed_volume_mm3"] / 1000, 2),
-                     _fmt(c["mixed_mass_g"], 1), *["" if x is None else f"{x:g}" for x in grams],
-                     {"ok": "ok", "warning": "warnings", "error": "errors"}[man["verdict"]]])
-    if len(family) > 1:
-        rows.append(["all", "", "", "", "", *[f"{round(t, 6):g}" for t in totals], ""])
-    blocks.append(("h2", "Weigh out"))
-    blocks.append(("p", f"Includes {first['waste_pct']:g} % for waste; weights are rounded up "
-                   "to the scale's resolution. Mix each variant separately unless you can "
-                   "pour them all within the pot life."))
-    blocks.append(("table", head, rows))
-
+    blocks += _silicone_blocks(cast)
+    blocks += _weigh_out_blocks(cast)
     blocks.append(("h2", "Steps"))
     blocks.append(("ol", list(STEPS)))
-
-    blocks.append(("h2", "Wall pressure (estimate)"))
-    prow = []
-    for man in family:
-        pr = man["pressure"]
-        work = pr["working_pressure_kpa"]
-        for w in pr["walls"]:
-            lim = "no peak" if w["limit_kpa"] is None else f"{w['limit_kpa']:.0f}"
-            m = w["margin"]
-            prow.append([man["label"], w["group"], _fmt(w["thickness_mm"], 2),
-                         f"{w['span_mm']:g}", lim,
-                         "-" if work is None else f"{work:.0f} ({kpa_to_psi(work):.1f} psi)",
-                         "-" if m is None else f"{m:.2f}" + (" balloons" if m < 1 else ""),
-                         "rough" if w["thick_wall"] else ""])
-    if prow:
-        blocks.append(("p", "Neo-Hookean membrane estimate from Gent's modulus (limit "
-                       "pressure, after which a wall balloons); thick walls are rough; a tube "
-                       "held at constant length has no limit point. For choosing sweep "
-                       "ranges, not a rating: test every part behind a relief valve."))
-        blocks.append(("table", ["variant", "wall", "thickness mm", "span mm", "limit kPa",
-                                 "working kPa", "margin", ""], prow))
-    else:
-        blocks.append(("p", "No estimate: the silicone's modulus is unknown (Shore 00 grade "
-                       "without a measured modulus)."))
-
-    blocks.append(("h2", "Checks"))
-    items = []
-    for man in family:
-        bad = [f for f in man["checks"] if f["severity"] in ("error", "warning")]
-        if not bad:
-            items.append(f"{man['label']}: no errors or warnings.")
-        for f in bad:
-            items.append(f"{man['label']}: {f['severity']} {f['check']} ({f['part']}): "
-                         f"{f['message']}")
-    blocks.append(("ul", items))
-
-    blocks.append(("h2", "Printing (estimate; the slicer's figure wins)"))
-    prows = []
-    for man in family:
-        for pe in man["casting"]["prints"]:
-            prows.append([man["label"], pe["part"], _fmt(pe["volume_mm3"] / 1000, 1),
-                          f"{pe['infill_pct']:g} %", _fmt(pe["mass_g_estimate"], 0)])
-    blocks.append(("table", ["variant", "part", "volume cm3", "infill", "filament g"], prows))
-
+    blocks += _pressure_blocks([man for man, _ in cast])
+    blocks += _check_blocks([man for man, _ in cast])
+    blocks += _print_blocks(cast)
     blocks.append(("h2", "Cautions"))
     blocks.append(("ul", list(CAUTIONS)))
     return blocks
 
 
-def _silicone_line(c: dict[str, Any]) -> str:
-    hard = (f"Shore {c['scale']}{c['hardness']:g}" if c["scale"] == "A"
-            else f"Shore {c['scale']}-{c['hardness']:g}")
-    ratio = c["mix_ratio"]
-    return (f"{c['grade']}, {c['cure']}-cure, {hard}, density {c['density_g_cm3']:g} g/cm3, "
-            f"mix {ratio[0]:g}A : {ratio[1]:g}B by {c['mix_by']}; pot life about "
-            f"{c['pot_life_min']:g} min, demold after about {c['demold_h']:g} h at room "
+def _silicone_blocks(cast: Sequence[tuple[Manifest, CastingRecord]]) -> list[Block]:
+    blocks: list[Block] = []
+    # One line per distinct silicone: a sweep may vary the grade or blend it.
+    seen: dict[str, list[str]] = {}
+    for man, c in cast:
+        seen.setdefault(_silicone_line(c), []).append(man.label)
+    for line, labels in seen.items():
+        who = "" if len(seen) == 1 else f" ({', '.join(labels)})"
+        blocks.append(("p", f"Silicone{who}: {line}"))
+    for man, c in cast:
+        if c.note and (len(seen) == 1 and man is cast[0][0] or len(seen) > 1):
+            blocks.append(("p", f"Note{'' if len(seen) == 1 else ' ' + man.label}: "
+                           f"{c.note}."))
+    for man, c in cast:
+        b = c.blend
+        if b is None:
+            continue
+        phi, w = b.volume_fraction_first, b.weight_fraction_first
+        who = "" if len(cast) == 1 else f" ({man.label})"
+        blocks.append(("p", f"Blend{who}: {phi * 100:.0f} % {b.first} and "
+                       f"{(1 - phi) * 100:.0f} % {b.second} by volume ({w * 100:.0f} % / "
+                       f"{(1 - w) * 100:.0f} % by "
+                       f"weight) for about Shore A{b.target_shore_a:g}: interpolated in "
+                       "modulus by Gent's relation, an approximation. Mix each grade's A and "
+                       "B as listed, then combine."))
+    return blocks
+
+
+def _weigh_out_blocks(cast: Sequence[tuple[Manifest, CastingRecord]]) -> list[Block]:
+    # Columns by component name (the union over the family), so variants of different
+    # grades or blends each fill their own columns.
+    names: list[str] = []
+    for _, c in cast:
+        for p in c.portions:
+            if p.what not in names:
+                names.append(p.what)
+    head = ["variant", "cast cm3", "sprue+vents cm3", "mixed cm3", "mixed g",
+            *[f"{n} g" for n in names], "checks"]
+    rows = []
+    totals = [0.0] * len(names)
+    for man, c in cast:
+        by = {p.what: p.g for p in c.portions}
+        grams = [by.get(n) for n in names]
+        totals = [t + (x or 0.0) for t, x in zip(totals, grams)]
+        rows.append([man.label, _fmt(c.cast_volume_mm3 / 1000, 2),
+                     _fmt(c.fill_volume_mm3 / 1000, 2), _fmt(c.mixed_volume_mm3 / 1000, 2),
+                     _fmt(c.mixed_mass_g, 1), *["" if x is None else f"{x:g}" for x in grams],
+                     verdict_word(man.verdict)])
+    if len(cast) > 1:
+        rows.append(["all", "", "", "", "", *[f"{round(t, 6):g}" for t in totals], ""])
+    return [("h2", "Weigh out"),
+            ("p", f"Includes {cast[0][1].waste_pct:g} % for waste; weights are rounded up "
+             "to the scale's resolution. Mix each variant separately unless you can "
+             "pour them all within the pot life."),
+            ("table", head, rows)]
+
+
+def _pressure_blocks(family: Sequence[Manifest]) -> list[Block]:
+    prow = []
+    for man in family:
+        work = man.pressure.working_pressure_kpa
+        for w in man.pressure.walls:
+            lim = "no peak" if w.limit_kpa is None else f"{w.limit_kpa:.0f}"
+            m = w.margin
+            prow.append([man.label, w.group, _fmt(w.thickness_mm, 2), f"{w.span_mm:g}", lim,
+                         "-" if work is None else f"{work:.0f} ({kpa_to_psi(work):.1f} psi)",
+                         "-" if m is None else f"{m:.2f}" + (" balloons" if m < 1 else ""),
+                         "rough" if w.thick_wall else ""])
+    blocks: list[Block] = [("h2", "Wall pressure (estimate)")]
+    if not prow:
+        blocks.append(("p", "No estimate: the silicone's modulus is unknown (Shore 00 grade "
+                       "without a measured modulus)."))
+        return blocks
+    blocks.append(("p", "Neo-Hookean membrane estimate from Gent's modulus (limit "
+                   "pressure, after which a wall balloons); thick walls are rough; a tube "
+                   "held at constant length has no limit point. For choosing sweep "
+                   "ranges, not a rating: test every part behind a relief valve."))
+    blocks.append(("table", ["variant", "wall", "thickness mm", "span mm", "limit kPa",
+                             "working kPa", "margin", ""], prow))
+    return blocks
+
+
+def _check_blocks(family: Sequence[Manifest]) -> list[Block]:
+    items = []
+    for man in family:
+        bad = [f for f in man.checks if f.severity in (Severity.ERROR, Severity.WARNING)]
+        if not bad:
+            items.append(f"{man.label}: no errors or warnings.")
+        for f in bad:
+            items.append(f"{man.label}: {f.severity} {f.check} ({f.part}): {f.message}")
+    return [("h2", "Checks"), ("ul", items)]
+
+
+def _print_blocks(cast: Sequence[tuple[Manifest, CastingRecord]]) -> list[Block]:
+    prows = []
+    for man, c in cast:
+        for pe in c.prints:
+            prows.append([man.label, pe.part, _fmt(pe.volume_mm3 / 1000, 1),
+                          f"{pe.infill_pct:g} %", _fmt(pe.mass_g_estimate, 0)])
+    return [("h2", "Printing (estimate; the slicer's figure wins)"),
+            ("table", ["variant", "part", "volume cm3", "infill", "filament g"], prows)]
+
+
+def _silicone_line(c: CastingRecord) -> str:
+    hard = (f"Shore {c.scale}{c.hardness:g}" if c.scale == "A"
+            else f"Shore {c.scale}-{c.hardness:g}")
+    ratio = c.mix_ratio
+    return (f"{c.grade}, {c.cure}-cure, {hard}, density {c.density_g_cm3:g} g/cm3, "
+            f"mix {ratio[0]:g}A : {ratio[1]:g}B by {c.mix_by}; pot life about "
+            f"{c.pot_life_min:g} min, demold after about {c.demold_h:g} h at room "
             "temperature (typical values, from memory; your data sheet wins).")
 
 
-def card_files(family: Sequence[dict[str, Any]], title: str,
+def card_files(family: Sequence[Manifest], title: str,
                stem: str = "casting-card") -> dict[str, bytes]:
     """``{stem}.md`` and ``{stem}.html`` for ``family`` (manifests, in label order)."""
     blocks = card_blocks(family, title)

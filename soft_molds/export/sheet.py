@@ -21,8 +21,9 @@ from __future__ import annotations
 
 import io
 import math
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass
+from pathlib import Path
 
 import matplotlib as mpl
 import matplotlib.style
@@ -33,6 +34,12 @@ from matplotlib.collections import LineCollection
 from matplotlib.figure import Figure
 from matplotlib.font_manager import FontProperties
 from matplotlib.lines import Line2D
+from matplotlib.typing import RcKeyType
+
+from ..analysis.section import section_segments
+from .card import verdict_word
+from .manifest import Manifest
+from .stl import read_binary_stl
 
 MAX_VARIANTS = 5
 DPI = 150
@@ -51,7 +58,7 @@ VERDICT_STYLE = {
 }
 
 FONT = "DejaVu Sans"  # bundled with matplotlib, so no system font is needed
-_RC = {
+_RC: dict[RcKeyType, object] = {
     "font.family": "sans-serif",
     "font.sans-serif": [FONT],
     "svg.fonttype": "none",      # keep text as <text>: searchable, small
@@ -104,6 +111,51 @@ class SheetData:
     title: str
     subtitle: str
     variants: tuple[SheetVariant, ...]
+
+
+Pair = tuple[str, str]
+
+
+def manifest_row(man: Manifest, folder: Path, changed: tuple[Pair, ...] = ()) -> SheetVariant:
+    """The row of a built variant: label, verdict and key figures from its manifest, and a
+    section through the cast part it wrote into ``folder``, cut across the in-plane cross
+    axis (y when z is up, else z) through the centre of the tube socket."""
+    cross = "y" if man.pour.up[2] else "z"
+    cy, cz = man.inlet_center_mm
+    cast = next((p for p in man.parts if p.role == "cast"), None)
+    if cast is None:
+        seg, axes = np.empty((0, 2, 2)), ("x", "z")
+    else:
+        seg, axes = section_segments(read_binary_stl(folder / cast.file), cross,
+                                     cy if cross == "y" else cz)
+    return SheetVariant(man.label, changed, manifest_figures(man), verdict_word(man.verdict),
+                        seg, axes)
+
+
+def manifest_figures(man: Manifest) -> tuple[Pair, ...]:
+    """The key figures of a variant as (name, value with unit): silicone volume, the mix
+    to weigh, the thinnest silicone wall and the lowest pressure at which a wall balloons
+    (an estimate)."""
+    figs = [("silicone", f"{man.silicone_volume_mm3 / 1000:.2f} cm3")]
+    if man.casting is not None:
+        figs.append(("mix", " + ".join(f"{p.g:g} g {p.what.split()[-1]}"
+                                       for p in man.casting.portions)))
+    walls = [f.value for f in man.checks if f.check == "silicone-wall" and f.value is not None]
+    if walls:
+        figs.append(("thinnest wall", f"{min(walls):.2f} mm"))
+    lims = [w.limit_kpa for w in man.pressure.walls if w.limit_kpa is not None]
+    if lims:
+        figs.append(("balloons at", f"about {min(lims):.0f} kPa"))
+    return tuple(figs)
+
+
+def unbuilt_row(label: str, changed: tuple[Pair, ...], status: str,
+                reason: str) -> SheetVariant:
+    """The row of a variant with no files: ``status`` "failed" (the build broke) or another
+    word (e.g. "refused": a check failed), with the first 80 characters of ``reason``."""
+    return SheetVariant(label, changed, (("status", status), ("reason", reason[:80])),
+                        "failed" if status == "failed" else "errors", np.empty((0, 2, 2)),
+                        ("x", "z"))
 
 
 @dataclass(frozen=True)
@@ -299,7 +351,10 @@ def _fit_pair(head: str, tail: str, width_in: float, size: float, renderer) -> s
     return elided(lo)
 
 
-def _draw_label(fig: Figure, at, v: SheetVariant, top: float, renderer) -> None:
+PagePoint = Callable[[float, float], tuple[float, float]]  # page inches -> figure fraction
+
+
+def _draw_label(fig: Figure, at: PagePoint, v: SheetVariant, top: float, renderer) -> None:
     x, w = _COL_LABEL
     # Shrink long labels to the column rather than cut them: the label is the row's name.
     size = 26.0
@@ -317,7 +372,8 @@ def _draw_label(fig: Figure, at, v: SheetVariant, top: float, renderer) -> None:
                    "linewidth": 0.8})
 
 
-def _draw_text(fig: Figure, at, v: SheetVariant, top: float, row_h: float, renderer) -> None:
+def _draw_text(fig: Figure, at: PagePoint, v: SheetVariant, top: float, row_h: float,
+               renderer) -> None:
     x, w = _COL_TEXT
     capacity = int((row_h - 2 * _ROW_PAD) / _LINE_IN)
     changed = [(p, f" = {val}") for p, val in v.changed] or [("nothing (reference)", "")]

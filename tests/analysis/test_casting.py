@@ -49,7 +49,7 @@ def test_waste_allowance_scales_the_mix():
 
 
 def test_quantities_of_a_bundled_recipe_are_its_volumes_times_density_plus_waste(finger):
-    man = finger.manifest()
+    man = finger.manifest().to_json()
     cast = man["silicone_volume_mm3"]
     c = man["casting"]
     assert c["cast_volume_mm3"] == pytest.approx(cast)
@@ -89,7 +89,7 @@ def test_finger_top_wall_limit_pressure_is_the_thick_sphere_of_its_numbers(finge
     # The finger's chambers (5 mm deep along x, 8 mm high, centre 1 mm up) leave a top wall
     # of 7 - (1 + 4) = 2 mm (closed form); the wall bulges over half its 5 mm span, R = 2.5.
     # Shore A10 -> E by Gent (1958), mu = E / 3 (Treloar): thick sphere 2.5 -> 4.5 mm.
-    walls = {w["group"]: w for w in finger.manifest()["pressure"]["walls"]}
+    walls = {w["group"]: w for w in finger.manifest().to_json()["pressure"]["walls"]}
     top = walls["top wall"]
     assert top["thickness_mm"] == pytest.approx(2.0, abs=1e-6)
     assert top["span_mm"] == pytest.approx(5.0)

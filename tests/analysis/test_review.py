@@ -4,7 +4,6 @@ closed-form geometry or hand arithmetic, named beside each check."""
 
 from __future__ import annotations
 
-import json
 import math
 
 import pytest
@@ -37,7 +36,7 @@ def test_every_bundled_recipe_passes_with_no_error_finding(bundled, name):
 
 
 def test_manifest_findings_carry_check_severity_part_value_limit_place_message(finger):
-    man = json.loads(json.dumps(finger.manifest()))
+    man = finger.manifest().to_json()
     assert man["verdict"] == ("warning" if finger.warnings else "ok")
     assert len(man["checks"]) == len(finger.findings) >= 8
     for f in man["checks"]:
@@ -100,7 +99,7 @@ def test_outer_silicone_wall_matches_the_recipe_numbers(bundled):
 
 
 def test_auto_parting_picks_an_undercut_free_plane_and_rejects_planes_off_the_socket(twister):
-    man = twister.manifest()
+    man = twister.manifest().to_json()
     cands = man["parting"]["candidates"]
     assert man["parting"]["chosen_by"] == "analysis"
     best = cands[0]
@@ -139,6 +138,6 @@ def test_the_manifest_keeps_the_hash_of_the_recipe_as_given_for_resuming(twister
     from soft_molds import load_recipe
 
     given = load_recipe("recipes/wrist-twister.yaml")
-    man = twister.manifest()
+    man = twister.manifest().to_json()
     assert man["source_params_sha256"] == given.params_sha256()
     assert man["params_sha256"] == twister.recipe.params_sha256() != given.params_sha256()

@@ -35,9 +35,10 @@ load = time.perf_counter() - t
 t = time.perf_counter()
 m = build(r)
 b = time.perf_counter() - t
+from soft_molds.export import write_mold_set
 with tempfile.TemporaryDirectory() as d:
-    m.export(d)
-out = dict(m.timings_s, load=load, import_kernel=imp, build_total=b,
+    write = write_mold_set(m, d).write_s
+out = dict(m.timings_s, write=write, load=load, import_kernel=imp, build_total=b,
            peak_rss_mb=resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0,
            triangles=sum(p.mesh.triangle_count for p in m.parts))
 print(json.dumps(out))

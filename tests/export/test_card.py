@@ -3,6 +3,13 @@
 from __future__ import annotations
 
 import re
+from dataclasses import replace
+
+import pytest
+
+from soft_molds.export.card import card_blocks, card_files
+from soft_molds.export.manifest import read_manifest
+from soft_molds.export.writer import write_mold_set
 
 
 def test_card_markdown_and_html_say_the_same_numbers(finger):
@@ -41,16 +48,11 @@ def test_card_lists_steps_pot_life_and_the_cautions(finger):
 
 
 def test_a_family_of_different_grades_gets_a_column_per_component(finger):
-    import copy
-
-    from soft_molds.export.card import card_blocks
-
     a = finger.manifest()
-    b = copy.deepcopy(a)
-    b["label"] = "B"
-    b["casting"]["grade"] = "A30"
-    b["casting"]["portions"] = [{**p, "what": p["what"].replace("A10", "A30")}
-                                for p in b["casting"]["portions"]]
+    c = a.casting
+    b = replace(a, label="B", casting=replace(
+        c, grade="A30", portions=tuple(replace(p, what=p.what.replace("A10", "A30"))
+                                       for p in c.portions)))
     blocks = card_blocks([a, b], "mixed")
     (table,) = [blk for blk in blocks if blk[0] == "table" and blk[1][0] == "variant"
                 and "checks" in blk[1]]
@@ -60,3 +62,17 @@ def test_a_family_of_different_grades_gets_a_column_per_component(finger):
     assert all(len(r) == len(head) for r in rows)
     assert rows[0][7] == "" and rows[1][5] == ""  # each variant fills its own columns
     assert sum(blk[0] == "p" and blk[1].startswith("Silicone (") for blk in blocks) == 2
+
+
+def test_a_card_from_the_manifest_read_back_is_the_card_the_build_wrote(finger, tmp_path):
+    # The card reads only the typed manifest, so memory and disk give the same bytes.
+    written = write_mold_set(finger, tmp_path)
+    back = read_manifest(written.directory)
+    names = ("casting-card.md", "casting-card.html")
+    assert card_files([back], "seedling-finger A") == {
+        n: (written.directory / n).read_bytes() for n in names}
+
+
+def test_a_family_without_any_casting_plan_has_no_card(finger):
+    with pytest.raises(ValueError, match="no casting plan"):
+        card_blocks([replace(finger.manifest(), casting=None)], "none")

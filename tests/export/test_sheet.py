@@ -230,3 +230,42 @@ def test_a_long_parameter_path_gives_way_before_its_value():
         _variant("A", changed=((path, "7.25"),)),)))[1])
     line = next(t for t in texts if t.startswith("voids[0]."))
     assert line.endswith("height_mm = 7.25") and "\u2026" in line and len(line) < len(path)
+
+
+def test_a_row_from_a_written_variant_reads_its_manifest_and_cuts_its_cast(finger,
+                                                                         tmp_path):
+    from soft_molds.analysis.findings import verdict
+    from soft_molds.export.card import verdict_word
+    from soft_molds.export.manifest import read_manifest
+    from soft_molds.export.sheet import manifest_row
+    from soft_molds.export.writer import write_mold_set
+
+    folder = write_mold_set(finger, tmp_path).directory
+    row = manifest_row(read_manifest(folder), folder, (("voids[0].count", "7"),))
+    assert (row.label, row.changed) == ("A", (("voids[0].count", "7"),))
+    assert row.verdict == verdict_word(verdict(finger.findings))
+    figs = dict(row.figures)
+    assert figs["silicone"] == f"{finger.silicone_volume_mm3 / 1000:.2f} cm3"
+    assert figs["mix"] == " + ".join(f"{p.grams:g} g {p.what[-1]}"
+                                     for p in finger.casting.quantities.portions)
+    # chambers 8 mm high centred 1 mm above the middle of the 14 mm bar: the top wall is
+    # 7 - (1 + 4) = 2 mm, the thinnest (closed form)
+    assert figs["thinnest wall"] == "2.00 mm"
+    # z is up, so the cut is across y through the socket centre (y = 0): the outline of
+    # the 70 mm x 14 mm bar from x = 0 (closed form from the recipe)
+    assert row.section_axes == ("x", "z")
+    s = row.section
+    assert s.shape[1:] == (2, 2) and len(s) > 100
+    assert s[:, :, 0].min() == pytest.approx(0.0, abs=1e-6)
+    assert s[:, :, 0].max() == pytest.approx(70.0, abs=1e-6)
+    assert (s[:, :, 1].min(), s[:, :, 1].max()) == pytest.approx((-7.0, 7.0), abs=1e-6)
+
+
+def test_a_variant_without_files_gets_a_row_saying_why():
+    from soft_molds.export.sheet import unbuilt_row
+
+    failed = unbuilt_row("B", (), "failed", "kernel: " + "x" * 200)
+    refused = unbuilt_row("C", (), "refused", "trapped-air: a bubble")
+    assert (failed.verdict, refused.verdict) == ("failed", "errors")
+    assert dict(failed.figures)["reason"] == ("kernel: " + "x" * 200)[:80]
+    assert failed.section.size == 0

@@ -43,7 +43,7 @@ def _tool_inside_volume(lab, depth: float) -> float:
 
 def test_each_part_carries_the_tag_and_variant_label(pair):
     on, _ = pair
-    man = on.manifest()
+    man = on.manifest().to_json()
     assert [(x["part"], x["text"]) for x in man["labels"]] == [
         ("shell-lower", "FT A"), ("shell-upper", "FT A"), ("core", "FT A")]
     assert all(x["height_mm"] >= 5.0 and x["depth_mm"] >= 0.6 for x in man["labels"])

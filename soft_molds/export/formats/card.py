@@ -1,0 +1,19 @@
+"""The casting card of one variant, in Markdown and HTML (see :mod:`soft_molds.export.card`)."""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+from ..card import card_files
+from . import output_format
+
+if TYPE_CHECKING:
+    from ...moldset import MoldSet
+    from ..manifest import Manifest
+
+
+@output_format("casting-card", "what to weigh, the steps of a cast and the cautions")
+def casting_card_files(molds: MoldSet, manifest: Manifest) -> dict[str, bytes]:
+    if manifest.casting is None:
+        return {}
+    return card_files([manifest], f"{manifest.recipe} {manifest.label}")
