@@ -19,17 +19,15 @@ from .analysis.integrity import MeshReport
 from .export.manifest import Manifest, manifest_of
 from .export.writer import encode_mold_set, output_dir, write_mold_set
 from .meshdata import TriMesh
-from .plan.model import MoldPlan
 from .recipe.model import Recipe
 
 if TYPE_CHECKING:
     from .analysis.casting import CastingPlan
-    from .analysis.demold import PlaneScore
-    from .analysis.highpoints import Opening
     from .analysis.pressure import WallPressure
     from .analysis.review import Review
     from .geometry.mold import Label
-    from .recipe.layout import Layout
+    from .plan.layout import Layout
+    from .plan.model import MoldPlan, Opening, PlaneScore
 
 
 @dataclass(frozen=True, eq=False)
@@ -62,23 +60,43 @@ class MoldSet:
     """Everything built from one recipe; :meth:`export` writes it (through
     :mod:`soft_molds.export`). Nothing here changes after the build.
 
-    ``volumes_mm3``: exact volumes of body, void_set, core, cast, and fill (the sprue,
-    funnel and vents above the cavity). ``timings_s``: seconds per build stage.
+    ``plan``: the completed plan the parts were built to (its recipe carries the chosen
+    parting plane). ``volumes_mm3``: exact volumes of body, void_set, core, cast, and fill
+    (the sprue, funnel and vents above the cavity). ``timings_s``: seconds per build stage.
     """
 
-    recipe: Recipe
+    plan: MoldPlan
     parts: tuple[Part, ...]
-    openings: tuple[Opening, ...]
-    layout: Layout
     volumes_mm3: Mapping[str, float]
     funnel_diameter_mm: float | None
     timings_s: Mapping[str, float] = field(default_factory=dict)
     review: Review | None = None   # every manufacturability finding
-    parting_candidates: tuple[PlaneScore, ...] = ()  # per plane tried (parting: auto)
     casting: CastingPlan | None = None  # what to weigh and print
     labels: tuple[Label, ...] = ()  # per printed part that carries one
-    source_params_sha256: str = ""  # hash of the recipe as given (before parting: auto)
-    plan: MoldPlan | None = None   # the plan the parts were built to
+
+    @property
+    def recipe(self) -> Recipe:
+        """The recipe built, with the chosen parting plane filled in."""
+        return self.plan.recipe
+
+    @property
+    def layout(self) -> Layout:
+        return self.plan.step.settled_layout
+
+    @property
+    def openings(self) -> tuple[Opening, ...]:
+        """Sprue first, then the vents, as located on the cast and cut."""
+        return self.plan.step.openings
+
+    @property
+    def parting_candidates(self) -> tuple[PlaneScore, ...]:
+        """Every plane tried for ``parting: auto``, best first (empty otherwise)."""
+        return self.plan.step.candidates
+
+    @property
+    def source_params_sha256(self) -> str:
+        """Hash of the recipe as given (before ``parting: auto`` was filled in)."""
+        return self.plan.source_params_sha256
 
     @property
     def pressures(self) -> tuple[WallPressure, ...]:
@@ -114,8 +132,7 @@ class MoldSet:
     @property
     def pour_up(self) -> tuple[float, float, float]:
         """Unit vector pointing up in pour orientation (world frame): the parting axis."""
-        x, y, z = pour_up(self.recipe)
-        return (x, y, z)
+        return self.plan.step.settled_parting.up
 
     def output_dir(self, root: str | os.PathLike[str]) -> Path:
         return output_dir(root, self.recipe.name, self.recipe.label)
@@ -136,8 +153,3 @@ class MoldSet:
         not at all. Returns the paths written; changes nothing in this value (the time
         taken is in :func:`soft_molds.export.write_mold_set`'s result)."""
         return list(write_mold_set(self, root).paths)
-
-
-def pour_up(r: Recipe) -> list[float]:
-    """Unit vector pointing up in pour orientation: the parting axis (world frame)."""
-    return [0.0, 0.0, 1.0] if r.parting.axis == "z" else [0.0, 1.0, 0.0]

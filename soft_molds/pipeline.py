@@ -115,9 +115,8 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
         casting = plan_casting(recipe, volumes["cast"], volumes["fill"],
                                [(p.name, p.mesh, p.brep_volume_mm3) for p in parts
                                 if p.role != "cast"])
-    return MoldSet(recipe, tuple(parts), step.openings, layout, volumes,
-                   shells.funnel_diameter_mm, timings, rev, step.candidates, casting, labels,
-                   plan.source_params_sha256, plan)
+    return MoldSet(plan, tuple(parts), volumes, shells.funnel_diameter_mm, timings, rev,
+                   casting, labels)
 
 
 def k_volume(shape: object) -> float:
