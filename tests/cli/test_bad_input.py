@@ -73,7 +73,7 @@ def _case(name: str, text: str | bytes | None, *expect: Expect) -> Case:
     return Case(name, text, tuple(expect))
 
 
-NUMBER = "a number, 0 < value <= 1000 mm"
+NUMBER = "a number, 0.05 <= value <= 1000 mm"
 
 _syntax = edit(BASE, "  length_mm: 70", "  length_mm: 70: 5")
 _dup = edit(BASE, "  width_mm: 16", "  width_mm: 16\n  width_mm: 17")
