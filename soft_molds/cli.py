@@ -2,7 +2,8 @@
 
 Exit status: 0 success; 1 a mold could not be built, a mesh failed its integrity check or
 a manufacturability check failed (``check --strict``: or warned); 2 bad input (recipe
-problems, one line each, no traceback, nothing written).
+problems, one line each, no traceback, nothing written; also a folder holding no recipe
+and, for ``build``, an output folder that cannot be written, found before any building).
 """
 
 from __future__ import annotations
@@ -11,7 +12,7 @@ import argparse
 import os
 import sys
 import time
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 
 from .errors import RecipeError, SoftMoldsError
 from .version import __version__
@@ -101,15 +102,46 @@ def _expand(paths: Sequence[str]) -> list[str]:
     return out
 
 
+def _empty_folders(paths: Sequence[str]) -> list[str]:
+    """One error line for each named folder that holds no recipe (``*.yaml``)."""
+    from pathlib import Path
+
+    return [f"{p}: folder holds no recipe file (*.yaml)" for p in paths
+            if Path(p).is_dir() and not any(Path(p).glob("*.yaml"))]
+
+
+#: A recipe family bigger than this reports its validation progress on stderr (at about
+#: 0.1-0.2 s a variant, 200 variants take half a minute before the first build).
+PROGRESS_ABOVE = 200
+
+
+def _validation_progress(path: str) -> Callable[[int, int], None]:
+    """A ``progress(done, total)`` callback that prints, for a family of more than
+    ``PROGRESS_ABOVE`` variants, a first line and one line per tenth validated."""
+    def report(done: int, total: int) -> None:
+        if total <= PROGRESS_ABOVE:
+            return
+        if done == 1:
+            print(f"{path}: validating {total} variants", file=sys.stderr, flush=True)
+        if done * 10 // total > (done - 1) * 10 // total:
+            print(f"{path}: validated {done} of {total} variants "
+                  f"({100 * done // total} %)", file=sys.stderr, flush=True)
+    return report
+
+
 def _load(paths: Sequence[str], label: str | None = None, folders: bool = True):
     """(variants of every file as (spec, recipe), bad input?); problems printed. With
-    ``folders`` a folder stands for its recipe files."""
+    ``folders`` a folder stands for its recipe files (a folder without one is bad input)."""
     from .recipe import load_variants
 
     found, bad = [], False
+    if folders:
+        for line in _empty_folders(paths):
+            bad = True
+            print(f"error: {line}", file=sys.stderr)
     for path in (_expand(paths) if folders else paths):
         try:
-            vs = load_variants(path)
+            vs = load_variants(path, progress=_validation_progress(path))
         except RecipeError as exc:
             bad = True
             for line in exc.lines():
@@ -129,6 +161,16 @@ def _load(paths: Sequence[str], label: str | None = None, folders: bool = True):
 def cmd_build(args: argparse.Namespace) -> int:
     variants, bad = _load([args.recipe], args.variant, folders=False)
     if bad:
+        return 2
+    from pathlib import Path
+
+    from .export.files import probe_writable
+
+    # Found before minutes of building, not after: an output folder that cannot be written
+    # is bad input like a missing recipe (exit 2, nothing built, nothing left behind).
+    why = probe_writable(Path(args.out))
+    if why is not None:
+        print(f"error: cannot write under {args.out}: {why}; nothing built", file=sys.stderr)
         return 2
     from .pipeline import build
 
