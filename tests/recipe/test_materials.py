@@ -370,6 +370,27 @@ def test_ten_thousand_nested_brackets_in_a_table_file_are_refused_at_their_line(
     assert seconds < 1.0
 
 
+@pytest.mark.parametrize("content, message", [
+    (_ONE_GRADE.replace("    cure: platinum\n", "    cure: platinum\n    cure: tin\n"),
+     "7: grades.my-A15.cure: duplicate key 'cure' (first at line 6)"),
+    (_ONE_GRADE.replace("scale: A", "scale: !!python/name:os.system"),
+     "4: grades.my-A15.scale: tag '!!python/name:os.system' is not allowed"),
+    (_ONE_GRADE + "---\ngrades: {}\n",
+     "15: grades table holds more than one YAML document (the second starts at line 15)"),
+    (_ONE_GRADE.encode().replace(b"platinum", b"platin\xfcm"),
+     "6: grades table file is not valid UTF-8: byte 0xfc at offset "
+     f"{_ONE_GRADE.index('platinum') + len('platin')}"),
+], ids=["duplicate-key", "python-tag", "two-documents", "latin-1"])
+def test_a_table_file_gets_the_recipes_yaml_limits(tmp_path, content, message):
+    path = tmp_path / "ours.yaml"
+    if isinstance(content, bytes):
+        path.write_bytes(content)
+    else:
+        path.write_text(content)
+    line, _ = _table_problem(tmp_path, "ours.yaml")
+    assert line.startswith(f"{path}:{message}")
+
+
 def test_a_table_file_problem_names_the_table_file_and_its_line(tmp_path):
     text = _ONE_GRADE.replace("density_g_cm3: 1.075", "density_g_cm3: .inf")
     (tmp_path / "ours.yaml").write_text(text)
