@@ -1,9 +1,9 @@
 """Command line: ``soft-molds build`` and ``soft-molds check``.
 
 Exit status: 0 success; 1 a mold could not be built, a mesh failed its integrity check or
-a manufacturability check failed (``check --strict``: or warned); 2 bad input (recipe
-problems, one line each, no traceback, nothing written; also a folder holding no recipe
-and, for ``build``, an output folder that cannot be written, found before any building).
+a manufacturability check failed (``check --strict``: or warned), or the output folder
+cannot be written (``build`` probes it before building); 2 bad input (recipe problems, one
+line each, no traceback, nothing written; also a folder named that holds no recipe).
 """
 
 from __future__ import annotations
@@ -166,12 +166,13 @@ def cmd_build(args: argparse.Namespace) -> int:
 
     from .export.files import probe_writable
 
-    # Found before minutes of building, not after: an output folder that cannot be written
-    # is bad input like a missing recipe (exit 2, nothing built, nothing left behind).
+    # Found before minutes of building, not after, and nothing is left behind. Exit 1 as
+    # when a write fails after the build: the same fault gives the same status whenever it
+    # is found.
     why = probe_writable(Path(args.out))
     if why is not None:
         print(f"error: cannot write under {args.out}: {why}; nothing built", file=sys.stderr)
-        return 2
+        return 1
     from .pipeline import build
 
     status = 0

@@ -487,6 +487,7 @@ def test_check_of_an_empty_folder_beside_a_bad_recipe_reports_both(tmp_path, cap
 @pytest.mark.parametrize("out", ["taken", "taken/sub/dir"], ids=["a-file", "under-a-file"])
 def test_build_refuses_an_output_folder_it_cannot_write_before_building(
         out, tmp_path, capsys, monkeypatch):
+    # Exit 1, as when writing fails after a build (tests/cli/test_commands.py).
     import soft_molds.pipeline as pipeline
 
     calls = []
@@ -494,7 +495,7 @@ def test_build_refuses_an_output_folder_it_cannot_write_before_building(
     monkeypatch.chdir(tmp_path)
     (tmp_path / "taken").write_text("a file where the output folder should go\n")
     before = sorted(p.name for p in tmp_path.iterdir())
-    assert main(["build", str(GOOD), "--out", out]) == 2
+    assert main(["build", str(GOOD), "--out", out]) == 1
     cap = capsys.readouterr()
     assert calls == []  # refused before any building
     assert cap.out == ""
