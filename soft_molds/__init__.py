@@ -17,6 +17,7 @@ Public API::
 from __future__ import annotations
 
 import os
+from collections.abc import Callable
 from dataclasses import replace
 from typing import Any
 
@@ -56,11 +57,13 @@ def _with_plan_problems(exc: RecipeError) -> RecipeError:
     return RecipeError([*exc.problems, *plan_problems(exc.recipe)], exc.source)
 
 
-def load_variants(path: str | os.PathLike) -> tuple[tuple[VariantSpec, Recipe], ...]:
+def load_variants(path: str | os.PathLike, progress: Callable[[int, int], None] | None = None
+                  ) -> tuple[tuple[VariantSpec, Recipe], ...]:
     """Every variant of a recipe file, each validated and planned; one RecipeError lists the
-    problems of every variant (merged where variants share them)."""
+    problems of every variant (merged where variants share them). ``progress(done, total)``
+    is called after each variant is validated."""
     try:
-        pairs = _load_variants(path)
+        pairs = _load_variants(path, progress=progress)
     except RecipeError as exc:
         raise _with_plan_problems(exc) from None
     problems = []

@@ -191,3 +191,19 @@ def remove_stale_temps(directory: Path) -> int:
             _remove_quietly(p)
             n += 1
     return n
+
+
+def probe_writable(root: Path) -> str | None:
+    """Why files cannot be written under ``root``, or None when they can: a file is staged
+    and removed in ``root`` or, while it does not exist, in its nearest existing parent
+    (where it would be created). Nothing is left behind."""
+    where = Path(root)
+    try:
+        while not where.exists() and where.parent != where:
+            where = where.parent
+        if not where.is_dir():
+            return f"{where} is not a folder"
+        _remove_quietly(_stage(where / ".write-probe", b""))
+    except OSError as exc:
+        return exc.strerror or str(exc)
+    return None

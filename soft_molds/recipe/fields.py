@@ -19,6 +19,15 @@ from .yamlsource import Node
 #: desktop printer, it only stops typos such as 1e9 from reaching the kernel.
 MAX_SIZE_MM = 1000.0
 
+#: No length a recipe gives may be smaller than this unless it is 0 (mm). 0.05 mm is at or
+#: below what a printer reproduces (an FDM layer is 0.05-0.3 mm and its nozzle 0.4 mm; a
+#: resin printer's pixel about 0.03-0.05 mm; from memory) and 2.5 times the default mesh
+#: chord (``mesh.chord_mm`` 0.02 mm), so a positive length below it cannot be made and
+#: would only reach the geometry kernel as a degenerate solid (a 1e-300 mm pitch fails
+#: there with a domain error). Sizes must reach it; lengths that may be 0 (a rounding, a
+#: start position) are 0 or at least this.
+MIN_SIZE_MM = 0.05
+
 _REQUIRED = object()
 
 
@@ -31,7 +40,8 @@ class Field:
     """One recipe key.
 
     ``kind`` is ``"number"``, ``"integer"``, ``"choice"``, ``"text"`` or ``"pair"`` (two
-    numbers). ``lo``/``hi`` bound numbers (``lo_open`` makes the lower bound strict).
+    numbers). ``lo``/``hi`` bound numbers (``lo_open`` makes the lower bound strict);
+    ``gap_below`` > 0 with ``lo`` = 0 accepts 0 or at least ``gap_below``, nothing between.
     ``default`` is ``None`` when the key is optional with no value, or the module-level
     ``REQUIRED`` sentinel when it must be given.
     """
@@ -45,6 +55,7 @@ class Field:
     hi: float | None = None
     lo_open: bool = False
     choices: tuple[str, ...] = ()
+    gap_below: float = 0.0
 
     @property
     def required(self) -> bool:
@@ -57,7 +68,9 @@ class Field:
         if self.kind == "text":
             return "text"
         parts = []
-        if self.lo is not None:
+        if self.gap_below > 0.0:
+            parts.append(f"0 or {_fmt(self.gap_below)} <= ")
+        elif self.lo is not None:
             parts.append(f"{_fmt(self.lo)} {'<' if self.lo_open else '<='} ")
         parts.append("value" if self.kind != "pair" else "each value")
         if self.hi is not None:
@@ -74,6 +87,13 @@ REQUIRED = _REQUIRED
 
 def number(name: str, doc: str, default: object = REQUIRED, *, unit: str = "mm",
            lo: float | None = 0.0, hi: float | None = MAX_SIZE_MM, lo_open: bool = True) -> Field:
+    """A number field. A length (unit mm) bounded below by 0 gets the absolute floor
+    ``MIN_SIZE_MM``: a size (0 excluded) must reach it, a length that may be 0 is 0 or
+    reaches it."""
+    if unit == "mm" and lo == 0.0:
+        if lo_open:
+            return Field(name, "number", doc, default, unit, MIN_SIZE_MM, hi, False)
+        return Field(name, "number", doc, default, unit, 0.0, hi, False, gap_below=MIN_SIZE_MM)
     return Field(name, "number", doc, default, unit, lo, hi, lo_open)
 
 
@@ -161,7 +181,7 @@ class MapReader:
         v = n.value
         if f.kind == "choice":
             if not isinstance(v, str) or v not in f.choices:
-                hint = _suggest(str(v), f.choices)
+                hint = suggest(str(v), f.choices)
                 self.problem(path, "is not a known value" + hint, line, n.plain(), f.allowed())
                 return None
             return v
@@ -201,6 +221,7 @@ class MapReader:
             self.problem(path, "must be a finite number", line, v, f.allowed())
             return None
         low_bad = f.lo is not None and (x <= f.lo if f.lo_open else x < f.lo)
+        low_bad = low_bad or 0.0 < abs(x) < f.gap_below
         high_bad = f.hi is not None and x > f.hi
         if low_bad or high_bad:
             self.problem(path, "is out of range", line, v, f.allowed())
@@ -218,10 +239,11 @@ class MapReader:
             if key in self._seen or key in known:
                 continue
             line = n.key_line if n.key_line is not None else n.line
-            self.problem(join_path(self.path, key), "is not a known key" + _suggest(key, known),
+            self.problem(join_path(self.path, key), "is not a known key" + suggest(key, known),
                          line, None, ", ".join(known) if known else "")
 
 
-def _suggest(word: str, options: Iterable[str]) -> str:
+def suggest(word: str, options: Iterable[str]) -> str:
+    """`` (did you mean 'x'?)`` for the option nearest ``word``, or "" when none is near."""
     near = difflib.get_close_matches(word, list(options), n=1, cutoff=0.6)
     return f" (did you mean '{near[0]}'?)" if near else ""

@@ -1,16 +1,23 @@
-"""Recipe file -> validated :class:`Recipe`, reporting every problem at once."""
+"""Recipe file -> validated :class:`Recipe`, reporting every problem at once.
+
+A recipe file with a ``variants`` block stands for its variants: :func:`load_variants`
+returns every one, and :func:`load_recipe` the first (``A``, or the first label written),
+never the document with its ``variants`` block dropped, whose values may be those of no
+variant at all (the bundled finger family's chambers are 8 mm high as written, 6 mm in A).
+"""
 
 from __future__ import annotations
 
 import os
 import re
+from collections.abc import Callable
 from dataclasses import replace
 from pathlib import Path
 
 from ..errors import Problem, RecipeError
 from ..units import psi_to_kpa
 from .contracts import bounds_of
-from .fields import MapReader, join_path
+from .fields import MapReader, join_path, suggest
 from .materials import resolve
 from .model import (
     CastingSettings,
@@ -43,10 +50,23 @@ LABEL_RE = re.compile(r"^[A-Z0-9][A-Z0-9-]{0,11}$")
 TAG_RE = re.compile(r"^[A-Za-z0-9.-]{1,8}$")
 MAX_VOIDS = 16
 
+#: A body less than this across (width and height, in mm) gets one leading problem saying
+#: lengths are millimetres. Below 5 mm a body cannot hold the default 4 mm tube socket with
+#: even the thinnest wall allowed (checks.min_wall_mm >= 0.3 mm a side: 4.6 mm), so such a
+#: recipe is far likelier written in centimetres than meant (a 7 x 1.6 x 1.4 "bar").
+SCALE_HINT_BELOW_MM = 5.0
+
+Progress = Callable[[int, int], None]
+"""Called as ``progress(done, total)`` after each variant is validated."""
+
 
 def load_recipe(path: str | os.PathLike) -> Recipe:
     """Read, validate and sanity-check a recipe file; raise :class:`RecipeError` listing
-    every problem (field path, line, value found, what is allowed)."""
+    every problem (field path, line, value found, what is allowed).
+
+    For a file with a ``variants`` block this is its first variant, the same recipe as
+    ``load_variants(path)[0][1]`` (the recipe as written and that variant are validated;
+    :func:`load_variants` validates every variant)."""
     root, source = read_recipe_file(path)
     return recipe_from_node(root, source, default_name=_stem_name(path),
                             base_dir=Path(path).resolve().parent)
@@ -60,14 +80,97 @@ def recipe_from_text(text: str, source: str = "recipe", default_name: str = "rec
                             None if base_dir is None else Path(base_dir))
 
 
+def recipe_from_node(root: Node, source: str, default_name: str = "recipe",
+                     base_dir: Path | None = None) -> Recipe:
+    """Like :func:`load_recipe` for a parsed document: the recipe, or its first variant."""
+    ((_, first),) = _variants(root, source, default_name, base_dir, None, first_only=True)
+    return first
+
+
+def load_variants(path: str | os.PathLike, progress: Progress | None = None
+                  ) -> tuple[tuple[VariantSpec, Recipe], ...]:
+    """Every variant of a recipe file (one, labelled as the recipe says, when it has no
+    ``variants`` block), each validated; a :class:`RecipeError` lists every problem, those
+    of a variant naming its label. ``progress(done, total)`` is called after each variant
+    is validated (how many there are is known, and bounded by ``variants.max_variants``,
+    before the first)."""
+    root, source = read_recipe_file(path)
+    return variants_from_node(root, source, _stem_name(path), Path(path).resolve().parent,
+                              progress)
+
+
+def variants_from_text(text: str, source: str = "recipe", default_name: str = "recipe",
+                       base_dir: str | os.PathLike | None = None,
+                       progress: Progress | None = None
+                       ) -> tuple[tuple[VariantSpec, Recipe], ...]:
+    return variants_from_node(parse_recipe_text(text, source), source, default_name,
+                              None if base_dir is None else Path(base_dir), progress)
+
+
+def variants_from_node(root: Node, source: str, default_name: str = "recipe",
+                       base_dir: Path | None = None, progress: Progress | None = None
+                       ) -> tuple[tuple[VariantSpec, Recipe], ...]:
+    return _variants(root, source, default_name, base_dir, progress)
+
+
 def _stem_name(path: str | os.PathLike) -> str:
     stem = Path(path).stem.lower()
     stem = re.sub(r"[^a-z0-9_-]+", "-", stem).strip("-_") or "recipe"
     return stem[:64]
 
 
+def _variants(root: Node, source: str, default_name: str, base_dir: Path | None,
+              progress: Progress | None, first_only: bool = False
+              ) -> tuple[tuple[VariantSpec, Recipe], ...]:
+    specs, problems = expand(root)
+    if problems:
+        raise RecipeError(problems, source)
+    if first_only:
+        specs = specs[:1]
+    base = without_variants(root)
+    # The recipe as written first: its own problems are reported once, not per variant.
+    base_recipe = _document_recipe(base, source, default_name, base_dir)
+    out = []
+    for done, spec in enumerate(specs, 1):
+        r = _variant_recipe(base, base_recipe, spec, source, default_name, base_dir,
+                            problems)
+        if r is not None:
+            out.append((spec, r))
+        if progress is not None:
+            progress(done, len(specs))
+    if problems:
+        raise RecipeError(merge_problems(problems), source)
+    labels = [r.label for _, r in out]
+    if len(set(labels)) != len(labels):
+        raise RecipeError([Problem("variants", "gives two variants the same label", None,
+                                   labels, "distinct labels")], source)
+    return tuple(out)
+
+
+def _variant_recipe(base: Node, base_recipe: Recipe, spec: VariantSpec, source: str,
+                    default_name: str, base_dir: Path | None,
+                    problems: list[Problem]) -> Recipe | None:
+    """One variant validated, or None with its problems added to ``problems``."""
+    if not spec.changes:
+        r = base_recipe
+    else:
+        found: list[Problem] = []
+        node = apply_changes(base, spec.changes, found, spec.label)
+        if found:
+            problems.extend(found)
+            return None
+        try:
+            r = _document_recipe(node, source, default_name, base_dir)
+        except RecipeError as exc:
+            problems.extend(prefix_problems(exc, spec))
+            return None
+    return replace(r, label=spec.label) if spec.label else r
+
+
 def _read_kind(node: Node | None, path: str, registry: dict, problems: list[Problem],
-               line: int | None, what: str):
+               line: int | None, what: str, follow_on: list[Problem]):
+    """The kind object of the ``body`` or a void entry, or None; problems of the kind's
+    cross-checks are listed in ``follow_on`` too."""
     r = MapReader(node, path, problems, line, what=f"a mapping describing the {what}")
     if node is None or not isinstance(node.value, dict):
         return None
@@ -78,9 +181,7 @@ def _read_kind(node: Node | None, path: str, registry: dict, problems: list[Prob
         return None
     cls = registry.get(kind_node.value) if isinstance(kind_node.value, str) else None
     if cls is None:
-        from .fields import _suggest
-
-        hint = _suggest(str(kind_node.value), list(registry))
+        hint = suggest(str(kind_node.value), list(registry))
         r.problem(f"{path}.kind", f"is not a known {what} kind{hint}",
                   kind_node.key_line or kind_node.line, kind_node.plain(), names)
         return None
@@ -93,70 +194,59 @@ def _read_kind(node: Node | None, path: str, registry: dict, problems: list[Prob
         # A kind's cross-check only knows the block's line; point at the field's own key
         # when the recipe wrote it (a default keeps the block's line).
         prefix = path + "."
-        problems.extend(
-            replace(p, line=r.line_of(p.path[len(prefix):]))
-            if p.path.startswith(prefix) and p.path[len(prefix):] in r.items else p
-            for p in extra)
+        located = [replace(p, line=r.line_of(p.path[len(prefix):]))
+                   if p.path.startswith(prefix) and p.path[len(prefix):] in r.items else p
+                   for p in extra]
+        problems.extend(located)
+        follow_on.extend(located)
         return None
     return cls(**values)
 
 
-def load_variants(path: str | os.PathLike) -> tuple[tuple[VariantSpec, Recipe], ...]:
-    """Every variant of a recipe file (one, labelled as the recipe says, when it has no
-    ``variants`` block), each validated; a :class:`RecipeError` lists every problem, those
-    of a variant naming its label."""
-    root, source = read_recipe_file(path)
-    return variants_from_node(root, source, _stem_name(path), Path(path).resolve().parent)
+def _body_size_mm(node: Node | None) -> tuple[float, float, float] | None:
+    """(length, width, height) of the body as written when its own fields are valid (its
+    cross-checks aside), else None."""
+    if node is None or not isinstance(node.value, dict):
+        return None
+    kind = node.value.get("kind")
+    name = kind.value if kind is not None else None
+    cls = body_kinds().get(name) if isinstance(name, str) else None
+    if cls is None:
+        return None
+    scratch: list[Problem] = []
+    values = MapReader(node, "body", scratch).take_all(cls.FIELDS)
+    if scratch:
+        return None
+    lo, hi = bounds_of(cls(**values).primitives())
+    return (hi[0] - lo[0], hi[1] - lo[1], hi[2] - lo[2])
 
 
-def variants_from_text(text: str, source: str = "recipe", default_name: str = "recipe",
-                       base_dir: str | os.PathLike | None = None
-                       ) -> tuple[tuple[VariantSpec, Recipe], ...]:
-    return variants_from_node(parse_recipe_text(text, source), source, default_name,
-                              None if base_dir is None else Path(base_dir))
+def _scale_first(problems: list[Problem], follow_on: list[Problem],
+                 size: tuple[float, float, float] | None, line: int | None) -> list[Problem]:
+    """``problems``, led by one saying lengths are millimetres when the body is less than
+    ``SCALE_HINT_BELOW_MM`` across; the follow-on problems of so small a body (its
+    cross-checks and the geometric sanity checks) are then counted, not listed."""
+    if size is None or not problems or max(size[1], size[2]) >= SCALE_HINT_BELOW_MM:
+        return problems
+    kept = [p for p in problems if not any(p is q for q in follow_on)]
+    dropped = len(problems) - len(kept)
+    more = (f"; {dropped} follow-on problem{'s' if dropped != 1 else ''} of so small a body "
+            "not listed") if dropped else ""
+    dims = " x ".join(f"{x:g}" for x in size)
+    hint = Problem("body", f"is only {dims} mm: every length in a recipe is in millimetres "
+                   f"(written in centimetres? multiply each length by 10){more}", line, None,
+                   f"a body at least {SCALE_HINT_BELOW_MM:g} mm across (room for a tube "
+                   "socket and its silicone walls)")
+    return [hint, *kept]
 
 
-def variants_from_node(root: Node, source: str, default_name: str = "recipe",
-                       base_dir: Path | None = None) -> tuple[tuple[VariantSpec, Recipe], ...]:
-    specs, problems = expand(root)
-    if problems:
-        raise RecipeError(problems, source)
-    base = without_variants(root)
-    # The recipe as written first: its own problems are reported once, not per variant.
-    base_recipe = recipe_from_node(base, source, default_name, base_dir)
-    out = []
-    for spec in specs:
-        if not spec.changes:
-            r = base_recipe
-        else:
-            found: list[Problem] = []
-            node = apply_changes(base, spec.changes, found, spec.label)
-            if found:
-                problems.extend(found)
-                continue
-            try:
-                r = recipe_from_node(node, source, default_name, base_dir)
-            except RecipeError as exc:
-                problems.extend(prefix_problems(exc, spec))
-                continue
-        if spec.label:
-            r = replace(r, label=spec.label)
-        out.append((spec, r))
-    if problems:
-        raise RecipeError(merge_problems(problems), source)
-    labels = [r.label for _, r in out]
-    if len(set(labels)) != len(labels):
-        raise RecipeError([Problem("variants", "gives two variants the same label", None,
-                                   labels, "distinct labels")], source)
-    return tuple(out)
-
-
-def recipe_from_node(root: Node, source: str, default_name: str = "recipe",
+def _document_recipe(root: Node, source: str, default_name: str = "recipe",
                      base_dir: Path | None = None) -> Recipe:
-    """Validate a recipe document (its ``variants`` block, if any, is left to
-    :func:`variants_from_node`)."""
+    """Validate one recipe document (a ``variants`` block, if any, is ignored: the callers
+    above apply it)."""
     root = without_variants(root)
     problems: list[Problem] = []
+    follow_on: list[Problem] = []
     top = MapReader(root, "", problems, 1, what="a mapping (the recipe's top level)")
     if not isinstance(root.value, dict):
         raise RecipeError(problems, source)
@@ -171,7 +261,14 @@ def recipe_from_node(root: Node, source: str, default_name: str = "recipe",
         top.problem("label", "is not a valid label", top.line_of("label"), label,
                     "upper case letters, digits and '-', starting with a letter or digit")
 
-    body = _read_kind(top.node("body"), "body", body_kinds(), problems, top.line, "body")
+    body = _read_kind(top.node("body"), "body", body_kinds(), problems, top.line, "body",
+                      follow_on)
+    size = _body_size_mm(top.items.get("body"))
+
+    def refused() -> RecipeError:
+        return RecipeError(_scale_first(problems, follow_on, size, top.line_of("body")),
+                           source)
+
     if top.items.get("body") is None:
         top.problem("body", "is required", top.line, None, "a mapping with kind: "
                     + " | ".join(body_kinds()))
@@ -190,7 +287,7 @@ def recipe_from_node(root: Node, source: str, default_name: str = "recipe",
     else:
         for i, item in enumerate(vnode.value):
             voids.append(_read_kind(item, join_path("voids", i), void_kinds(), problems,
-                                    item.line, "void"))
+                                    item.line, "void", follow_on))
 
     blocks = {}
     for block, fields in BLOCKS.items():
@@ -200,7 +297,7 @@ def recipe_from_node(root: Node, source: str, default_name: str = "recipe",
     top.finish()
 
     if problems or body is None or any(v is None for v in voids):
-        raise RecipeError(problems, source)
+        raise refused()
 
     inlet_v = blocks["inlet"]
     if inlet_v["center_mm"] is None:
@@ -216,7 +313,7 @@ def recipe_from_node(root: Node, source: str, default_name: str = "recipe",
                                     parting_v["offset_mm"],
                                     "leave it out (the build chooses the plane) or give axis "
                                     "y or z"))
-            raise RecipeError(problems, source)
+            raise refused()
     elif parting_v["offset_mm"] is None:
         # The core print must be seated in both halves, so the plane runs through the
         # socket's axis; for centred voids that is the body's mid-plane.
@@ -239,7 +336,7 @@ def recipe_from_node(root: Node, source: str, default_name: str = "recipe",
                                 "working_pressure_kpa", line("inflate.working_pressure_psi"),
                                 psi, "one of the two"))
     if problems:
-        raise RecipeError(problems, source)
+        raise refused()
     working = psi_to_kpa(psi) if psi is not None else kpa
     lab = dict(blocks["marking"])
     if lab["tag"] is None:
@@ -248,7 +345,7 @@ def recipe_from_node(root: Node, source: str, default_name: str = "recipe",
         problems.append(Problem("marking.tag", "has characters the label font does not draw",
                                 line("marking.tag"), lab["tag"],
                                 "up to 8 of A-Z, 0-9, '-' and '.' (lower case is raised)"))
-        raise RecipeError(problems, source)
+        raise refused()
     lab["tag"] = lab["tag"].upper()
 
     recipe = Recipe(
@@ -261,9 +358,15 @@ def recipe_from_node(root: Node, source: str, default_name: str = "recipe",
         label_settings=LabelSettings(**lab),
         printer=PrinterSettings(**blocks["printer"]), source=source, lines=lines)
 
-    problems.extend(sanity_problems(recipe, lines))
+    found = sanity_problems(recipe, lines)
+    problems.extend(found)
+    follow_on.extend(found)
     if problems:
-        raise RecipeError(problems, source, recipe)
+        exc = refused()
+        # Only a recipe whose lengths look like millimetres is worth planning further.
+        if size is None or max(size[1], size[2]) >= SCALE_HINT_BELOW_MM:
+            exc.recipe = recipe
+        raise exc
     return recipe
 
 

@@ -16,15 +16,18 @@ a test piece and measure it.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
+import os
+import re
+from collections.abc import Callable
+from dataclasses import dataclass, fields, replace
 from functools import lru_cache
 from importlib import resources
 from pathlib import Path
 from typing import Any
 
-import yaml
-
-from ..errors import Problem
+from ..errors import Problem, RecipeError
+from .fields import Field, MapReader, choice, join_path, number, suggest, text
+from .yamlsource import FileProblem, Node, UnreadableFile, parse_yaml_text, read_text_file
 
 
 @dataclass(frozen=True)
@@ -80,69 +83,103 @@ def shore_a_from_modulus(e_mpa: float) -> float:
     return s
 
 
-_KEYS = {
-    "scale": str, "hardness": float, "cure": str, "density_g_cm3": float,
-    "elongation_pct": float, "tensile_mpa": float, "mix_ratio": list, "mix_by": str,
-    "pot_life_min": float, "demold_h": float,
-}
+# Ranges shared by a grades table and a recipe's measured values (schema.MATERIAL_FIELDS),
+# so a value refused in one is refused in the other. Typical silicones (casting-facts.md,
+# from memory) sit well inside each range; the bounds stop typos and non-physical values.
+DENSITY_G_CM3 = (0.5, 3.0)
+ELONGATION_PCT = (10.0, 2000.0)
+MODULUS_MPA = (0.005, 50.0)
+SHORE = (1.0, 99.0)  # durometer readings are reproducible roughly 10-90 (ASTM D2240 use)
+
+GRADE_FIELDS: tuple[Field, ...] = (
+    choice("scale", "durometer scale of the hardness", ("A", "00")),
+    number("hardness", "durometer reading on that scale", unit="", lo=SHORE[0],
+           hi=SHORE[1], lo_open=False),
+    text("cure", "cure chemistry (only grades of the same cure mix)"),
+    number("density_g_cm3", "density of the mixed silicone", unit="g/cm3",
+           lo=DENSITY_G_CM3[0], hi=DENSITY_G_CM3[1]),
+    number("elongation_pct", "elongation at break", unit="%", lo=ELONGATION_PCT[0],
+           hi=ELONGATION_PCT[1]),
+    number("tensile_mpa", "tensile strength", unit="MPa", lo=0.0, hi=100.0),
+    Field("mix_ratio", "pair", "mix ratio of part A to part B", unit="", lo=0.0, hi=1000.0,
+          lo_open=True),
+    choice("mix_by", "how the ratio is measured", ("weight", "volume")),
+    number("pot_life_min", "working time after mixing", unit="min", lo=0.0, hi=1440.0),
+    number("demold_h", "cure time before demolding at room temperature", unit="h", lo=0.0,
+           hi=720.0),
+    number("modulus_mpa", "measured Young's modulus (else from Shore A by Gent's relation)",
+           None, unit="MPa", lo=MODULUS_MPA[0], hi=MODULUS_MPA[1]),
+)
+"""Keys of one grade in a table file, with what each accepts (``note`` is free text)."""
 
 
-def parse_table(text: str, source: str) -> tuple[dict[str, Grade], list[str]]:
-    """Grades from the text of a table file, and one message per problem in it."""
+def parse_table(text: str, source: str) -> tuple[dict[str, Grade], list[Problem]]:
+    """Grades from the text of a table file (``source`` labels it), and one problem per
+    mistake in it, each located in that file (:class:`FileProblem`)."""
     try:
-        data = yaml.safe_load(text)
-    except yaml.YAMLError as exc:
-        return {}, [f"{source}: not valid YAML ({str(exc).splitlines()[0]})"]
-    if not isinstance(data, dict) or not isinstance(data.get("grades"), dict):
-        return {}, [f"{source}: needs a top-level mapping 'grades: {{name: {{...}}}}'"]
+        root = parse_yaml_text(text, source, "grades table")
+    except RecipeError as exc:
+        return {}, _located(exc.problems, source)
+    problems: list[Problem] = []
+    top = MapReader(root, "", problems, 1, what="a mapping with one key, grades")
+    table = top.node("grades")
+    top.finish()
     out: dict[str, Grade] = {}
-    bad: list[str] = []
-    for name, g in data["grades"].items():
-        where = f"{source}: grades.{name}"
-        if not isinstance(g, dict):
-            bad.append(f"{where}: must be a mapping of {', '.join(_KEYS)}")
-            continue
-        missing = [k for k in _KEYS if k not in g]
-        if missing:
-            bad.append(f"{where}: missing {', '.join(missing)}")
-            continue
-        try:
-            ratio = tuple(float(x) for x in g["mix_ratio"])
-            grade = Grade(
-                name=str(name), scale=str(g["scale"]), hardness=float(g["hardness"]),
-                cure=str(g["cure"]), density_g_cm3=float(g["density_g_cm3"]),
-                elongation_pct=float(g["elongation_pct"]), tensile_mpa=float(g["tensile_mpa"]),
-                mix_ratio=ratio, mix_by=str(g["mix_by"]),  # type: ignore[arg-type]
-                pot_life_min=float(g["pot_life_min"]), demold_h=float(g["demold_h"]),
-                note=str(g.get("note", "")),
-                modulus_mpa=None if g.get("modulus_mpa") is None else float(g["modulus_mpa"]))
-        except (TypeError, ValueError):
-            bad.append(f"{where}: every value must be a number except scale, cure, mix_by, "
-                       "note; mix_ratio is [A, B]")
-            continue
-        checks = [
-            (grade.scale in ("A", "00"), "scale must be A or 00"),
-            (0.0 < grade.hardness < 100.0, "hardness must lie between 0 and 100"),
-            (grade.mix_by in ("weight", "volume"), "mix_by must be weight or volume"),
-            (len(ratio) == 2 and all(x > 0 for x in ratio), "mix_ratio must be two numbers > 0"),
-            (grade.density_g_cm3 > 0 and grade.elongation_pct > 0 and grade.tensile_mpa > 0
-             and grade.pot_life_min > 0 and grade.demold_h > 0,
-             "density, elongation, tensile, pot life and demold time must be > 0"),
-        ]
-        errs = [msg for ok, msg in checks if not ok]
-        if errs:
-            bad.append(f"{where}: " + "; ".join(errs))
-            continue
-        out[str(name)] = grade
-    return out, bad
+    if table is None:
+        top.problem("grades", "is required", root.line, None, "grades: {name: {scale: ..., "
+                    "hardness: ...}, ...}")
+    elif not isinstance(table.value, dict) or not table.value:
+        top.problem("grades", "must map grade names to their values", table.key_line,
+                    table.plain(), "grades: {name: {scale: ..., hardness: ...}, ...}")
+    else:
+        for name, node in table.value.items():
+            grade = _read_grade(name, node, problems)
+            if grade is not None:
+                out[name] = grade
+    return out, _located(problems, source)
+
+
+def _read_grade(name: str, node: Node, problems: list[Problem]) -> Grade | None:
+    r = MapReader(node, join_path("grades", name), problems, node.key_line,
+                  what="a mapping of " + ", ".join(f.name for f in GRADE_FIELDS))
+    if not isinstance(node.value, dict):
+        return None
+    values = r.take_all(GRADE_FIELDS)
+    note = r.node("note")
+    if note is not None and not isinstance(note.value, str):
+        r.problem(join_path(r.path, "note"), "must be text", note.key_line, note.plain(),
+                  "text (quote it)")
+    r.finish()
+    if not r.ok:
+        return None
+    return Grade(name=name, note="" if note is None else str(note.value), **values)  # type: ignore[arg-type]
+
+
+def _located(problems, source: str) -> list[Problem]:
+    kept = {f.name for f in fields(Problem)}
+    return [FileProblem(**{k: getattr(p, k) for k in kept}, file=source) for p in problems]
+
+
+def read_table_file(path: str | os.PathLike) -> tuple[dict[str, Grade], list[Problem]]:
+    """Grades of a table file and the problems in it (located in that file). Raises
+    :class:`UnreadableFile` when it cannot be read at all (missing, a directory, FIFO or
+    device, too big)."""
+    text, label = read_text_file(path, "grades table")
+    return _parse_cached(text, label)
+
+
+@lru_cache(maxsize=8)
+def _parse_cached(text: str, label: str) -> tuple[dict[str, Grade], list[Problem]]:
+    # Every variant of a family reads the same table: parse its text once.
+    return parse_table(text, label)
 
 
 @lru_cache(maxsize=1)
 def grades() -> dict[str, Grade]:
     """The shipped grades, name -> :class:`Grade`, in the file's order."""
-    text = resources.files("soft_molds.recipe").joinpath("silicone_grades.yaml").read_text()
-    table, bad = parse_table(text, "silicone_grades.yaml")
-    assert not bad, bad
+    shipped = resources.files("soft_molds.recipe").joinpath("silicone_grades.yaml")
+    table, bad = parse_table(shipped.read_text(encoding="utf-8"), "silicone_grades.yaml")
+    assert not bad, [b.format() for b in bad]
     return table
 
 
@@ -209,30 +246,33 @@ def blended_grade(b: Blend) -> Grade:
         modulus_mpa=b.modulus_mpa)
 
 
-def resolve(values: dict[str, Any], base_dir: Path | None, line) -> tuple[
-        Grade | None, Blend | None, list[Problem]]:
-    """The grade a recipe's ``material`` block casts, with problems naming its fields."""
+def resolve(values: dict[str, Any], base_dir: Path | None,
+            line: Callable[[str], int | None]) -> tuple[Grade | None, Blend | None,
+                                                        list[Problem]]:
+    """The grade a recipe's ``material`` block casts, with problems naming its fields (and,
+    for a table file, the file, line and key)."""
     problems: list[Problem] = []
     table = dict(grades())
     tf = values.get("table_file")
     if tf:
         path = Path(tf) if Path(tf).is_absolute() or base_dir is None else base_dir / tf
         try:
-            text = path.read_text(encoding="utf-8")
-        except OSError as exc:
-            problems.append(Problem("material.table_file", "cannot be read",
+            extra, bad = read_table_file(path)
+        except UnreadableFile as exc:
+            (why,) = exc.problems
+            problems.append(Problem("material.table_file", f"cannot be read: {why.message}",
                                     line("material.table_file"), tf,
-                                    f"a readable grades file ({exc.strerror or exc})"))
+                                    why.allowed or "a readable grades file (a regular file "
+                                    "in the shipped table's format)"))
             return None, None, problems
-        extra, bad = parse_table(text, str(path))
-        for msg in bad:
-            problems.append(Problem("material.table_file", msg, line("material.table_file"),
-                                    None, "see recipe/silicone_grades.yaml for the format"))
+        if bad:
+            return None, None, [*problems, *bad]
         table.update(extra)
     names = ", ".join(table)
     g = table.get(values["grade"])
     if g is None:
-        problems.append(Problem("material.grade", "is not a grade of the table",
+        problems.append(Problem("material.grade", "is not a grade of the table"
+                                + grade_hint(values["grade"], table),
                                 line("material.grade"), values["grade"], names))
         return None, None, problems
     over = {k: values[k] for k in ("density_g_cm3", "elongation_pct") if values.get(k)}
@@ -253,7 +293,8 @@ def resolve(values: dict[str, Any], base_dir: Path | None, line) -> tuple[
     elif other is not None:
         g2 = table.get(other)
         if g2 is None:
-            problems.append(Problem("material.blend_with", "is not a grade of the table",
+            problems.append(Problem("material.blend_with", "is not a grade of the table"
+                                    + grade_hint(other, table),
                                     line("material.blend_with"), other, names))
         else:
             try:
@@ -266,3 +307,32 @@ def resolve(values: dict[str, Any], base_dir: Path | None, line) -> tuple[
             else:
                 g = blended_grade(b)
     return g, b, problems
+
+
+_GRADE_RE = re.compile(r"^(?:shore\s*)?(a|00)[\s-]*(\d+(?:\.\d+)?)$")
+
+
+def grade_hint(name: str, table: dict[str, Grade]) -> str:
+    """`` (did you mean 'A10'?)`` for an unknown grade name, or ""; a Shore hardness
+    between two grades of the table also names the blend that reaches it."""
+    m = _GRADE_RE.match(" ".join(name.lower().split()))
+    if m is None:
+        return suggest(name, table)
+    scale, hardness = m.group(1).upper(), float(m.group(2))
+    same = sorted((g for g in table.values() if g.scale == scale),
+                  key=lambda g: (abs(g.hardness - hardness), g.hardness))
+    if not same:
+        return ""
+    nearest = same[0]
+    if math.isclose(nearest.hardness, hardness):
+        return f" (did you mean '{nearest.name}'?)"
+    below = [g for g in same if g.hardness < hardness]
+    above = [g for g in same if g.hardness > hardness]
+    if scale == "A" and below and above:
+        lo = max(below, key=lambda g: g.hardness)
+        hi = min(above, key=lambda g: g.hardness)
+        if lo.cure == hi.cure:
+            return (f" (did you mean '{nearest.name}'? For Shore A{hardness:g} blend two "
+                    f"grades: grade: {lo.name}, blend_with: {hi.name}, target_shore_a: "
+                    f"{hardness:g})")
+    return f" (did you mean '{nearest.name}'?)"

@@ -5,7 +5,8 @@ rewrites the README's copy)."""
 
 from __future__ import annotations
 
-from .fields import Field
+from .fields import MIN_SIZE_MM, Field
+from .load import SCALE_HINT_BELOW_MM
 from .registry import body_kinds, void_kinds
 from .schema import BLOCKS, TOP_FIELDS
 
@@ -29,8 +30,22 @@ def _table(fields: tuple[Field, ...]) -> list[str]:
     return rows
 
 
+_NUMBERS = (
+    "Lengths are millimetres (a body under {hint:g} mm across is reported as likely typed in "
+    "centimetres) and none lies between 0 and {floor:g} mm. Values are read as YAML 1.1 "
+    "with these deliberate exceptions: exponent forms without a dot or sign (`1e3`, "
+    "`2.5e-3`) are numbers, as in YAML 1.2; base-60 forms (`1:00`, which YAML 1.1 reads as "
+    "60) and leading-zero octal (`010`, read as 8) are refused, as are numbers beyond the "
+    "range of a double (`1e400`); quote such text (`'1:00'`). Indent with spaces: a tab is "
+    "refused. A `material.table_file` is read with the same limits as a recipe (size, "
+    "nesting, aliases, one document, a regular file) and its values get the same ranges as "
+    "the `material` block's."
+)
+
+
 def reference_markdown() -> str:
-    out = ["### Top level", "", *_table(TOP_FIELDS), "",
+    numbers = _NUMBERS.format(hint=SCALE_HINT_BELOW_MM, floor=MIN_SIZE_MM)
+    out = [numbers, "", "### Top level", "", *_table(TOP_FIELDS), "",
            "`body` (one mapping with `kind`) and `voids` (a list of 1-16 mappings with "
            "`kind`) are required; every other block is optional.", ""]
     for kind, cls in body_kinds().items():

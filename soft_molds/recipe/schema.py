@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from .fields import Field, choice, integer, number, pair, text
-from .materials import GRADE_NAMES
+from .materials import DENSITY_G_CM3, ELONGATION_PCT, GRADE_NAMES, MODULUS_MPA, SHORE
 
 TOP_FIELDS: tuple[Field, ...] = (
     text("name", "recipe name: lower case letters, digits, - and _ (the output folder); "
@@ -71,18 +71,19 @@ MATERIAL_FIELDS: tuple[Field, ...] = (
     text("table_file", "a YAML file of your own grades in the shipped table's format "
          "(relative to the recipe); adds to and overrides the shipped grades", None),
     number("shore_a", "measured Shore A hardness of your batch; default: the grade's",
-           None, unit="", lo=1.0, hi=99.0),
+           None, unit="", lo=SHORE[0], hi=SHORE[1]),
     number("youngs_modulus_mpa", "measured Young's modulus; default: from Shore A by "
-           "Gent's relation", None, unit="MPa", lo=0.005, hi=50.0),
+           "Gent's relation", None, unit="MPa", lo=MODULUS_MPA[0], hi=MODULUS_MPA[1]),
     number("density_g_cm3", "measured density of the mixed silicone; default: the grade's",
-           None, unit="g/cm3", lo=0.5, hi=3.0),
+           None, unit="g/cm3", lo=DENSITY_G_CM3[0], hi=DENSITY_G_CM3[1]),
     number("elongation_pct", "elongation at break of your silicone, measured or from its "
-           "data sheet; default: the grade's", None, unit="%", lo=10.0, hi=2000.0),
+           "data sheet; default: the grade's", None, unit="%", lo=ELONGATION_PCT[0],
+           hi=ELONGATION_PCT[1]),
     text("blend_with", "a second grade of the same cure to mix with grade (needs "
          "target_shore_a)", None),
     number("target_shore_a", "Shore A the blend of grade and blend_with should land on "
            "(mixed by modulus via Gent's relation; an approximation)", None, unit="",
-           lo=1.0, hi=99.0),
+           lo=SHORE[0], hi=SHORE[1]),
 )
 
 INFLATE_FIELDS: tuple[Field, ...] = (

@@ -26,6 +26,10 @@ order) and numbered variant i (from 0) is letter ``"ABCDE"[i % 5]`` of family
 into families of five in the order written. Rerunning the same recipe gives the same
 labels.
 
+The number of variants is worked out from the list lengths and counts (their product, or
+the common length for ``zip``) before any value is made, and a plan above
+``max_variants`` is refused at once; range ends must be numbers a double can hold.
+
 Every variant is validated like a recipe; its problems carry the variant's label in
 their path (``[F2-C] voids[0].height_mm: ...``) and, for a changed field, the line of
 the ``variants`` entry that changed it.
@@ -129,33 +133,82 @@ def _with_line(new: Node, old: Node) -> Node:
     return replace(new, key_line=new.key_line if new.key_line is not None else old.key_line)
 
 
-def _values(spec: Node, path: str, problems: list[Problem]) -> list[object] | None:
-    """The values one ``vary`` entry stands for."""
+@dataclass(frozen=True)
+class _Axis:
+    """One ``vary`` entry: its field path, the line to blame, and either its listed
+    ``values`` or an evenly spaced range (``start``, ``stop``, ``size`` values)."""
+
+    path: str
+    line: int
+    size: int
+    values: tuple[object, ...] | None = None
+    start: float = 0.0
+    stop: float = 0.0
+
+    def materialise(self) -> list[object]:
+        if self.values is not None:
+            return list(self.values)
+        a, b, c = self.start, self.stop, self.size
+        if math.isfinite(b - a):
+            steps = [a + (b - a) * k / (c - 1) for k in range(c)]
+        else:  # ends near the float limit on both sides: b - a overflows, weights do not
+            steps = [a * (1.0 - k / (c - 1)) + b * (k / (c - 1)) for k in range(c)]
+        # Rounded so that 0.1 steps print as 0.1, not 0.30000000000000004.
+        return [round(x, 9) + 0.0 for x in steps]
+
+
+def _finite(node: Node, path: str, problems: list[Problem]) -> float | None:
+    """The number of a range end, or None (a problem added) when it is not a number a
+    double can hold."""
+    v = node.value
+    if not isinstance(v, (int, float)) or isinstance(v, bool):
+        problems.append(Problem(path, "must be a number", node.line, node.plain(),
+                                "a finite number"))
+        return None
+    try:
+        x = float(v)
+    except OverflowError:  # a YAML int of hundreds of digits
+        problems.append(Problem(path, "is beyond the range of numbers", node.line, v,
+                                "a finite number of magnitude below about 1.8e308"))
+        return None
+    if not math.isfinite(x):
+        problems.append(Problem(path, "must be a finite number", node.line, v,
+                                "a finite number"))
+        return None
+    return x
+
+
+def _axis(path: str, spec: Node, where: str, problems: list[Problem]) -> _Axis | None:
+    """One ``vary`` entry checked and sized, without making its values (a range of a
+    million values costs nothing until the plan is known to be allowed)."""
     v = spec.value
+    line = spec.key_line or spec.line
     if isinstance(v, list):
         if not v:
-            problems.append(Problem(path, "has no values", spec.line, [], "a non-empty list"))
+            problems.append(Problem(where, "has no values", spec.line, [], "a non-empty list"))
             return None
-        return [n.plain() for n in v]
+        return _Axis(path, line, len(v), tuple(n.plain() for n in v))
     if isinstance(v, dict):
         keys = set(v)
         if keys != {"from", "to", "count"}:
-            problems.append(Problem(path, "is not a range", spec.line, sorted(keys),
+            problems.append(Problem(where, "is not a range", spec.line, sorted(keys),
                                     "{from: number, to: number, count: whole number >= 2}"))
             return None
-        a, b, c = (v[k].value for k in ("from", "to", "count"))
-        ok = all(isinstance(x, (int, float)) and not isinstance(x, bool) for x in (a, b))
-        if not ok or not isinstance(c, int) or isinstance(c, bool) or c < 2:
-            problems.append(Problem(path, "is not a range", spec.line, spec.plain(),
+        c = v["count"].value
+        if not isinstance(c, int) or isinstance(c, bool) or c < 2:
+            problems.append(Problem(where, "is not a range", spec.line, spec.plain(),
                                     "from and to numbers, count a whole number >= 2"))
             return None
+        a = _finite(v["from"], where + ".from", problems)
+        b = _finite(v["to"], where + ".to", problems)
+        if a is None or b is None:
+            return None
         if c > HARD_MAX_VARIANTS:
-            problems.append(Problem(path + ".count", "is too large", v["count"].line, c,
+            problems.append(Problem(where + ".count", "is too large", v["count"].line, c,
                                     f"at most {HARD_MAX_VARIANTS}"))
             return None
-        # Rounded so that 0.1 steps print as 0.1, not 0.30000000000000004.
-        return [round(a + (b - a) * k / (c - 1), 9) + 0.0 for k in range(c)]
-    problems.append(Problem(path, "is neither a list of values nor a range", spec.line,
+        return _Axis(path, line, c, None, a, b)
+    problems.append(Problem(where, "is neither a list of values nor a range", spec.line,
                             spec.plain(), "[v1, v2, ...] or {from, to, count}"))
     return None
 
@@ -256,22 +309,22 @@ def _sweep(items: dict[str, Node], limit: int, problems: list[Problem]
                                 vary.key_line or vary.line, vary.plain(),
                                 "{voids[0].height_mm: [6, 7, 8]}"))
         return [], problems
-    axes: list[tuple[str, list[object], int]] = []
+    axes: list[_Axis] = []
     for path, spec in vary.value.items():
         where = f"variants.vary.{path}"
-        line = spec.key_line or spec.line
-        if not _check_path(path, where, line, problems):
+        if not _check_path(path, where, spec.key_line or spec.line, problems):
             continue
-        vals = _values(spec, where, problems)
-        if vals is not None:
-            axes.append((path, vals, line))
+        axis = _axis(path, spec, where, problems)
+        if axis is not None:
+            axes.append(axis)
     if problems:
         return [], problems
-    sizes = [len(v) for _, v, _ in axes]
+    sizes = [a.size for a in axes]
     if mode == "zip" and len(set(sizes)) > 1:
         problems.append(Problem("variants.vary", "has lists of different lengths for zip",
                                 vary.key_line, sizes, "equal lengths, or combine: product"))
         return [], problems
+    # The plan's size from the counts alone, before any value or variant is made.
     total = math.prod(sizes) if mode == "product" else sizes[0]
     if total > limit:
         problems.append(Problem("variants.vary", f"would make {total} variants",
@@ -279,12 +332,12 @@ def _sweep(items: dict[str, Node], limit: int, problems: list[Problem]
                                 f"at most variants.max_variants = {limit} (raise it to allow "
                                 "more)"))
         return [], problems
-    combos = (itertools.product(*[v for _, v, _ in axes]) if mode == "product"
-              else zip(*[v for _, v, _ in axes]))
+    columns = [a.materialise() for a in axes]
+    combos = itertools.product(*columns) if mode == "product" else zip(*columns)
     out = []
     for i, combo in enumerate(combos):
         label, fam = sweep_label(i, total)
-        changes = tuple((p, val, line) for (p, _, line), val in zip(axes, combo))
+        changes = tuple((a.path, val, a.line) for a, val in zip(axes, combo))
         out.append(VariantSpec(label, fam, i, changes))
     return out, problems
 

@@ -20,6 +20,7 @@ import pytest
 from recipe_text import FINGER_TEXT, edit, line_of
 
 from soft_molds.cli import main
+from soft_molds.errors import SoftMoldsError
 
 ROOT = Path(__file__).resolve().parents[2]
 GOOD = ROOT / "recipes" / "seedling-finger.yaml"
@@ -53,13 +54,21 @@ i: &i [*h, *h, *h, *h, *h, *h, *h, *h, *h]
 class Expect:
     """One stderr line: ``error: FILE[:LINE]:[ PATH:] MESSAGE... [(got GOT)][; allowed: ...]``.
     ``path`` "" is a problem of the document itself; ``line`` None where no line exists
-    (no file, or nothing in it)."""
+    (no file, or nothing in it). ``file`` names another file of the case (a grades table)
+    when the problem is located there. With ``exact`` the line is exactly
+    ``MESSAGE (got GOT); allowed: ALLOWED`` (each part only when given)."""
 
     path: str
     line: int | None
     message: str
     got: str | None = None
     allowed: str | None = None
+    file: str | None = None
+    exact: bool = False
+
+
+FIFO = b"<a named pipe>"  # marks a file of a case made with os.mkfifo
+SPARSE_300MB = b"<300 MB of nothing>"  # a sparse file: long, no disk used
 
 
 @dataclass(frozen=True)
@@ -67,13 +76,20 @@ class Case:
     name: str
     text: str | bytes | None  # None: no file at that path
     expect: tuple[Expect, ...] = field(default_factory=tuple)
+    files: tuple[tuple[str, str | bytes], ...] = ()  # more files beside the recipe
 
 
-def _case(name: str, text: str | bytes | None, *expect: Expect) -> Case:
-    return Case(name, text, tuple(expect))
+def _case(name: str, text: str | bytes | None, *expect: Expect,
+          files: tuple[tuple[str, str | bytes], ...] = ()) -> Case:
+    return Case(name, text, tuple(expect), files)
 
 
-NUMBER = "a number, 0 < value <= 1000 mm"
+def _exact(path: str, line: int | None, message: str, got: str | None = None,
+           allowed: str | None = None, file: str | None = None) -> Expect:
+    return Expect(path, line, message, got, allowed, file, exact=True)
+
+
+NUMBER = "a number, 0.05 <= value <= 1000 mm"
 
 _syntax = edit(BASE, "  length_mm: 70", "  length_mm: 70: 5")
 _dup = edit(BASE, "  width_mm: 16", "  width_mm: 16\n  width_mm: 17")
@@ -111,6 +127,60 @@ _three = edit(edit(_text, "  - kind: chambers", "  - kind: chamber"), "  wall_mm
               "  wal_mm: 5")
 _seventeen = edit(BASE, BASE[BASE.index("voids:"):BASE.index("inlet:")],
                   "voids:\n" + "  - {kind: bore, diameter_mm: 2, length_mm: 30}\n" * 17)
+
+_base60 = edit(BASE, "  length_mm: 70", "  length_mm: 1:10")
+_octal = edit(BASE, "  height_mm: 14", "  height_mm: 014")
+_e308 = edit(BASE, "  length_mm: 70", "  length_mm: 1e308")
+_e400 = edit(BASE, "  length_mm: 70", "  length_mm: 1e400")
+_deep = edit(BASE, "name: finger-test", "name: finger-test\ndescription: " + "[" * 40
+             + "]" * 40)
+_tab = edit(BASE, "  clamp_bolt: M4", "\tclamp_bolt: M4")
+_tiny = edit(BASE, "pitch_mm: 8", "pitch_mm: 1.0e-300")
+_huge_range = BASE + ("variants:\n  vary:\n    mold.wall_mm: {from: 4, to: 1"
+                      + "0" * 400 + ", count: 2}\n")
+_big_plan = BASE + ("variants:\n  vary:\n    mold.wall_mm: {from: 4, to: 6, count: 1000000}\n"
+                    "    mold.flange_mm: {from: 10, to: 20, count: 1000000}\n"
+                    "    voids[0].height_mm: {from: 6, to: 8, count: 1000000}\n")
+# The finger typed in centimetres; the default 2 mm edge radius is too big for it (the one
+# follow-on problem counted, not listed).
+_cm = edit(edit(edit(edit(BASE, "  length_mm: 70", "  length_mm: 7"), "  width_mm: 16",
+                     "  width_mm: 1.6"), "  height_mm: 14", "  height_mm: 1.4"),
+           "  edge_radius_mm: 2\n", "")
+
+TABLE_ALLOWED = "a readable grades file (a regular file in the shipped table's format)"
+GRADES = "00-10, 00-30, 00-50, A10, A20, A30, A40"
+
+
+def _table(name: str) -> str:
+    return edit(BASE, "checks:", f"material:\n  grade: my-A15\n  table_file: {name}\nchecks:")
+
+
+def _grade_named(name: str) -> str:
+    return edit(BASE, "checks:", f"material:\n  grade: {name}\nchecks:")
+
+
+# A grade table of our own (demo scenario): key k is on line 4 + its index.
+_OURS = """\
+# our measured batch
+grades:
+  my-A15:
+    scale: A
+    hardness: 15
+    cure: platinum
+    density_g_cm3: 1.075
+    elongation_pct: 800
+    tensile_mpa: 3.5
+    mix_ratio: [1, 1]
+    mix_by: weight
+    pot_life_min: 30
+    demold_h: 6
+    modulus_mpa: 0.55
+"""
+
+
+def _grade(old: str, new: str) -> str:
+    return edit(_OURS, old, new)
+
 
 CASES = [
     # YAML 1.1 spec: a plain scalar may not contain ": " in block context.
@@ -217,15 +287,125 @@ CASES = [
           Expect("body.length_mm", line_of(_three, "seventy"), "must be a number"),
           Expect("voids[0].kind", line_of(_three, "kind: chamber"), "is not a known void kind"),
           Expect("mold.wal_mm", line_of(_three, "wal_mm"), "is not a known key")),
+    # --- YAML 1.1 number forms (yaml.org/type/int.html, float.html) --------------------
+    _case("base-60-number", _base60,
+          _exact("body.length_mm", line_of(_base60, "1:10"), "is a base-60 number in YAML "
+                 "1.1 (it would read as 70); base-60 numbers are not accepted", "'1:10'",
+                 "a decimal number; quote it ('1:10') if it is text")),
+    _case("leading-zero-octal", _octal,
+          _exact("body.height_mm", line_of(_octal, "014"), "is an octal number in YAML 1.1 "
+                 "(a leading 0; it would read as 12); leading zeros are not accepted",
+                 "'014'", "a decimal number without leading zeros; quote it ('014') if it "
+                 "is text")),
+    # YAML 1.2 reads 1e308 as a number (YAML 1.1 as text): it is then refused by its range.
+    _case("exponent-form-is-a-number", _e308,
+          _exact("body.length_mm", line_of(_e308, "1e308"), "is out of range", "1e+308",
+                 NUMBER)),
+    # IEEE 754 binary64 ends near 1.8e308: 1e400 is no number a double holds.
+    _case("exponent-beyond-any-double", _e400,
+          _exact("body.length_mm", line_of(_e400, "1e400"), "is beyond the range of numbers "
+                 "(it would read as inf)", "'1e400'",
+                 "a magnitude between about 2.2e-308 and 1.8e308, or 0")),
+    _case("nesting-too-deep", _deep,
+          _exact("", line_of(_deep, "description"), "recipe nests more than 32 levels deep",
+                 allowed="at most 32 levels of lists and mappings")),
+    # YAML 1.1 spec 4.2.2: tabs are not allowed in indentation.
+    _case("tab-in-indentation", _tab,
+          _exact("", line_of(_tab, "\tclamp_bolt"), "YAML syntax error: a tab in the "
+                 "indentation (column 1); indent with spaces")),
+    # --- a grades table the recipe names gets the recipe's guards ----------------------
+    _case("table-file-is-a-device", _table("/dev/zero"),
+          _exact("material.table_file", line_of(_table("/dev/zero"), "table_file"),
+                 "cannot be read: grades table path is a character device, not a regular "
+                 "file", "'/dev/zero'", TABLE_ALLOWED)),
+    _case("table-file-is-a-fifo", _table("grades.fifo"),
+          _exact("material.table_file", line_of(_table("x"), "table_file"),
+                 "cannot be read: grades table path is a named pipe (FIFO), not a regular "
+                 "file", "'grades.fifo'", TABLE_ALLOWED),
+          files=(("grades.fifo", FIFO),)),
+    _case("table-file-too-big", _table("big.yaml"),
+          _exact("material.table_file", line_of(_table("x"), "table_file"),
+                 "cannot be read: grades table file is 314572800 bytes", "'big.yaml'",
+                 "at most 262144 bytes"),
+          files=(("big.yaml", SPARSE_300MB),)),
+    _case("table-file-alias-bomb", _table("bomb.yaml"),
+          _exact("grades.e[1]", 6, "anchors/aliases expand beyond 20000 nodes",
+                 file="bomb.yaml"),
+          files=(("bomb.yaml", "grades:\n" + BOMB.replace("\n", "\n  ").replace("a: &a",
+                                                                                "  a: &a", 1)
+                  .rstrip(" ")),)),
+    _case("table-file-nested-too-deep", _table("deep.yaml"),
+          _exact("", 1, "grades table nests more than 32 levels deep",
+                 allowed="at most 32 levels of lists and mappings", file="deep.yaml"),
+          files=(("deep.yaml", "grades: " + "[" * 10_000 + "]" * 10_000 + "\n"),)),
+    _case("table-density-infinite", _table("ours.yaml"),
+          _exact("grades.my-A15.density_g_cm3", 7, "must be a finite number", "inf",
+                 "a number, 0.5 < value <= 3 g/cm3", file="ours.yaml"),
+          files=(("ours.yaml", _grade("density_g_cm3: 1.075", "density_g_cm3: .inf")),)),
+    _case("table-modulus-nan", _table("ours.yaml"),
+          _exact("grades.my-A15.modulus_mpa", 14, "must be a finite number", "nan",
+                 "a number, 0.005 < value <= 50 MPa", file="ours.yaml"),
+          files=(("ours.yaml", _grade("modulus_mpa: 0.55", "modulus_mpa: .nan")),)),
+    _case("table-modulus-negative", _table("ours.yaml"),
+          _exact("grades.my-A15.modulus_mpa", 14, "is out of range", "-5",
+                 "a number, 0.005 < value <= 50 MPa", file="ours.yaml"),
+          files=(("ours.yaml", _grade("modulus_mpa: 0.55", "modulus_mpa: -5")),)),
+    _case("table-mix-ratio-as-text", _table("ours.yaml"),
+          _exact("grades.my-A15.mix_ratio", 10, "must be a list of two numbers", "'12'",
+                 "a list of two numbers, 0 < each value <= 1000", file="ours.yaml"),
+          files=(("ours.yaml", _grade("mix_ratio: [1, 1]", "mix_ratio: '12'")),)),
+    _case("table-pot-life-zero", _table("ours.yaml"),
+          _exact("grades.my-A15.pot_life_min", 12, "is out of range", "0",
+                 "a number, 0 < value <= 1440 min", file="ours.yaml"),
+          files=(("ours.yaml", _grade("pot_life_min: 30", "pot_life_min: 0")),)),
+    # --- what the person meant ---------------------------------------------------------
+    _case("grade-written-with-shore", _grade_named('"Shore A10"'),
+          _exact("material.grade", line_of(_grade_named("x"), "grade:"),
+                 "is not a grade of the table (did you mean 'A10'?)", "'Shore A10'",
+                 GRADES)),
+    _case("grade-between-two-grades", _grade_named("A15"),
+          _exact("material.grade", line_of(_grade_named("x"), "grade:"),
+                 "is not a grade of the table (did you mean 'A10'? For Shore A15 blend two "
+                 "grades: grade: A10, blend_with: A20, target_shore_a: 15)", "'A15'", GRADES)),
+    _case("recipe-in-centimetres", _cm,
+          _exact("body", line_of(_cm, "body:"), "is only 7 x 1.6 x 1.4 mm: every length in a "
+                 "recipe is in millimetres (written in centimetres? multiply each length by "
+                 "10); 1 follow-on problem of so small a body not listed", None,
+                 "a body at least 5 mm across (room for a tube socket and its silicone "
+                 "walls)")),
+    _case("length-too-small-to-make", _tiny,
+          _exact("voids[0].pitch_mm", line_of(_tiny, "pitch_mm"), "is out of range", "1e-300",
+                 NUMBER)),
+    # --- variant families ----------------------------------------------------------------
+    _case("range-end-beyond-any-double", _huge_range,
+          _exact("variants.vary.mold.wall_mm.to", line_of(_huge_range, "from: 4"),
+                 "is beyond the range of numbers", "1" + "0" * 400,
+                 "a finite number of magnitude below about 1.8e308")),
+    _case("plan-too-big", _big_plan,
+          _exact("variants.vary", line_of(_big_plan, "vary:"),
+                 "would make 1000000000000000000 variants", None,
+                 "at most variants.max_variants = 10000 (raise it to allow more)")),
 ]
+
+
+def _write(path: Path, content: str | bytes) -> None:
+    if content is FIFO:
+        os.mkfifo(path)
+    elif content is SPARSE_300MB:
+        with open(path, "wb") as fh:
+            fh.truncate(300 * 1024 * 1024)
+    elif isinstance(content, bytes):
+        path.write_bytes(content)
+    else:
+        path.write_text(content, encoding="utf-8")
 
 
 def write_case(case: Case, directory: Path, name: str = "recipe.yaml") -> Path:
     path = directory / name
-    if isinstance(case.text, bytes):
-        path.write_bytes(case.text)
-    elif case.text is not None:
-        path.write_text(case.text, encoding="utf-8")
+    if case.text is not None:
+        _write(path, case.text)
+    for other, content in case.files:
+        _write(directory / other, content)
     return path
 
 
@@ -234,10 +414,16 @@ def assert_reported(stderr: str, label: str, expect: tuple[Expect, ...]) -> None
     lines = stderr.splitlines()
     assert len(lines) == len(expect), stderr
     for text, e in zip(lines, expect):
-        where = f"{label}:{e.line}:" if e.line is not None else f"{label}:"
+        file = label if e.file is None else str(Path(label).resolve().parent / e.file)
+        where = f"{file}:{e.line}:" if e.line is not None else f"{file}:"
         prefix = f"error: {where}" + (f" {e.path}:" if e.path else "") + " "
         assert text.startswith(prefix), (text, prefix)
         body = text[len(prefix):]
+        if e.exact:
+            got = "" if e.got is None else f" (got {e.got})"
+            allowed = "" if e.allowed is None else f"; allowed: {e.allowed}"
+            assert body == e.message + got + allowed, body
+            continue
         assert body.startswith(e.message), (body, e.message)
         if e.got is not None:
             assert f"(got {e.got})" in body, body
@@ -264,8 +450,8 @@ def test_bad_recipe_exits_2_with_one_located_line_per_problem_and_writes_nothing
     assert cap.out == ""
     assert_reported(cap.err, str(path), case.expect)
     assert not out.exists()
-    assert sorted(p.name for p in tmp_path.iterdir()) == ([] if case.text is None
-                                                          else ["recipe.yaml"])
+    assert sorted(p.name for p in tmp_path.iterdir()) == sorted(
+        ([] if case.text is None else ["recipe.yaml"]) + [name for name, _ in case.files])
     # Bad input is refused before any CAD work, even the alias bomb.
     assert elapsed < 3.0
 
@@ -278,11 +464,87 @@ def test_directory_instead_of_a_recipe_is_refused(tmp_path, capsys):
     assert not out.exists()
 
 
+def test_check_of_a_folder_without_recipes_is_bad_input(tmp_path, capsys):
+    empty = tmp_path / "drafts"
+    empty.mkdir()
+    (empty / "notes.txt").write_text("ideas for the next finger\n")
+    assert main(["check", str(empty)]) == 2
+    cap = capsys.readouterr()
+    assert cap.out == ""
+    assert cap.err.splitlines() == [f"error: {empty}: folder holds no recipe file (*.yaml)"]
+
+
+def test_check_of_an_empty_folder_beside_a_bad_recipe_reports_both(tmp_path, capsys):
+    empty = tmp_path / "drafts"
+    empty.mkdir()
+    bad = write_case(next(c for c in CASES if c.name == "negative-size"), tmp_path)
+    assert main(["check", str(empty), str(bad)]) == 2
+    err = capsys.readouterr().err.splitlines()
+    assert err[0] == f"error: {empty}: folder holds no recipe file (*.yaml)"
+    assert err[1].startswith(f"error: {bad}:")
+
+
+@pytest.mark.parametrize("out", ["taken", "taken/sub/dir"], ids=["a-file", "under-a-file"])
+def test_build_refuses_an_output_folder_it_cannot_write_before_building(
+        out, tmp_path, capsys, monkeypatch):
+    # Exit 1, as when writing fails after a build (tests/cli/test_commands.py).
+    import soft_molds.pipeline as pipeline
+
+    calls = []
+    monkeypatch.setattr(pipeline, "build", lambda r: calls.append(r))
+    monkeypatch.chdir(tmp_path)
+    (tmp_path / "taken").write_text("a file where the output folder should go\n")
+    before = sorted(p.name for p in tmp_path.iterdir())
+    assert main(["build", str(GOOD), "--out", out]) == 1
+    cap = capsys.readouterr()
+    assert calls == []  # refused before any building
+    assert cap.out == ""
+    assert cap.err.splitlines() == [f"error: cannot write under {out}: taken is not a folder; "
+                                    "nothing built"]
+    assert sorted(p.name for p in tmp_path.iterdir()) == before
+
+
+def test_the_write_probe_leaves_nothing_behind(tmp_path):
+    from soft_molds.export.files import probe_writable
+
+    assert probe_writable(tmp_path / "out" / "deeper") is None
+    assert list(tmp_path.iterdir()) == []  # neither the folder nor the probe file
+    (tmp_path / "out").mkdir()
+    assert probe_writable(tmp_path / "out") is None
+    assert list((tmp_path / "out").iterdir()) == []
+
+
+def test_check_prints_validation_progress_for_a_large_family(tmp_path, capsys, monkeypatch):
+    import soft_molds.cli as cli
+    import soft_molds.pipeline as pipeline
+
+    # The threshold is lowered so that the 5-variant family counts as large here.
+    monkeypatch.setattr(cli, "PROGRESS_ABOVE", 3)
+    monkeypatch.setattr(pipeline, "build", lambda r: (_ for _ in ()).throw(
+        SoftMoldsError("not built in this test")))
+    family = ROOT / "recipes" / "finger-family.yaml"
+    assert main(["check", str(family)]) == 1
+    err = capsys.readouterr().err.splitlines()
+    # one line at the start, then one per tenth: with 5 variants, after each of them
+    assert err == [f"{family}: validating 5 variants"] + [
+        f"{family}: validated {k} of 5 variants ({20 * k} %)" for k in range(1, 6)]
+
+
+def test_check_of_a_small_family_prints_no_progress(tmp_path, capsys, monkeypatch):
+    import soft_molds.pipeline as pipeline
+
+    monkeypatch.setattr(pipeline, "build", lambda r: (_ for _ in ()).throw(
+        SoftMoldsError("not built in this test")))
+    assert main(["check", str(ROOT / "recipes" / "finger-family.yaml")]) == 1
+    assert capsys.readouterr().err == ""
+
+
 # --- real processes -------------------------------------------------------------------
 
 CHECK_SCRIPT = """\
 import sys
 from soft_molds.cli import main
+from soft_molds.errors import SoftMoldsError
 status = main(["check", sys.argv[1], sys.argv[2]])
 print("status", status, "cadquery" in sys.modules, "OCP" in sys.modules)
 """

@@ -12,6 +12,10 @@ Outside references (values from /work/shared/reference/casting-facts.md):
 from __future__ import annotations
 
 import dataclasses
+import os
+import threading
+import time
+import tracemalloc
 from importlib import resources
 
 import pytest
@@ -176,7 +180,7 @@ def test_blend_refuses_a_target_outside_the_two_grades(target: float):
 
 # ---------------------------------------------------------------------------- parse_table
 
-def test_parse_table_reports_one_message_per_bad_grade_naming_it():
+def test_parse_table_reports_one_problem_per_bad_key_with_file_line_and_grade():
     text = """\
 grades:
   no-keys: {scale: A, hardness: 20, cure: platinum}
@@ -192,26 +196,207 @@ grades:
 """
     table, bad = parse_table(text, "mine.yaml")
     assert list(table) == ["fine"]
-    assert len(bad) == 3, bad
-    missing, scale, number = bad
-    assert missing.startswith("mine.yaml: grades.no-keys: missing ")
-    for key in ("density_g_cm3", "elongation_pct", "tensile_mpa", "mix_ratio", "mix_by",
-                "pot_life_min", "demold_h"):
-        assert key in missing
-    assert "grades.wrong-scale" in scale and "scale must be A or 00" in scale
-    assert "grades.not-a-number" in number and "must be a number" in number
+    got = [(p.path, p.line, p.message) for p in bad]
+    missing = ["density_g_cm3", "elongation_pct", "tensile_mpa", "mix_ratio", "mix_by",
+               "pot_life_min", "demold_h"]
+    assert got == [(f"grades.no-keys.{k}", 2, "is required") for k in missing] + [
+        ("grades.wrong-scale.scale", 4, "is not a known value"),
+        ("grades.not-a-number.hardness", 7, "must be a number")]
+    assert bad[-2].format() == ("mine.yaml:4: grades.wrong-scale.scale: is not a known value "
+                                "(got 'D'); allowed: one of A, 00")
 
 
-def test_parse_table_without_grades_mapping_is_one_problem():
+def test_parse_table_without_grades_mapping_is_one_problem_per_mistake():
     table, bad = parse_table("colours: [red]\n", "mine.yaml")
     assert table == {}
-    assert len(bad) == 1 and bad[0].startswith("mine.yaml:") and "grades" in bad[0]
+    assert [p.format() for p in bad] == [
+        "mine.yaml:1: colours: is not a known key; allowed: grades",
+        "mine.yaml:1: grades: is required; allowed: grades: {name: {scale: ..., hardness: "
+        "...}, ...}"]
 
 
-def test_parse_table_with_broken_yaml_is_one_problem():
+def test_parse_table_with_broken_yaml_is_one_located_problem():
     table, bad = parse_table("grades: {A10: [\n", "mine.yaml")
     assert table == {}
-    assert len(bad) == 1 and "not valid YAML" in bad[0]
+    (p,) = bad
+    assert p.format().startswith("mine.yaml:2: YAML syntax error: ")
+
+
+def test_an_unknown_key_in_a_table_is_refused_with_the_nearest_key():
+    # A typo must not silently drop a measured value.
+    text = USER_TABLE.replace("demold_h: 6,", "demold_h: 6, modulus_mp: 0.5,")
+    table, bad = parse_table(text, "mine.yaml")
+    assert list(table) == ["A10"]
+    assert [p.format() for p in bad][0].startswith(
+        "mine.yaml:4: grades.my-A15.modulus_mp: is not a known key (did you mean "
+        "'modulus_mpa'?)")
+
+
+# A user grade with one value replaced; the line of each key is 4 + its index below.
+_ONE_GRADE = """\
+# our measured batch (demo scenario)
+grades:
+  my-A15:
+    scale: A
+    hardness: 15
+    cure: platinum
+    density_g_cm3: 1.075
+    elongation_pct: 800
+    tensile_mpa: 3.5
+    mix_ratio: [1, 1]
+    mix_by: weight
+    pot_life_min: 30
+    demold_h: 6
+    modulus_mpa: 0.55
+"""
+
+
+@pytest.mark.parametrize("key, literal, message, got, allowed", [
+    ("density_g_cm3", ".inf", "must be a finite number", "inf",
+     "a number, 0.5 < value <= 3 g/cm3"),
+    ("modulus_mpa", ".nan", "must be a finite number", "nan",
+     "a number, 0.005 < value <= 50 MPa"),
+    ("modulus_mpa", "-5", "is out of range", "-5", "a number, 0.005 < value <= 50 MPa"),
+    ("density_g_cm3", "0", "is out of range", "0", "a number, 0.5 < value <= 3 g/cm3"),
+    ("elongation_pct", "0", "is out of range", "0", "a number, 10 < value <= 2000 %"),
+    ("mix_ratio", "'12'", "must be a list of two numbers", "'12'",
+     "a list of two numbers, 0 < each value <= 1000"),
+    ("mix_ratio", "[1, 0]", "is out of range", "0", "a list of two numbers, 0 < each value"),
+    ("pot_life_min", "0", "is out of range", "0", "a number, 0 < value <= 1440 min"),
+    ("demold_h", "-4", "is out of range", "-4", "a number, 0 < value <= 720 h"),
+    ("tensile_mpa", ".inf", "must be a finite number", "inf",
+     "a number, 0 < value <= 100 MPa"),
+], ids=["density-inf", "modulus-nan", "modulus-negative", "density-zero", "elongation-zero",
+        "ratio-as-text", "ratio-zero", "pot-life-zero", "demold-negative", "tensile-inf"])
+def test_table_values_get_the_recipes_range_checks(key, literal, message, got, allowed):
+    keys = ["scale", "hardness", "cure", "density_g_cm3", "elongation_pct", "tensile_mpa",
+            "mix_ratio", "mix_by", "pot_life_min", "demold_h", "modulus_mpa"]
+    line = 4 + keys.index(key)
+    text = _ONE_GRADE.splitlines(keepends=True)
+    text[line - 1] = f"    {key}: {literal}\n"
+    table, bad = parse_table("".join(text), "our.yaml")
+    assert table == {}
+    (p,) = bad
+    assert p.format().startswith(f"our.yaml:{line}: grades.my-A15.{key}: {message} "
+                                 f"(got {got}); allowed: {allowed}")
+
+
+def test_the_recipe_and_the_table_share_the_measured_value_ranges():
+    from soft_molds.recipe.materials import GRADE_FIELDS
+    from soft_molds.recipe.schema import MATERIAL_FIELDS
+
+    table = {f.name: f for f in GRADE_FIELDS}
+    recipe = {f.name: f for f in MATERIAL_FIELDS}
+    for t, r in [("density_g_cm3", "density_g_cm3"), ("elongation_pct", "elongation_pct"),
+                 ("modulus_mpa", "youngs_modulus_mpa")]:
+        assert (table[t].lo, table[t].hi) == (recipe[r].lo, recipe[r].hi)
+
+
+# ------------------------------------------------------------ table file: the file guards
+
+def _table_problem(tmp_path, table_file: str) -> tuple[str, float]:
+    """The one problem line of the test recipe naming ``table_file``, and the seconds it
+    took to refuse."""
+    text = _with(f"material:\n  grade: my-A15\n  table_file: {table_file}\n")
+    t = time.perf_counter()
+    (line,) = _error(text, base_dir=tmp_path).lines()
+    return line, time.perf_counter() - t
+
+
+def test_a_device_as_table_file_is_refused_without_reading_it(tmp_path):
+    # /dev/zero never ends: reading it whole would exhaust memory.
+    line, seconds = _table_problem(tmp_path, "/dev/zero")
+    assert "material.table_file: cannot be read: grades table path is a character device, " \
+           "not a regular file (got '/dev/zero')" in line
+    assert seconds < 1.0
+
+
+def test_a_fifo_as_table_file_is_refused_without_waiting_for_a_writer(tmp_path):
+    fifo = tmp_path / "grades.fifo"
+    os.mkfifo(fifo)
+    result: list[str] = []
+    worker = threading.Thread(target=lambda: result.append(_table_problem(tmp_path,
+                                                                          fifo.name)[0]),
+                              daemon=True)
+    worker.start()
+    worker.join(5.0)
+    if worker.is_alive():  # opening a FIFO for reading blocks until a writer comes
+        os.close(os.open(fifo, os.O_WRONLY | os.O_NONBLOCK))
+        pytest.fail("reading the table file waited on a FIFO")
+    assert "material.table_file: cannot be read: grades table path is a named pipe (FIFO), " \
+           "not a regular file" in result[0]
+
+
+def test_a_directory_as_table_file_is_refused(tmp_path):
+    (tmp_path / "grades").mkdir()
+    line, _ = _table_problem(tmp_path, "grades")
+    assert "cannot be read: grades table path is a directory, not a file" in line
+
+
+def test_a_huge_table_file_is_refused_by_its_size_before_it_is_read(tmp_path):
+    big = tmp_path / "big.yaml"
+    with open(big, "wb") as fh:  # sparse: 300 MB long, no disk used
+        fh.truncate(300 * 1024 * 1024)
+    tracemalloc.start()
+    try:
+        line, _ = _table_problem(tmp_path, "big.yaml")
+        peak = tracemalloc.get_traced_memory()[1]
+    finally:
+        tracemalloc.stop()
+    assert ("material.table_file: cannot be read: grades table file is 314572800 bytes "
+            "(got 'big.yaml'); allowed: at most 262144 bytes") in line
+    assert peak < 5 * 1024 * 1024  # nothing like the file's 300 MB was ever read
+
+
+def test_an_alias_bomb_in_a_table_file_is_refused_in_bounded_time(tmp_path):
+    # "Billion laughs", a well-known expansion attack (common practice to refuse it).
+    rows = ['  a: &a ["x", "x", "x", "x", "x", "x", "x", "x", "x"]']
+    rows += [f"  {b}: &{b} [" + ", ".join([f"*{a}"] * 9) + "]"
+             for a, b in zip("abcdefgh", "bcdefghi")]
+    (tmp_path / "bomb.yaml").write_text("grades:\n" + "\n".join(rows) + "\n")
+    line, seconds = _table_problem(tmp_path, "bomb.yaml")
+    # Expanded values: a 10, b 91, c 820, d 7381, then e's list and e[0] pass 15 000 and
+    # e[1] would pass 20 000 (as for the recipe's own bomb): e is on line 6.
+    assert line == (f"{tmp_path / 'bomb.yaml'}:6: grades.e[1]: anchors/aliases expand beyond "
+                    "20000 nodes")
+    assert seconds < 3.0
+
+
+def test_ten_thousand_nested_brackets_in_a_table_file_are_refused_at_their_line(tmp_path):
+    (tmp_path / "deep.yaml").write_text("# ours\ngrades: " + "[" * 10_000 + "]" * 10_000)
+    line, seconds = _table_problem(tmp_path, "deep.yaml")
+    assert line == (f"{tmp_path / 'deep.yaml'}:2: grades table nests more than 32 levels "
+                    "deep; allowed: at most 32 levels of lists and mappings")
+    assert seconds < 1.0
+
+
+@pytest.mark.parametrize("content, message", [
+    (_ONE_GRADE.replace("    cure: platinum\n", "    cure: platinum\n    cure: tin\n"),
+     "7: grades.my-A15.cure: duplicate key 'cure' (first at line 6)"),
+    (_ONE_GRADE.replace("scale: A", "scale: !!python/name:os.system"),
+     "4: grades.my-A15.scale: tag '!!python/name:os.system' is not allowed"),
+    (_ONE_GRADE + "---\ngrades: {}\n",
+     "15: grades table holds more than one YAML document (the second starts at line 15)"),
+    (_ONE_GRADE.encode().replace(b"platinum", b"platin\xfcm"),
+     "6: grades table file is not valid UTF-8: byte 0xfc at offset "
+     f"{_ONE_GRADE.index('platinum') + len('platin')}"),
+], ids=["duplicate-key", "python-tag", "two-documents", "latin-1"])
+def test_a_table_file_gets_the_recipes_yaml_limits(tmp_path, content, message):
+    path = tmp_path / "ours.yaml"
+    if isinstance(content, bytes):
+        path.write_bytes(content)
+    else:
+        path.write_text(content)
+    line, _ = _table_problem(tmp_path, "ours.yaml")
+    assert line.startswith(f"{path}:{message}")
+
+
+def test_a_table_file_problem_names_the_table_file_and_its_line(tmp_path):
+    text = _ONE_GRADE.replace("density_g_cm3: 1.075", "density_g_cm3: .inf")
+    (tmp_path / "ours.yaml").write_text(text)
+    line, _ = _table_problem(tmp_path, "ours.yaml")
+    assert line == (f"{tmp_path / 'ours.yaml'}:7: grades.my-A15.density_g_cm3: must be a "
+                    "finite number (got inf); allowed: a number, 0.5 < value <= 3 g/cm3")
 
 
 # ---------------------------------------------------------------------- recipe: material
@@ -244,11 +429,34 @@ def test_user_table_file_is_not_looked_up_outside_base_dir(tmp_path):
 
 
 def test_unknown_grade_is_refused_on_the_grade_line():
-    text = _with("material:\n  grade: A99\n")
+    text = _with("material:\n  grade: B7\n")
     err = _error(text)
     assert err.lines() == [
-        f"t.yaml:{line_of(text, 'grade: A99')}: material.grade: is not a grade of the table "
-        "(got 'A99'); allowed: " + ", ".join(GRADE_NAMES)]
+        f"t.yaml:{line_of(text, 'grade: B7')}: material.grade: is not a grade of the table "
+        "(got 'B7'); allowed: " + ", ".join(GRADE_NAMES)]
+
+
+@pytest.mark.parametrize("written, hint", [
+    ('"Shore A10"', "(did you mean 'A10'?)"),
+    ("a10", "(did you mean 'A10'?)"),
+    ("shore 00-30", "(did you mean '00-30'?)"),
+    ("A99", "(did you mean 'A40'?)"),
+    # Shore A15 lies between the shipped A10 and A20 (same cure): the blend reaches it.
+    ("A15", "(did you mean 'A10'? For Shore A15 blend two grades: grade: A10, blend_with: "
+            "A20, target_shore_a: 15)"),
+    ("00-40", "(did you mean '00-30'?)"),
+    ("A1O", "(did you mean 'A10'?)"),  # letter O for zero: nearest spelling
+], ids=["shore-a10", "lower-case", "shore-00-30", "a99", "a15", "00-40", "typo"])
+def test_unknown_grade_suggests_the_nearest_grade(written, hint):
+    text = _with(f"material:\n  grade: {written}\n")
+    (line,) = _error(text).lines()
+    assert f"material.grade: is not a grade of the table {hint} (got " in line
+
+
+def test_unknown_blend_with_grade_gets_a_suggestion_too():
+    text = _with("material:\n  grade: A10\n  blend_with: Shore A30\n  target_shore_a: 20\n")
+    (line,) = _error(text).lines()
+    assert "material.blend_with: is not a grade of the table (did you mean 'A30'?)" in line
 
 
 def test_blend_with_without_target_shore_a_is_refused():

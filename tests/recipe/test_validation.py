@@ -244,7 +244,7 @@ def test_bad_number_is_refused_with_the_value_found(literal, message):
     text = edit(FINGER, "  length_mm: 70", f"  length_mm: {literal}")
     p = only_problem(text)
     assert (p.path, p.line, p.message) == ("body.length_mm", line_of(text, "length_mm"), message)
-    assert p.allowed == "a number, 0 < value <= 1000 mm"
+    assert p.allowed == "a number, 0.05 <= value <= 1000 mm"
 
 
 def test_whole_number_field_accepts_integral_float_only():
@@ -447,3 +447,111 @@ def test_bundled_recipes_load_without_importing_the_cad_kernel(kernel_free_run):
     assert kernel_free_run.returncode == 0, stderr
     assert stdout.split() == [str(len(BUNDLED)), "False", "False"]
     assert len(BUNDLED) >= 4
+
+
+# ------------------------------------------------------------ lengths too small to make
+
+@pytest.mark.parametrize("old, new, path, got, allowed", [
+    ("pitch_mm: 8", "pitch_mm: 1.0e-300", "voids[0].pitch_mm", 1e-300,
+     "a number, 0.05 <= value <= 1000 mm"),
+    ("  width_mm: 16", "  width_mm: 0.049", "body.width_mm", 0.049,
+     "a number, 0.05 <= value <= 1000 mm"),
+    ("corner_radius_mm: 1", "corner_radius_mm: 0.001", "voids[0].corner_radius_mm", 0.001,
+     "a number, 0 or 0.05 <= value <= 1000 mm"),
+    ("socket_diameter_mm: 4", "socket_diameter_mm: 1.0e-9", "inlet.socket_diameter_mm",
+     1e-9, "a number, 0.05 <= value <= 30 mm"),
+], ids=["pitch-1e-300", "width-0.049", "corner-0.001", "socket-1e-9"])
+def test_positive_lengths_below_what_can_be_made_are_refused_before_the_kernel(
+        old, new, path, got, allowed):
+    # 0.05 mm: at or below a printer's resolution and 2.5 x the default mesh chord (see
+    # fields.MIN_SIZE_MM); a 1e-300 mm pitch used to reach the kernel as a domain error.
+    text = edit(FINGER, old, new)
+    p = only_problem(text)
+    assert (p.path, p.line, p.message, p.value, p.allowed) == (
+        path, line_of(text, new.strip()), "is out of range", got, allowed)
+
+
+def test_zero_stays_allowed_where_a_length_may_be_zero_and_the_floor_itself_passes():
+    r = recipe_from_text(edit(FINGER, "corner_radius_mm: 1", "corner_radius_mm: 0"))
+    assert r.voids[0].corner_radius_mm == 0.0
+    r = recipe_from_text(edit(FINGER, "corner_radius_mm: 1", "corner_radius_mm: 0.05"))
+    assert r.voids[0].corner_radius_mm == 0.05
+
+
+def test_every_length_field_has_the_absolute_floor():
+    from soft_molds.recipe.fields import MIN_SIZE_MM
+    from soft_molds.recipe.registry import body_kinds, void_kinds
+    from soft_molds.recipe.schema import BLOCKS
+
+    fields = [f for cls in (*body_kinds().values(), *void_kinds().values()) for f in cls.FIELDS]
+    # mesh.chord_mm is a tolerance of the mesh, not a length of the part
+    fields += [f for name, block in BLOCKS.items() if name != "mesh" for f in block]
+    for f in fields:
+        if f.kind == "number" and f.unit == "mm" and f.lo is not None and f.lo >= 0.0:
+            # a size reaches the floor; a length that may be 0 is 0 or reaches it
+            assert f.lo >= MIN_SIZE_MM or f.gap_below == MIN_SIZE_MM, f.name
+
+
+# --------------------------------------------------------- a recipe written in centimetres
+
+CM_FINGER = """\
+# the finger typed in centimetres by mistake
+name: finger-cm
+body:
+  kind: bar
+  length_mm: 7
+  width_mm: 1.6
+  height_mm: 1.4
+  edge_radius_mm: 0.2
+voids:
+  - kind: chambers
+    count: 3
+    pitch_mm: 0.8
+    depth_mm: 0.5
+    width_mm: 1.2
+    height_mm: 0.8
+    corner_radius_mm: 0.1
+    center_mm: [0, 0]
+    feed_diameter_mm: 0.2
+"""
+
+
+def test_a_body_a_few_millimetres_across_leads_with_one_problem_saying_lengths_are_mm():
+    # 1.6 x 1.4 mm cannot hold the default 4 mm socket: the other problems (socket off the
+    # face, walls, sprue) all follow from the scale, so they are counted, not listed.
+    (p,) = problems_of(CM_FINGER)
+    assert (p.path, p.line) == ("body", line_of(CM_FINGER, "body:"))
+    assert p.message.startswith("is only 7 x 1.6 x 1.4 mm: every length in a recipe is in "
+                                "millimetres (written in centimetres? multiply each length "
+                                "by 10); ")
+    assert re.search(r"; \d+ follow-on problems of so small a body not listed$", p.message)
+    assert p.allowed == ("a body at least 5 mm across (room for a tube socket and its "
+                         "silicone walls)")
+
+
+def test_the_mm_hint_keeps_the_problems_of_fields_the_person_wrote():
+    text = CM_FINGER + "mold:\n  wall_mm: 0.5\n"
+    found = problems_of(text)
+    assert [p.path for p in found] == ["body", "mold.wall_mm"]
+    assert found[1].message == "is out of range"
+
+
+def test_the_same_recipe_times_ten_passes():
+    scaled = re.sub(r"(_mm: )([\d.]+)", lambda m: f"{m.group(1)}{float(m.group(2)) * 10:g}",
+                    CM_FINGER)
+    r = recipe_from_text(scaled)
+    assert r.body_bounds() == ((0.0, -8.0, -7.0), (70.0, 8.0, 7.0))
+
+
+def test_a_small_body_that_passes_gets_no_hint():
+    # A 4.8 mm rod (under the 5 mm of the hint) with a 1.2 mm bore, a 1.6 mm socket and
+    # 0.8 mm walls is a real, tiny recipe: nothing is wrong, so nothing is said.
+    text = ("name: tiny\nbody: {kind: rod, diameter_mm: 4.8, length_mm: 20, end_round_mm: 0.3}\n"
+            "voids:\n  - {kind: bore, diameter_mm: 1.2, length_mm: 12}\n"
+            "inlet: {socket_diameter_mm: 1.6, socket_depth_mm: 3}\nparting: {axis: z}\n"
+            "mold: {sprue_diameter_mm: 3, vent_diameter_mm: 1, key_diameter_mm: 3, "
+            "key_height_mm: 1.5, clamp_bolt: M3}\ncheck: {min_wall_mm: 0.8}\n")
+    assert recipe_from_text(text.replace("check:", "checks:")).body_bounds() == (
+        (0.0, -2.4, -2.4), (20.0, 2.4, 2.4))
+    # With a typo it is refused, the hint leading (the body is under 5 mm across).
+    assert [p.path for p in problems_of(text)] == ["body", "check"]

@@ -3,11 +3,14 @@ name the variant (test recipe of the demo scenario)."""
 
 from __future__ import annotations
 
+import tracemalloc
+from pathlib import Path
+
 import pytest
 from recipe_text import FINGER_TEXT, line_of
 
 from soft_molds.errors import RecipeError
-from soft_molds.recipe import variants_from_text
+from soft_molds.recipe import load_recipe, load_variants, recipe_from_text, variants_from_text
 from soft_molds.recipe.variants import sweep_label
 
 
@@ -110,3 +113,84 @@ def test_a_bad_variants_block_is_one_clear_line(block, words):
     with pytest.raises(RecipeError) as e:
         _family(block)
     assert any(words in line for line in e.value.lines()), e.value.lines()
+
+
+# --------------------------------------------------------------------- bounded planning
+
+@pytest.mark.parametrize("end, literal, message, allowed", [
+    ("to", "1" + "0" * 400, "is beyond the range of numbers",
+     "a finite number of magnitude below about 1.8e308"),
+    ("from", "-1" + "0" * 400, "is beyond the range of numbers",
+     "a finite number of magnitude below about 1.8e308"),
+    ("to", ".inf", "must be a finite number", "a finite number"),
+    ("from", ".nan", "must be a finite number", "a finite number"),
+    ("to", "seven", "must be a number", "a finite number"),
+], ids=["400-digit-to", "400-digit-from", "inf", "nan", "text"])
+def test_a_range_end_no_double_can_hold_is_a_recipe_problem(end, literal, message, allowed):
+    # IEEE 754 binary64: the largest finite value is about 1.798e308.
+    ends = {"from": "4", "to": "6", end: literal}
+    text = FINGER_TEXT + ("variants:\n  vary:\n    mold.wall_mm:\n"
+                          f"      {{from: {ends['from']}, to: {ends['to']}, count: 2}}\n")
+    with pytest.raises(RecipeError) as e:
+        variants_from_text(text, "fam.yaml", "fam")
+    (p,) = e.value.problems
+    assert (p.path, p.line, p.message, p.allowed) == (
+        f"variants.vary.mold.wall_mm.{end}", line_of(text, "{from:"), message, allowed)
+
+
+def test_a_range_across_the_whole_float_line_is_evenly_spaced_without_overflow():
+    # to - from = 2e308 overflows a double; the weights form a (1 - t) + b t does not.
+    block = ("variants:\n  max_variants: 3\n  vary:\n"
+             "    mold.wall_mm: {from: -1.0e+308, to: 1.0e+308, count: 3}\n")
+    with pytest.raises(RecipeError) as e:
+        _family(block)
+    got = sorted({p.value for p in e.value.problems})
+    assert got == [-1e308, 0.0, 1e308]  # each refused by wall_mm's range, none infinite
+
+
+def test_the_plan_size_is_known_and_refused_before_any_value_is_made():
+    # Three ranges of a million values: 10**18 variants (hand arithmetic). Refused from
+    # the counts alone: making even one range's values would hold ~30 MB.
+    block = ("variants:\n  vary:\n    mold.wall_mm: {from: 4, to: 6, count: 1000000}\n"
+             "    mold.flange_mm: {from: 10, to: 20, count: 1000000}\n"
+             "    voids[0].height_mm: {from: 6, to: 8, count: 1000000}\n")
+    tracemalloc.start()
+    try:
+        with pytest.raises(RecipeError) as e:
+            _family(block)
+        peak = tracemalloc.get_traced_memory()[1]
+    finally:
+        tracemalloc.stop()
+    (line,) = e.value.lines()
+    assert "would make 1000000000000000000 variants" in line
+    assert peak < 2 * 1024 * 1024
+
+
+def test_progress_is_reported_once_per_variant_with_the_total_known_first():
+    calls: list[tuple[int, int]] = []
+    vs = variants_from_text(FINGER_TEXT + "variants:\n  vary:\n    voids[0].height_mm: "
+                            "[6, 7, 8]\n    mold.wall_mm: [4, 5]\n", "fam.yaml", "fam",
+                            progress=lambda done, total: calls.append((done, total)))
+    assert len(vs) == 6
+    assert calls == [(i, 6) for i in range(1, 7)]
+
+
+# ------------------------------------------------------------- load_recipe on a family
+
+FAMILY = Path(__file__).resolve().parents[2] / "recipes" / "finger-family.yaml"
+
+
+def test_load_recipe_on_a_family_is_its_first_variant_not_the_text_without_variants():
+    # recipes/finger-family.yaml: chambers 8 mm high as written, variants 6..10 mm.
+    first = load_variants(FAMILY)[0][1]
+    r = load_recipe(FAMILY)
+    assert r == first
+    assert (r.label, r.voids[0].height_mm) == ("A", 6.0)
+    assert r.params_sha256() == first.params_sha256()
+
+
+def test_recipe_from_text_on_a_family_is_its_first_variant_too():
+    text = FINGER_TEXT + "variants:\n  labels:\n    TALL:\n      voids[0].height_mm: 9\n" \
+        "    A: {}\n"
+    r = recipe_from_text(text, "fam.yaml", "fam")
+    assert (r.label, r.voids[0].height_mm) == ("TALL", 9.0)

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import codecs
 import math
+import os
 import time
 
 import pytest
@@ -18,11 +19,14 @@ import yaml
 from soft_molds.errors import RecipeError
 from soft_molds.recipe import yamlsource
 from soft_molds.recipe.yamlsource import (
+    MAX_DEPTH,
     MAX_EXPANDED_NODES,
     MAX_RECIPE_BYTES,
     Node,
+    UnreadableFile,
     parse_recipe_text,
     read_recipe_file,
+    read_yaml_file,
 )
 
 # Demo recipe from our own scenario: a greenhouse co-op's seedling-transplanting gripper.
@@ -193,18 +197,71 @@ def test_non_text_keys_are_refused_with_their_line():
 
 
 def test_scalars_keep_yaml_1_1_safe_typing():
-    text = "a: yes\nb: 0x1F\nc: 1_000\nd: 017\ne: .inf\nf: ~\ng: 1e3\nh: 1:30\ni: .NaN\n"
+    text = "a: yes\nb: 0x1F\nc: 1_000\nd: 0\ne: .inf\nf: ~\ng: 1.5e+3\nh: .5\ni: .NaN\n"
     got = parse_recipe_text(text).plain()
     # Values from the YAML 1.1 type repository (yaml.org/type/bool.html, int.html
-    # [hex, underscores, 0-prefixed octal, base 60], float.html [a "." is required],
-    # null.html); PyYAML's safe_load is the second, independent reader.
-    expected = {"a": True, "b": 31, "c": 1000, "d": 15, "e": math.inf, "f": None,
-                "g": "1e3", "h": 90}
+    # [hex, underscores], float.html, null.html); PyYAML's safe_load is the second,
+    # independent reader.
+    expected = {"a": True, "b": 31, "c": 1000, "d": 0, "e": math.inf, "f": None,
+                "g": 1500.0, "h": 0.5}
     assert {k: v for k, v in got.items() if k != "i"} == expected
     assert math.isnan(got["i"])
     reference = yaml.safe_load(text)
     assert math.isnan(reference.pop("i"))
     assert reference == expected
+
+
+@pytest.mark.parametrize("literal, safe_load_reads, kind", [
+    ("1:00", 60, "a base-60 number in YAML 1.1 (it would read as 60)"),
+    ("1:30.5", 90.5, "a base-60 number in YAML 1.1 (it would read as 90.5)"),
+    ("-2:00", -120, "a base-60 number in YAML 1.1 (it would read as -120)"),
+    ("017", 15, "an octal number in YAML 1.1 (a leading 0; it would read as 15)"),
+    ("00", 0, "an octal number in YAML 1.1 (a leading 0; it would read as 0)"),
+], ids=["1:00", "1:30.5", "-2:00", "017", "00"])
+def test_misleading_yaml_1_1_numbers_are_refused_with_what_they_would_mean(
+        literal, safe_load_reads, kind):
+    # yaml.org/type/int.html and float.html: base 60 ("sexagesimal") and 0-prefixed octal;
+    # safe_load is the independent reader of what YAML 1.1 makes of them.
+    text = f"body:\n  length_mm: {literal}\n"
+    assert yaml.safe_load(text)["body"]["length_mm"] == safe_load_reads
+    with pytest.raises(RecipeError) as excinfo:
+        parse_recipe_text(text, "r.yaml")
+    (p,) = excinfo.value.problems
+    assert (p.path, p.line, p.value) == ("body.length_mm", 2, literal)
+    assert p.message.startswith(f"is {kind}")
+    assert f"quote it ('{literal}') if it is text" in p.allowed
+
+
+def test_quoted_base_60_and_octal_forms_stay_text():
+    got = parse_recipe_text("a: '1:00'\nb: \"017\"\nc: !!str 1:00\nd: 10:30 am\n").plain()
+    assert got == {"a": "1:00", "b": "017", "c": "1:00", "d": "10:30 am"}
+
+
+@pytest.mark.parametrize("literal, value", [
+    ("1e3", 1000.0), ("1E3", 1000.0), ("2.5e-3", 0.0025), ("-4e2", -400.0), (".5e1", 5.0),
+    ("1e308", 1e308), ("1_0e1", 100.0),
+])
+def test_exponent_forms_are_numbers_as_in_yaml_1_2(literal, value):
+    # YAML 1.1 needs a dot and a signed exponent (safe_load keeps "1e3" as text); the
+    # YAML 1.2 core schema (yaml.org/spec/1.2.2, 10.3.2) reads these as floats, and so
+    # does Python's float() (the independent reference for the value).
+    got = parse_recipe_text(f"a: {literal}\n").plain()["a"]
+    assert got == value == float(literal.replace("_", ""))
+    assert isinstance(got, float)
+
+
+@pytest.mark.parametrize("literal", ["1e400", "-1.0e+999", "1e-400", "0.0001e-330"])
+def test_numbers_a_double_cannot_hold_are_refused_not_made_infinite_or_zero(literal):
+    # IEEE 754 binary64: largest finite ~1.798e308, smallest subnormal ~4.9e-324.
+    with pytest.raises(RecipeError) as excinfo:
+        parse_recipe_text(f"x: 1\nmold:\n  wall_mm: {literal}\n", "r.yaml")
+    (p,) = excinfo.value.problems
+    assert (p.path, p.line, p.value) == ("mold.wall_mm", 3, literal)
+    assert p.message.startswith("is beyond the range of numbers")
+
+
+def test_zero_written_as_an_exponent_form_is_zero():
+    assert parse_recipe_text("a: 0e5\nb: 0.0e-400\n").plain() == {"a": 0.0, "b": 0.0}
 
 
 def test_dates_stay_text_unlike_safe_load():
@@ -310,10 +367,77 @@ def test_node_is_an_immutable_value():
     assert node == Node(3, 1, None)
 
 
-def test_aliases_that_nest_too_deeply_are_refused_not_crashed():
-    # Each anchor nests the previous one 200 lists deeper: few values, great depth.
-    lines = ["a0: &a0 " + "[" * 200 + "1" + "]" * 200]
-    lines += [f"a{i}: &a{i} " + "[" * 200 + f"*a{i - 1}" + "]" * 200 for i in range(1, 6)]
+def test_aliases_that_nest_too_deeply_are_refused_with_the_alias_line():
+    # Each anchor nests the previous one 20 lists deeper: each line is within the limit,
+    # but a2 reaches 2 + 20 * 3 levels through its aliases.
+    lines = ["a0: &a0 " + "[" * 20 + "1" + "]" * 20]
+    lines += [f"a{i}: &a{i} " + "[" * 20 + f"*a{i - 1}" + "]" * 20 for i in range(1, 6)]
     with pytest.raises(RecipeError) as excinfo:
         parse_recipe_text("\n".join(lines) + "\n")
-    assert _problems(excinfo) == [("", "recipe nests too deeply (through aliases)", None)]
+    assert _problems(excinfo) == [
+        ("a1" + "[0]" * 20, f"recipe nests more than {MAX_DEPTH} levels deep (through aliases)",
+         2)]
+
+
+def test_ten_thousand_nested_brackets_are_refused_at_their_line_in_bounded_time():
+    text = "name: x\nbody: " + "[" * 10_000 + "]" * 10_000 + "\n"
+    t = time.perf_counter()
+    with pytest.raises(RecipeError) as excinfo:
+        parse_recipe_text(text)
+    assert time.perf_counter() - t < 1.0
+    assert _problems(excinfo) == [("", f"recipe nests more than {MAX_DEPTH} levels deep", 2)]
+    assert excinfo.value.problems[0].allowed == f"at most {MAX_DEPTH} levels of lists and mappings"
+
+
+def test_nesting_up_to_the_limit_is_read():
+    depth = MAX_DEPTH - 1  # the top-level mapping is the first level
+    node = parse_recipe_text("a: " + "[" * depth + "1" + "]" * depth + "\n")
+    v = node.plain()["a"]
+    for _ in range(depth):
+        (v,) = v
+    assert v == 1
+
+
+@pytest.mark.parametrize("text, line, column, message", [
+    ("name: a\nmold:\n\twall_mm: 5\n", 3, 1, "a tab in the indentation (column 1); indent "
+     "with spaces"),
+    ("mold:\n  wall_mm: 5\n  \tflange_mm: 12\n", 3, 3, "a tab in the indentation (column 3); "
+     "indent with spaces"),
+    ("mold:\n  wall_mm: 5\t# thick\n", 2, 13, "a tab character (column 13); YAML separates "
+     "with spaces here"),
+], ids=["tab-indent", "spaces-then-tab", "tab-before-comment"])
+def test_a_tab_is_explained_with_its_line_not_the_parsers_words(text, line, column, message):
+    # YAML 1.1 spec 4.2.2: tabs are never allowed in indentation.
+    with pytest.raises(RecipeError) as excinfo:
+        parse_recipe_text(text, "r.yaml")
+    assert _problems(excinfo) == [("", f"YAML syntax error: {message}", line)]
+
+
+@pytest.mark.parametrize("kind", ["fifo", "device"])
+def test_special_files_are_refused_before_they_are_read(tmp_path, kind):
+    # A FIFO blocks a reader until a writer comes; /dev/zero never ends.
+    if kind == "fifo":
+        path = tmp_path / "recipe.yaml"
+        os.mkfifo(path)
+        what = "a named pipe (FIFO)"
+    else:
+        path, what = "/dev/zero", "a character device"
+    t = time.perf_counter()
+    with pytest.raises(UnreadableFile) as excinfo:
+        read_yaml_file(path, "grades table")
+    assert time.perf_counter() - t < 1.0
+    (p,) = excinfo.value.problems
+    assert (p.message, p.value, p.line) == (
+        f"grades table path is {what}, not a regular file", str(path), None)
+
+
+def test_a_file_problem_prints_with_its_own_file():
+    from soft_molds.errors import Problem
+    from soft_molds.recipe.yamlsource import FileProblem
+
+    p = FileProblem("grades.x.hardness", "is out of range", 4, 120, "1 <= value <= 99",
+                    file="ours.yaml")
+    err = RecipeError([Problem("body", "is required", 2), p], "recipe.yaml")
+    assert err.lines() == [
+        "recipe.yaml:2: body: is required",
+        "ours.yaml:4: grades.x.hardness: is out of range (got 120); allowed: 1 <= value <= 99"]
