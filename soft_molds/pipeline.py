@@ -49,8 +49,9 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     0.5 % of its BRep volume.
     """
     from .analysis.casting import plan_casting
+    from .analysis.context import CheckContext
     from .analysis.highpoints import plan_openings
-    from .analysis.review import review
+    from .analysis.review import run_checks
     from .geometry import mold
     from .geometry.tessellate import tessellate
 
@@ -104,13 +105,11 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
         require_ok(report, label)
         parts.append(Part(spec.name, str(spec.role), solid, mesh, vol, spec.pull_dir, report))
     say("manufacturability checks")
-    layout = step.settled_layout
     with _stage(timings, "analysis", label):
         labels = tuple(x for x in (*shells.labels, core_label) if x is not None)
-        rev = review(recipe, cast_mesh, {p.name: (p.mesh, p.pull_dir) for p in parts
-                                         if p.role != "cast"},
-                     up, layout.block_lo[0], step.openings,
-                     {lab.part: [lab.box] for lab in labels})
+        rev = run_checks(CheckContext.for_step(
+            plan, cast_mesh, {p.name: (p.mesh, p.pull_dir) for p in parts if p.role != "cast"},
+            {lab.part: [lab.box] for lab in labels}))
         volumes = dict(cs.volumes_mm3, fill=shells.fill_volume_mm3)
         casting = plan_casting(recipe, volumes["cast"], volumes["fill"],
                                [(p.name, p.mesh, p.brep_volume_mm3) for p in parts
@@ -128,9 +127,9 @@ def k_volume(shape: object) -> float:
 def _ranked_planes(plan: MoldPlan, cast_mesh: TriMesh, core_mesh: TriMesh
                    ) -> tuple[PlaneScore, ...]:
     """Every candidate plane of the plan scored on the cast and bare core, best first."""
+    from .analysis.context import core_print_facets, void_facets
     from .analysis.demold import Surface
     from .analysis.parting_scores import score_planes
-    from .analysis.review import core_print_facets, void_facets
 
     r = plan.recipe
     cast_s, core_s = Surface(cast_mesh), Surface(core_mesh)

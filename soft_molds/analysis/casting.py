@@ -51,10 +51,6 @@ class Quantities:
     mixed_g: float
     portions: tuple[Portion, ...]  # rounded up to the scale's resolution
 
-    @property
-    def poured_mm3(self) -> float:
-        return self.cast_mm3 + self.fill_mm3
-
 
 def silicone_quantities(cast_mm3: float, fill_mm3: float, grade: Grade, waste_pct: float,
                         resolution_g: float, blend: Blend | None = None) -> Quantities:

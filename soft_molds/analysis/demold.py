@@ -26,10 +26,10 @@ import numpy as np
 from scipy.sparse import coo_matrix
 from scipy.sparse.csgraph import connected_components
 
-from soft_molds.meshdata import TriMesh
 from soft_molds.plan.model import PlaneScore
 
-from .rays import EPS_MM, RayCaster, face_normals
+from .rays import EPS_MM, Vec3
+from .surface import Surface as Surface  # re-exported: callers import it from here
 
 LOCK_TOL_DEG = 0.1
 """A facet leans into the pull only beyond this (smaller tilts are float noise)."""
@@ -52,7 +52,7 @@ class PullReport:
     locked_regions: int
 
 
-def _unit(d: Sequence[float]) -> np.ndarray:
+def _unit(d: Vec3) -> np.ndarray:
     v = np.asarray(d, dtype=np.float64)
     return v / np.linalg.norm(v)
 
@@ -61,37 +61,10 @@ def _pt(p: np.ndarray | None) -> tuple[float, float, float] | None:
     return None if p is None else (float(p[0]), float(p[1]), float(p[2]))
 
 
-class Surface:
-    """A closed mesh prepared for pull queries: facet centroids, normals, areas, the ray
-    caster and facet adjacency (built on first use)."""
-
-    def __init__(self, mesh: TriMesh, caster: RayCaster | None = None) -> None:
-        self.mesh = mesh
-        self.centroids, self.normals, self.areas = face_normals(mesh)
-        self.caster = caster or RayCaster(mesh)
-        self._edges: tuple[np.ndarray, np.ndarray] | None = None
-
-    def edges(self) -> tuple[np.ndarray, np.ndarray]:
-        """(e, 2) vertex pairs of every undirected edge and (e, 2) the two facets using it
-        (the mesh is closed and manifold, so each edge has exactly two)."""
-        if self._edges is None:
-            f = self.mesh.faces
-            e = np.sort(f[:, [0, 1, 1, 2, 2, 0]].reshape(-1, 2), axis=1)
-            owner = np.repeat(np.arange(len(f)), 3)
-            key = e[:, 0] * np.int64(len(self.mesh.vertices)) + e[:, 1]
-            order = np.argsort(key, kind="stable")
-            k, e, owner = key[order], e[order], owner[order]
-            first = np.flatnonzero(np.r_[True, k[1:] != k[:-1]])
-            counts = np.diff(np.r_[first, len(k)])
-            pair = first[counts == 2]
-            self._edges = (e[pair], np.stack([owner[pair], owner[pair + 1]], axis=1))
-        return self._edges
-
-
 def pull_report(
     surface: Surface,
     mask: np.ndarray,
-    pull: Sequence[float],
+    pull: Vec3,
     part: str,
     min_draft_deg: float = 0.5,
     openings: Sequence = (),

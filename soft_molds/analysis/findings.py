@@ -76,6 +76,17 @@ def counts(findings: Iterable[Finding]) -> SeverityCounts:
                           sum(f.severity is Severity.INFO for f in fs))
 
 
+def of_severity(findings: Iterable[Finding], severity: Severity) -> tuple[Finding, ...]:
+    """The findings of one severity, in their order."""
+    return tuple(f for f in findings if f.severity is severity)
+
+
+def worst_first(findings: Iterable[Finding]) -> tuple[Finding, ...]:
+    """Errors first, then warnings, then infos; a stable sort, so findings of one severity
+    keep their order (the order the checks ran in)."""
+    return tuple(sorted(findings, key=lambda f: f.severity.rank))
+
+
 def verdict(findings: Iterable[Finding]) -> Verdict:
     """``error`` when any finding is an error, else ``warning`` when any is a warning, else
     ``ok``. The CLI, pipeline, sweep, casting card and family sheet all use this one."""

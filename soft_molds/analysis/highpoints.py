@@ -23,8 +23,11 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from soft_molds.constants import AIR_PERSISTENCE_MM, AIR_PLATEAU_MM
 from soft_molds.meshdata import TriMesh
 from soft_molds.plan.model import Opening, OpeningKind
+
+from .rays import Vec3
 
 CEILING_MIN_UP = 0.1
 """A plateau whose area-weighted mean normal has ``n·up`` above this holds a bubble."""
@@ -61,7 +64,7 @@ class HighPoint:
                                              default_factory=lambda: np.empty((0, 3, 3)))
 
 
-def _unit(up: Sequence[float]) -> np.ndarray:
+def _unit(up: Vec3) -> np.ndarray:
     u = np.asarray(up, dtype=np.float64).reshape(-1)
     if u.shape != (3,) or not np.isfinite(u).all():
         raise ValueError(f"up must be a finite 3-vector, got {up!r}")
@@ -100,18 +103,6 @@ def _weld(mesh: TriMesh) -> tuple[np.ndarray, np.ndarray]:
     inverse = np.empty(len(v), dtype=np.int64)
     inverse[order] = np.cumsum(new) - 1
     return sv[new], inverse[f]
-
-
-def _face_up(v: np.ndarray, f: np.ndarray, up: np.ndarray) -> np.ndarray:
-    t = v[f]
-    n = np.cross(t[:, 1] - t[:, 0], t[:, 2] - t[:, 0])
-    length = np.linalg.norm(n, axis=1)
-    out = np.zeros(len(f))
-    good = length > 0.0
-    # Zero-area facets have no direction; 0 makes them walls, which only joins vertices that
-    # already lie on the surface.
-    out[good] = (n[good] @ up) / length[good]
-    return out
 
 
 @dataclass(frozen=True)
@@ -289,9 +280,9 @@ def _pick(points: np.ndarray, dist: np.ndarray, largest: bool) -> int:
 
 def find_high_points(
     mesh: TriMesh,
-    up: Sequence[float] = (0.0, 0.0, 1.0),
-    persistence_mm: float = 0.5,
-    plateau_mm: float = 0.25,
+    up: Vec3 = (0.0, 0.0, 1.0),
+    persistence_mm: float = AIR_PERSISTENCE_MM,
+    plateau_mm: float = AIR_PLATEAU_MM,
 ) -> tuple[HighPoint, ...]:
     """Places where air gathers in the cavity when the part is poured with ``up`` upward.
 
@@ -401,8 +392,8 @@ def _arrays(openings: Sequence[Opening]) -> tuple[np.ndarray, np.ndarray]:
 
 
 def serves(
-    opening: Opening, hp: HighPoint, up: Sequence[float] = (0.0, 0.0, 1.0),
-    plateau_mm: float = 0.25,
+    opening: Opening, hp: HighPoint, up: Vec3 = (0.0, 0.0, 1.0),
+    plateau_mm: float = AIR_PLATEAU_MM,
 ) -> bool:
     """True when ``opening`` reaches the plateau of ``hp`` (mm, world frame).
 
@@ -417,12 +408,12 @@ def serves(
 
 def plan_openings(
     mesh: TriMesh,
-    up: Sequence[float],
+    up: Vec3,
     sprue_radius_mm: float,
     vent_radius_mm: float,
     far_vent_min_mm: float = 15.0,
-    persistence_mm: float = 0.5,
-    plateau_mm: float = 0.25,
+    persistence_mm: float = AIR_PERSISTENCE_MM,
+    plateau_mm: float = AIR_PLATEAU_MM,
 ) -> tuple[Opening, ...]:
     """Sprue and vents for the cavity of ``mesh`` (mm, world frame); sprue first.
 
@@ -570,10 +561,10 @@ def _lex_less(a: np.ndarray, b: np.ndarray) -> np.ndarray:
 
 def unserved(
     mesh: TriMesh,
-    up: Sequence[float],
+    up: Vec3,
     openings: Sequence[Opening],
-    persistence_mm: float = 0.5,
-    plateau_mm: float = 0.25,
+    persistence_mm: float = AIR_PERSISTENCE_MM,
+    plateau_mm: float = AIR_PLATEAU_MM,
 ) -> tuple[HighPoint, ...]:
     """High points of ``mesh`` that none of ``openings`` serves (see :func:`serves`)."""
     u = _unit(up)

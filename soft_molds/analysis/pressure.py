@@ -26,7 +26,7 @@ from soft_molds.recipe.model import Recipe
 from soft_molds.recipe.primitives import union_sdf
 from soft_molds.units import kpa_to_psi
 
-from .findings import Finding, finding
+from .findings import Finding, Severity, finding
 from .rubber import (
     MAX_STRETCH,
     THIN_WALL_RATIO,
@@ -103,7 +103,7 @@ def pressure_findings(r: Recipe, e_mpa: float | None, walls: tuple[WallPressure,
     work = r.inflate.working_pressure_kpa
     g = r.material.silicone
     if e_mpa is None:
-        return [finding("pressure", "info", "cast",
+        return [finding("pressure", Severity.INFO, "cast",
                         f"no pressure estimate: {g.name} is on the Shore {g.scale} scale, which "
                         "has no closed-form link to a modulus; give material.youngs_modulus_mpa "
                         "or material.shore_a")]
@@ -113,7 +113,7 @@ def pressure_findings(r: Recipe, e_mpa: float | None, walls: tuple[WallPressure,
         where = f"{w.group} ({w.thickness_mm:.2f} mm over a {2 * w.radius_mm:g} mm span)"
         if w.limit_kpa is None:
             out.append(finding(
-                "pressure", "info", "cast",
+                "pressure", Severity.INFO, "cast",
                 f"{where}: no limit point up to a stretch of {MAX_STRETCH:g} (a wall this "
                 f"thick stiffens as it grows; thin-wall "
                 f"estimate {w.thin_estimate_kpa:.0f} kPa); {ESTIMATE}", value=None,
@@ -122,19 +122,19 @@ def pressure_findings(r: Recipe, e_mpa: float | None, walls: tuple[WallPressure,
         m = w.margin(work)
         if m is None and work is not None:
             out.append(finding(
-                "pressure", "info", "cast",
+                "pressure", Severity.INFO, "cast",
                 f"{where} balloons at about {w.limit_kpa:.0f} kPa{rough} (E {e_mpa:.3f} MPa); "
                 f"working pressure {work:g} kPa; {ESTIMATE}", value=w.limit_kpa, limit=work,
                 where=w.at_mm))
             continue
-        if m is None:
+        if m is None or work is None:
             out.append(finding(
-                "pressure", "info", "cast",
+                "pressure", Severity.INFO, "cast",
                 f"{where} balloons at about {w.limit_kpa:.0f} kPa{rough} (E {e_mpa:.3f} MPa); "
                 f"no working pressure given (inflate.working_pressure_kpa); {ESTIMATE}",
                 value=w.limit_kpa, limit=None, where=w.at_mm))
             continue
-        sev = "warning" if m < 1.0 else "info"
+        sev = Severity.WARNING if m < 1.0 else Severity.INFO
         verdict = "balloons below the working pressure" if m < 1.0 else "holds"
         out.append(finding(
             "pressure", sev, "cast",

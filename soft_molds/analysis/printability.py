@@ -33,9 +33,11 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from soft_molds.analysis.findings import Finding, finding
-from soft_molds.analysis.rays import RayCaster, face_normals, thickness_along_normals
 from soft_molds.meshdata import TriMesh
+
+from .findings import Finding, Severity, finding
+from .rays import thickness_along_normals
+from .surface import Surface
 
 FLAT_MIN_AREA_MM2 = 25.0
 """A hull plane is a face to stand on only if this much of the part's own surface lies in it
@@ -232,12 +234,6 @@ def _down_to_minus_z(down: np.ndarray) -> np.ndarray:
     return rot @ pre
 
 
-def _turn_matrix(turn_deg: float) -> np.ndarray:
-    t = math.radians(turn_deg)
-    c, s = math.cos(t), math.sin(t)
-    return np.array([[c, -s, 0.0], [s, c, 0.0], [0.0, 0.0, 1.0]])
-
-
 def _hull_planes(hull) -> list[tuple[np.ndarray, float]]:
     """(unit outward normal, area mm2) of each plane of a convex hull, largest first."""
     from scipy.sparse import coo_matrix
@@ -308,13 +304,15 @@ def _evaluate(mesh: TriMesh, hull_vertices: np.ndarray, normals: np.ndarray,
     }
 
 
-def _walls(mesh: TriMesh, centroids: np.ndarray, normals: np.ndarray, areas: np.ndarray,
-           min_wall: float, ignore_boxes: Sequence[tuple[Sequence[float], Sequence[float]]] = ()
+def _walls(surface: Surface, min_wall: float,
+           ignore_boxes: Sequence[tuple[Sequence[float], Sequence[float]]] = ()
            ) -> tuple[float, tuple[float, float, float], float]:
+    mesh, centroids, normals, areas = (surface.mesh, surface.centroids, surface.normals,
+                                       surface.areas)
     keep = areas >= MIN_FACET_AREA_MM2
     for lo, hi in ignore_boxes:
         keep &= ~np.all((centroids >= np.asarray(lo)) & (centroids <= np.asarray(hi)), axis=1)
-    th, _ = thickness_along_normals(RayCaster(mesh), centroids[keep], normals[keep])
+    th, _ = thickness_along_normals(surface.caster, centroids[keep], normals[keep])
     finite = np.isfinite(th)
     if not finite.any():
         lo, hi = mesh.bbox_mm()
@@ -328,12 +326,14 @@ def _walls(mesh: TriMesh, centroids: np.ndarray, normals: np.ndarray, areas: np.
 
 
 def plan_print(mesh: TriMesh, part: str, printer: Printer = DEFAULT_PRINTER,
-               ignore_boxes: Sequence[tuple[Sequence[float], Sequence[float]]] = ()
-               ) -> PrintPlan:
+               ignore_boxes: Sequence[tuple[Sequence[float], Sequence[float]]] = (),
+               surface: Surface | None = None) -> PrintPlan:
     """Choose how ``part`` lies on the bed of ``printer`` (mesh in mm, world frame).
 
     ``ignore_boxes`` are world boxes (lo, hi) whose facets the wall check skips: the label
     cut into a face leaves thin ribs between its strokes that hold nothing back.
+    ``surface``: ``mesh`` already prepared (facet data and ray index), to reuse; built here
+    when not given.
 
     Candidates are the convex-hull planes carrying at least ``FLAT_MIN_AREA_MM2`` of the part's
     own facets (the ``MAX_CANDIDATES`` largest, largest contact first, ties by normal); if
@@ -346,7 +346,11 @@ def plan_print(mesh: TriMesh, part: str, printer: Printer = DEFAULT_PRINTER,
         raise ValueError(f"part {part!r} has no facets")
     hull = mesh.to_trimesh().convex_hull
     hull_vertices = np.asarray(hull.vertices, dtype=np.float64)
-    centroids, normals, areas = face_normals(mesh)
+    if surface is None:
+        surface = Surface(mesh)
+    elif surface.mesh is not mesh:
+        raise ValueError(f"part {part!r}: the surface given was prepared from another mesh")
+    normals, areas = surface.normals, surface.areas
 
     planes = _hull_planes(hull)
     flat = []
@@ -371,8 +375,7 @@ def plan_print(mesh: TriMesh, part: str, printer: Printer = DEFAULT_PRINTER,
                    key=lambda i: (round(evaluated[i]["_excess"], _ROUND),
                                   round(evaluated[i]["overhang_area_mm2"], _ROUND), i))
     b = evaluated[best]
-    wall, where, thin = _walls(mesh, centroids, normals, areas, printer.min_wall_mm,
-                               ignore_boxes)
+    wall, where, thin = _walls(surface, printer.min_wall_mm, ignore_boxes)
     public = ("down", "fits", "turn_deg", "overhang_area_mm2", "contact_area_mm2")
     return PrintPlan(
         part=part,
@@ -413,33 +416,33 @@ def print_findings(plan: PrintPlan, printer: Printer) -> list[Finding]:
         limits = (bx, by, printer.height_mm)
         k = int(np.argmax([s - lim for s, lim in zip(plan.size_mm, limits)]))
         out.append(finding(
-            "build-volume", "error", plan.part,
+            "build-volume", Severity.ERROR, plan.part,
             f"fits in none of {len(plan.candidates)} poses on a {bed}, {printer.height_mm:g} mm"
             f" high; the closest (down {_vec(plan.down)}, turned {plan.turn_deg:.1f} deg)"
             f" needs {sx:.1f} x {sy:.1f} x {sz:.1f} mm",
             value=plan.size_mm[k], limit=limits[k]))
     elif plan.turn_deg > 0.0:
         out.append(finding(
-            "build-volume", "info", plan.part,
+            "build-volume", Severity.INFO, plan.part,
             f"fits the {bed} only turned {plan.turn_deg:.1f} deg about the vertical"
             f" (footprint {sx:.1f} x {sy:.1f} mm, height {sz:.1f} mm)",
             value=plan.turn_deg))
     if plan.contact_area_mm2 < FLAT_MIN_AREA_MM2:
         out.append(finding(
-            "flat-face", "warning", plan.part,
+            "flat-face", Severity.WARNING, plan.part,
             f"no face of {FLAT_MIN_AREA_MM2:g} mm2 or more to stand on; the largest hull plane"
             f" (down {_vec(plan.down)}) touches the bed over {plan.contact_area_mm2:.1f} mm2",
             value=plan.contact_area_mm2, limit=FLAT_MIN_AREA_MM2))
     if plan.min_wall_mm < printer.min_wall_mm:
         out.append(finding(
-            "print-wall", "warning", plan.part,
+            "print-wall", Severity.WARNING, plan.part,
             f"thinnest wall {plan.min_wall_mm:.2f} mm is under {printer.min_wall_mm:.2f} mm"
             f" ({printer.perimeters} x {printer.nozzle_mm:g} mm perimeters) over"
             f" {plan.thin_wall_area_mm2:.1f} mm2 of surface",
             value=plan.min_wall_mm, limit=printer.min_wall_mm, where=plan.min_wall_where_mm))
     if plan.overhang_area_mm2 > 0.0:
         out.append(finding(
-            "overhang", "info", plan.part,
+            "overhang", Severity.INFO, plan.part,
             f"{plan.overhang_area_mm2:.1f} mm2 of downward surface is flatter than"
             f" {90.0 - printer.overhang_deg:g} deg from horizontal and needs support or bridging",
             value=plan.overhang_area_mm2))

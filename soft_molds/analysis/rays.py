@@ -8,6 +8,8 @@ surface (``EPS_MM``) and this module jitters origins by a fixed, reproducible am
 
 from __future__ import annotations
 
+from collections.abc import Sequence
+
 import numpy as np
 
 from soft_molds.meshdata import TriMesh
@@ -17,6 +19,9 @@ EPS_MM = 1e-3
 resolution, well above float noise on coordinates of a few hundred mm)."""
 
 _JITTER_MM = 1e-4
+
+Vec3 = Sequence[float] | np.ndarray
+"""A 3-vector (a point in mm or a direction), as a sequence or a numpy array."""
 
 
 class RayCaster:
@@ -29,8 +34,10 @@ class RayCaster:
         tm = trimesh.Trimesh(mesh.vertices.copy(), mesh.faces.copy(), process=False)
         try:
             from trimesh.ray.ray_pyembree import RayMeshIntersector
-        except Exception:  # no Embree binding: trimesh's own intersector
-            from trimesh.ray.ray_triangle import RayMeshIntersector
+        except ImportError:
+            # No Embree binding: trimesh's own intersector, about 100x slower. Only a
+            # missing module falls back; any other failure of the binding is a bug to see.
+            from trimesh.ray.ray_triangle import RayMeshIntersector  # type: ignore[assignment]
         self._rays = RayMeshIntersector(tm)
 
     def first_hit(self, origins: np.ndarray, directions: np.ndarray

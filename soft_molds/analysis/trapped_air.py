@@ -14,10 +14,11 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from soft_molds.constants import AIR_PERSISTENCE_MM, AIR_PLATEAU_MM
 from soft_molds.meshdata import TriMesh
 
 from .highpoints import HighPoint, find_high_points
-from .rays import EPS_MM, RayCaster
+from .rays import EPS_MM, RayCaster, Vec3
 
 MAX_RAYS_PER_PLATEAU = 400
 
@@ -39,10 +40,13 @@ def combine(meshes: Sequence[TriMesh]) -> TriMesh:
     return TriMesh(np.concatenate(verts), np.concatenate(faces))
 
 
-def trapped_air(cast: TriMesh, up: Sequence[float], mold: TriMesh | RayCaster,
-                persistence_mm: float = 0.5, plateau_mm: float = 0.25) -> AirReport:
+def trapped_air(cast: TriMesh, up: Vec3, mold: TriMesh | RayCaster,
+                persistence_mm: float = AIR_PERSISTENCE_MM,
+                plateau_mm: float = AIR_PLATEAU_MM) -> AirReport:
     """High points of ``cast`` and which of them no opening in ``mold`` (every rigid part of
-    the closed mold, as one mesh) lets air out of."""
+    the closed mold, as one mesh, or a ray caster already built on it) lets air out of.
+    The defaults are the ones the opening planner uses (:mod:`soft_molds.constants`), so
+    the check looks for exactly the high points the planner vented."""
     u = np.asarray(up, dtype=np.float64)
     u = u / np.linalg.norm(u)
     caster = mold if isinstance(mold, RayCaster) else RayCaster(mold)

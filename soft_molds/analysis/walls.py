@@ -15,8 +15,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .demold import Surface
 from .rays import thickness_along_normals
+from .surface import Surface
 
 RESOLUTION_MM = 0.05
 """Walls are reported to this resolution."""

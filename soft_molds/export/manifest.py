@@ -34,10 +34,10 @@ from .typedjson import JsonValue, ShapeError, convert, from_json, to_json
 
 if TYPE_CHECKING:
     from ..analysis.casting import CastingPlan
-    from ..analysis.demold import PlaneScore
     from ..analysis.pressure import WallPressure
     from ..analysis.printability import PrintPlan
     from ..moldset import MoldSet, Part
+    from ..plan.model import PlaneScore
 
 MANIFEST_NAME = "manifest.json"
 UNITS = "mm"

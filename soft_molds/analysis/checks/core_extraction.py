@@ -1,0 +1,51 @@
+"""``core-extraction`` and ``core-slenderness``: pulling the core out through the inlet.
+
+The inlet ring of silicone stretches round each section of the core as it passes
+(:mod:`soft_molds.analysis.extraction`): an error when the stretch times the safety factor
+reaches the grade's elongation at break. A core long for its narrowest width may bend
+while pouring or break while pulling: a warning.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from soft_molds.constants import CORE_PULL
+
+from ..context import CheckContext
+from ..extraction import allowed_stretch, core_extraction
+from ..findings import Finding, Severity, finding
+from ..registry import CheckOutput, check
+from ..wording import point
+
+
+@check("core-extraction", "core-slenderness", order=300)
+def core_extraction_check(ctx: CheckContext) -> CheckOutput:
+    r, c = ctx.recipe, ctx.recipe.checks
+    cy, cz = r.inlet.center_mm
+    d_open = r.inlet.socket_diameter_mm
+    ext = core_extraction(ctx.core.surface.mesh, CORE_PULL, (0.0, cy, cz), np.pi * d_open)
+    elong = r.material.elongation_at_break_pct
+    k = c.core_safety_factor
+    allowed = allowed_stretch(elong, k)
+    need = k * ext.strain * 100.0
+    tears = ext.stretch > allowed + 1e-9
+    out: list[Finding] = [finding(
+        "core-extraction", Severity.ERROR if tears else Severity.INFO, "core",
+        f"pulling the core out stretches the {d_open:g} mm inlet to {ext.stretch:.2f} x its "
+        f"perimeter ({ext.section_perimeter_mm:.1f} mm section near {point(ext.where_mm)}): "
+        f"strain {ext.strain * 100:.0f} % x safety factor {k:g} = {need:.0f} % against "
+        f"elongation at break {elong:g} % ({r.material.grade})"
+        + ("; the inlet will tear: widen the socket, slim the voids or choose a more "
+           "stretchy grade" if tears else ""),
+        value=ext.stretch, limit=allowed, where=ext.where_mm)]
+    if ext.slenderness > c.core_slenderness_max:
+        out.append(finding(
+            "core-slenderness", Severity.WARNING, "core",
+            f"the core reaches {ext.free_length_mm:.1f} mm into the part but is only "
+            f"{ext.least_width_mm:.1f} mm wide near {point(ext.least_width_where_mm)} "
+            f"(length / width {ext.slenderness:.1f} > {c.core_slenderness_max:g}): it may bend "
+            "while pouring or break while pulling; print it solid, or support its far end",
+            value=ext.slenderness, limit=c.core_slenderness_max,
+            where=ext.least_width_where_mm))
+    return CheckOutput(tuple(out), ext)

@@ -1,0 +1,28 @@
+"""Numbers that more than one module must agree on, in one place (a leaf module: it
+imports nothing from the project).
+
+Lengths mm, directions unit vectors in the world frame (body long axis +x from the inlet
+face x = 0). A number used by one module only stays in that module, next to its reason.
+"""
+
+from __future__ import annotations
+
+AIR_PERSISTENCE_MM = 0.5
+"""A local high point of the cavity ceiling holds its own bubble only if it stands at least
+this far (mm, along the pour direction) above the saddle where its region joins higher
+ground; lower bumps are tessellation noise. The opening planner
+(:func:`soft_molds.analysis.highpoints.plan_openings`) places vents with it and the
+trapped-air check (:mod:`soft_molds.analysis.trapped_air`) looks for unvented high points
+with it: if they disagreed, the check would flag high points the planner ignored, or miss
+ones it vented."""
+
+AIR_PLATEAU_MM = 0.25
+"""The plateau of a high point: the surface within this height (mm, along the pour
+direction) below its peak, connected to it. Air gathers anywhere on it, so an opening that
+reaches the plateau vents the high point. Shared by the planner and the trapped-air check
+for the same reason as :data:`AIR_PERSISTENCE_MM`."""
+
+CORE_PULL = (-1.0, 0.0, 0.0)
+"""The direction the core leaves the cured part: out through the inlet opening at x = 0,
+along -x (unit vector, world frame). The review pulls the core's draft and extraction along
+it; the build records it as the core part's pull."""
