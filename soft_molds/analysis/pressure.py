@@ -12,8 +12,12 @@ shear modulus mu = E/3):
   whose limit point is about 0.750 mu H/R at mid-surface radius R (derived; a tube held at
   constant length has no limit point at all).
 
-H is the wall's thickness at its middle: the distance from the void's surface to the
-body's outer surface (exact signed distance of the recipe's primitives). Pressures kPa.
+H is the wall's thickness at its middle, measured through the silicone along the wall's own
+outward normal (the direction it bulges): from the middle of the void's face to the body's
+outer surface, found by marching along that ray on the exact signed distance of the
+body's primitives (:func:`thickness_along`). Other voids are not subtracted: the wall is
+the plate between its void and the outside, and a passage through it (the feed channel
+piercing a chamber's end wall) is not counted. Pressures kPa.
 """
 
 from __future__ import annotations
@@ -23,7 +27,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from soft_molds.recipe.model import Recipe
-from soft_molds.recipe.primitives import union_sdf
+from soft_molds.recipe.primitives import Primitive, union_sdf
 from soft_molds.units import kpa_to_psi
 
 from .findings import Finding, Severity, finding
@@ -38,6 +42,33 @@ from .rubber import (
 
 ESTIMATE = "an estimate for choosing sweep ranges, not a rating"
 
+MARCH_TOL_MM = 1e-6
+"""The march along a wall's normal stops this close to the outer surface (mm)."""
+
+MARCH_STEPS = 200
+"""At most this many steps per march (a ray square to a face needs one or two)."""
+
+
+def thickness_along(body: tuple[Primitive, ...], at: np.ndarray, normal: np.ndarray
+                    ) -> np.ndarray:
+    """Distance (mm) from each point ``at`` (n, 3) along its unit ``normal`` (n, 3) to where
+    the ray first leaves the union of ``body``; 0 for a point on or outside it.
+
+    Sphere tracing: step by the distance bound ``-union_sdf`` (exact for one primitive, a
+    lower bound of the distance to the union's surface inside it), which never steps past
+    the surface, and stop within MARCH_TOL_MM of it.
+    """
+    p = np.asarray(at, dtype=np.float64).reshape(-1, 3)
+    n = np.asarray(normal, dtype=np.float64).reshape(-1, 3)
+    n = n / np.linalg.norm(n, axis=1, keepdims=True)
+    t = np.zeros(len(p))
+    for _ in range(MARCH_STEPS):
+        step = np.maximum(-union_sdf(body, p + t[:, None] * n), 0.0)
+        if not (step > MARCH_TOL_MM).any():
+            break
+        t += step
+    return t
+
 
 @dataclass(frozen=True)
 class WallPressure:
@@ -46,7 +77,7 @@ class WallPressure:
 
     group: str
     shape: str
-    thickness_mm: float
+    thickness_mm: float               # along the wall's outward normal (module docstring)
     radius_mm: float
     at_mm: tuple[float, float, float]
     limit_kpa: float | None
@@ -70,7 +101,7 @@ def wall_pressures(r: Recipe) -> tuple[float | None, tuple[WallPressure, ...]]:
     worst: dict[str, WallPressure] = {}
     for v in r.voids:
         for m in v.membranes(length):
-            h = float(-union_sdf(body, np.asarray([m.at_mm]))[0])
+            h = float(thickness_along(body, np.asarray([m.at_mm]), np.asarray([m.normal]))[0])
             if h <= 0.0:
                 continue
             if m.shape == "bulge":

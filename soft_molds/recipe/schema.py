@@ -60,8 +60,10 @@ CHECKS_FIELDS: tuple[Field, ...] = (
     number("core_safety_factor", "safety factor on the silicone's elongation at break when "
            "the core is pulled out through the inlet", 2.0, unit="", lo=1.0, hi=10.0,
            lo_open=False),
-    number("core_slenderness_max", "free length of the core over its narrowest width above "
-           "which it is reported as likely to bend or break (rule of thumb, from memory)",
+    number("core_slenderness_max", "longest unsupported span of the core over its narrowest "
+           "width (a span ends at the inlet face, at any section 1.5 x as wide, e.g. a "
+           "chamber, or at the far end) above which it is reported as likely to bend or "
+           "break (rule of thumb, from memory)",
            15.0, unit="", lo=2.0, hi=200.0, lo_open=False),
 )
 

@@ -81,6 +81,21 @@ def test_a_stiff_silicone_fails_core_extraction_as_hand_arithmetic_says(stiff_fi
     assert "300 %" in f.message
 
 
+def test_the_finger_core_is_held_by_its_chambers_so_its_span_is_the_gap_between_them(finger):
+    # seedling-finger: chambers 5 mm deep every 8 mm, the first at (70 - 53) / 2 = 8.5 mm
+    # (the row of 7 centred on the 70 mm bar), each 12 x 8 mm across: 4 x the 2 mm feed
+    # channel, so they hold it; the 4 mm socket plug to x = 6 holds it too (2 x). Free
+    # stretches of the channel (recipe numbers): 8.5 - 6 = 2.5 mm to the first chamber,
+    # then 8 - 5 = 3 mm between neighbours: the span is 3 mm, span / width 3 / 2 = 1.5.
+    ext = finger.review.extraction
+    assert ext.free_length_mm == pytest.approx(8.5 + 6 * 8 + 5, abs=1e-6)
+    assert ext.least_width_mm == pytest.approx(2.0, rel=0.005)
+    assert ext.span_mm == pytest.approx(3.0, abs=0.02)
+    assert 5.0 < (ext.span_where_mm[0] - 8.5) % 8.0 < 8.0  # between two chambers
+    assert ext.slenderness == pytest.approx(1.5, rel=0.01)
+    assert _by_check(finger, "core-slenderness") == []
+
+
 def test_outer_silicone_wall_matches_the_recipe_numbers(bundled):
     # stem-cushion: bar 12 mm high with 2 mm rounded edges, tube socket 5 mm across on the
     # mid-plane. Past the rounded inlet edge the wall over the socket is 6 - 2.5 = 3.5 mm;

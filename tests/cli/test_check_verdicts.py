@@ -4,6 +4,7 @@ fail or warn (test recipes of the demo scenario)."""
 from __future__ import annotations
 
 import json
+from pathlib import Path
 
 from recipe_text import FINGER_TEXT, edit
 
@@ -12,6 +13,8 @@ from soft_molds.cli import main
 #: The test finger in a silicone that stretches only 300 %: pulling the core out tears the
 #: inlet (allowed stretch 1 + 3 / 2 = 2.5 against 3.05 needed; hand arithmetic).
 STIFF = edit(FINGER_TEXT, "checks:\n", "material:\n  elongation_pct: 300\nchecks:\n")
+
+ROOT = Path(__file__).resolve().parents[2]
 
 
 def test_build_refuses_to_write_on_a_failed_check_and_force_writes_it(tmp_path, capsys):
@@ -35,12 +38,16 @@ def test_check_exits_1_on_an_error_and_strict_also_on_a_warning(tmp_path, capsys
     stiff.write_text(STIFF)
     assert main(["check", str(stiff)]) == 1
     assert "FAIL" in capsys.readouterr().out
-    # The bundled finger passes but warns (its 2 mm feed channel is slender): fine by
-    # default, a failure with --strict.
-    assert main(["check", "recipes/seedling-finger.yaml"]) == 0
+    # The stem cushion with a stricter slenderness limit passes but warns: its 4 mm bore
+    # reaches 32 mm past the inlet face with nothing wider to hold it, span / width
+    # 32 / 4 = 8 > 5 (recipe numbers). Fine by default, a failure with --strict.
+    slender = tmp_path / "slender.yaml"
+    slender.write_text((ROOT / "recipes" / "stem-cushion.yaml").read_text()
+                       + "checks:\n  core_slenderness_max: 5\n")
+    assert main(["check", str(slender)]) == 0
     out = capsys.readouterr().out
     assert "WARNING core-slenderness" in out
-    assert main(["check", "--strict", "recipes/seedling-finger.yaml"]) == 1
+    assert main(["check", "--strict", str(slender)]) == 1
     assert "0 of 1 recipes passed (no errors or warnings)" in capsys.readouterr().out
 
 

@@ -2,8 +2,9 @@
 
 The inlet ring of silicone stretches round each section of the core as it passes
 (:mod:`soft_molds.analysis.extraction`): an error when the stretch times the safety factor
-reaches the grade's elongation at break. A core long for its narrowest width may bend
-while pouring or break while pulling: a warning.
+reaches the grade's elongation at break. A core whose narrow part runs long between the
+sections that hold it (span over width, defined there) may bend while pouring or break
+while pulling: a warning.
 """
 
 from __future__ import annotations
@@ -42,10 +43,9 @@ def core_extraction_check(ctx: CheckContext) -> CheckOutput:
     if ext.slenderness > c.core_slenderness_max:
         out.append(finding(
             "core-slenderness", Severity.WARNING, "core",
-            f"the core reaches {ext.free_length_mm:.1f} mm into the part but is only "
-            f"{ext.least_width_mm:.1f} mm wide near {point(ext.least_width_where_mm)} "
-            f"(length / width {ext.slenderness:.1f} > {c.core_slenderness_max:g}): it may bend "
-            "while pouring or break while pulling; print it solid, or support its far end",
-            value=ext.slenderness, limit=c.core_slenderness_max,
-            where=ext.least_width_where_mm))
+            f"the core is only {ext.least_width_mm:.1f} mm wide and runs {ext.span_mm:.1f} mm "
+            f"with nothing wider to hold it near {point(ext.span_where_mm)} (span / width "
+            f"{ext.slenderness:.1f} > {c.core_slenderness_max:g}): it may bend while pouring "
+            "or break while pulling; print it solid, or widen it along that span",
+            value=ext.slenderness, limit=c.core_slenderness_max, where=ext.span_where_mm))
     return CheckOutput(tuple(out), ext)
