@@ -19,6 +19,7 @@ from concurrent.futures import FIRST_COMPLETED, Future, ProcessPoolExecutor, wai
 from concurrent.futures.process import BrokenProcessPool
 from contextlib import contextmanager
 from dataclasses import dataclass, field
+from multiprocessing import forkserver
 from multiprocessing.context import BaseContext
 from typing import Protocol
 
@@ -141,7 +142,7 @@ class ProcessPool:
                 while batch and len(pending) < width:
                     # Submit before taking the task off the list: a broken pool raises
                     # here, and the task must stay queued for the next pool.
-                    with _helper_environment():  # workers start inside submit
+                    with _helper_environment():  # spawned workers start inside submit
                         fut = ex.submit(job.worker, batch[0].recipe, job.out_root, job.force)
                     pending[fut] = batch.pop(0)
                 finished, _ = wait(list(pending), return_when=FIRST_COMPLETED)
@@ -169,12 +170,18 @@ class ProcessPool:
 
 def _context() -> BaseContext:
     """A fork server where the platform has one (it has not run the kernel, so forking it
-    is safe), else spawned workers that import everything themselves."""
-    if "forkserver" in mp.get_all_start_methods():
-        ctx = mp.get_context("forkserver")
-        ctx.set_forkserver_preload(list(PRELOAD))
-        return ctx
-    return mp.get_context("spawn")
+    is safe), else spawned workers that import everything themselves.
+
+    The fork server and the resource tracker beside it are started here, in
+    :func:`_helper_environment`; the pool would otherwise start them on its own (the
+    tracker as soon as it makes its queues)."""
+    if "forkserver" not in mp.get_all_start_methods():
+        return mp.get_context("spawn")
+    ctx = mp.get_context("forkserver")
+    ctx.set_forkserver_preload(list(PRELOAD))
+    with _helper_environment():
+        forkserver.ensure_running()  # and the resource tracker; both stay for the process
+    return ctx
 
 
 @contextmanager

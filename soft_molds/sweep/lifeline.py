@@ -13,6 +13,10 @@ waits for its workers. So:
 
 The fork server can only import modules, so it arms itself when it imports this module
 and finds :data:`PARENT_ENV` naming its parent; nothing else sets that variable.
+
+The kernel sends the parent-death signal when the *thread* that started the process
+ends: start sweeps from a thread that outlives them (the main thread, as the command
+does). A fork server lost that way is started again by the next pool.
 """
 
 from __future__ import annotations

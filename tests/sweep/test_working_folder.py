@@ -27,8 +27,9 @@ with open(os.path.join(_here, f"ran-{__name__}-{os.getpid()}"), "w") as _f:
 raise RuntimeError("a planted module ran")
 '''
 
-#: Modules the kernel and the pipeline import (json: the manifest; inspect: dataclasses).
-NAMES = ("inspect", "json")
+#: Modules the pool's helper processes import while they start (socket: the fork server
+#: and the resource tracker) and that the kernel and the pipeline import (inspect, json).
+NAMES = ("inspect", "json", "socket")
 
 
 def _plant(folder: Path) -> None:
@@ -61,14 +62,11 @@ def test_no_module_in_the_working_folder_is_imported(args, recipes, command):
         assert len(list((recipes / "out").rglob("manifest.json"))) == n
 
 
-def test_no_module_in_the_working_folder_is_imported_on_a_dask_cluster(recipes, command,
-                                                                       monkeypatch):
+def test_no_module_in_the_working_folder_is_imported_on_a_dask_cluster(recipes, command):
     distributed = pytest.importorskip("distributed")
     _plant(recipes)
-    # The cluster is started in the working folder too, as someone would on one machine.
-    monkeypatch.chdir(recipes)
     with distributed.LocalCluster(n_workers=1, threads_per_worker=1, processes=True,
-                                  host="127.0.0.1", dashboard_address=None) as cluster:
+                                  host="127.0.0.1", dashboard_address="127.0.0.1:0") as cluster:
         done = _run(command("sweep", "cushion.yaml", "--out", "out", "--scheduler",
                             cluster.scheduler_address), recipes)
     assert _ran(recipes) == []
