@@ -31,7 +31,7 @@ import time
 from multiprocessing.connection import wait
 
 PARENT_ENV = "SOFT_MOLDS_SWEEP_PARENT"
-"""Set (to the sweep's pid) only while the sweep starts its fork server."""
+"""Set (to the sweep's pid) only while the sweep starts its pool's processes."""
 
 _PR_SET_PDEATHSIG = 1  # linux/prctl.h
 
@@ -84,8 +84,13 @@ def bind_worker() -> None:
 
 def _arm_fork_server() -> None:
     wanted = os.environ.pop(PARENT_ENV, None)
-    if wanted is not None and wanted == str(os.getppid()):
-        bind_to_parent(int(wanted))
+    if wanted is None:
+        return
+    # Importing this module imports the package first (about a second): the sweep that
+    # started this process may have died meanwhile, and then this process was re-parented.
+    if wanted != str(os.getppid()):
+        os._exit(1)
+    bind_to_parent(int(wanted))
 
 
 _arm_fork_server()
