@@ -173,6 +173,7 @@ def cmd_build(args: argparse.Namespace) -> int:
     if why is not None:
         print(f"error: cannot write under {args.out}: {why}; nothing built", file=sys.stderr)
         return 1
+    from .analysis.findings import refuses_to_write, verdict
     from .pipeline import build
 
     status = 0
@@ -197,7 +198,7 @@ def cmd_build(args: argparse.Namespace) -> int:
             print(line)
         for line in _weigh_out(molds):
             print(line)
-        if molds.errors and not args.force:
+        if refuses_to_write(verdict(molds.findings), args.force):
             print(f"error: {r.source}: {r.label}: {len(molds.errors)} check(s) failed; nothing "
                   "written (fix the recipe, or pass --force to write the files anyway)",
                   file=sys.stderr)

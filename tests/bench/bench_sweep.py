@@ -1,16 +1,21 @@
 """Sweep benchmark (not collected by pytest): throughput of ``--jobs 2`` against
 ``--jobs 1`` on a 20-variant sweep of the bundled seedling finger, peak memory per
-worker, and resident memory drift of the workers across a 100-variant run.
+worker, resident memory drift of the workers across a 100-variant run, and how long the
+pool's processes outlive a sweep killed with ``kill -9`` (Linux).
 
-    .venv/bin/python tests/bench/bench_sweep.py
+    .venv/bin/python tests/bench/bench_sweep.py [--only kill]
 
 Both throughput runs happen in this one process run, back to back, so their ratio is
-measured under the same machine load. Targets: ratio >= 1.8 on two cores; drift <= 10 %.
+measured under the same machine load. Targets: ratio >= 1.8 on two cores; drift <= 10 %;
+helpers gone well under a second after the kill.
 """
 
 from __future__ import annotations
 
+import os
+import signal
 import statistics
+import subprocess
 import sys
 import tempfile
 import time
@@ -53,7 +58,53 @@ def timed(text: str, name: str, jobs: int, **kw):
         return time.perf_counter() - t, outcomes
 
 
+def _session(sid: int) -> set[int]:
+    """Live (not zombie) processes of session ``sid`` (proc(5): state, ppid, pgrp, sid)."""
+    out = set()
+    for name in filter(str.isdigit, os.listdir("/proc")):
+        try:
+            with open(f"/proc/{name}/stat") as f:
+                fields = f.read().rsplit(")", 1)[1].split()
+        except OSError:
+            continue
+        if fields[0] != "Z" and int(fields[3]) == sid:
+            out.add(int(name))
+    return out
+
+
+def outlive_kill() -> None:
+    """Kill a two-worker sweep mid-variant; time until its last helper process ends."""
+    with tempfile.TemporaryDirectory() as d:
+        p = Path(d) / "cushion2.yaml"
+        p.write_text(CUSHION.replace("count: 100", "count: 2"))
+        proc = subprocess.Popen([sys.executable, "-m", "soft_molds", "sweep", str(p),
+                                 "--jobs", "2", "--out", str(Path(d) / "out")], cwd=d,
+                                stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL,
+                                start_new_session=True)
+        try:
+            while len(_session(proc.pid)) < 5 and proc.poll() is None:  # + tracker, server
+                time.sleep(0.05)
+            time.sleep(1.0)
+            helpers = _session(proc.pid) - {proc.pid}
+            os.kill(proc.pid, signal.SIGKILL)
+            proc.wait()
+            t = time.perf_counter()
+            while _session(proc.pid) & helpers and time.perf_counter() - t < 60:
+                time.sleep(0.005)
+            print(f"kill -9 of a two-worker sweep: its {len(helpers)} helper processes "
+                  f"(resource tracker, fork server, workers) gone after "
+                  f"{time.perf_counter() - t:.3f} s")
+        finally:
+            try:
+                os.killpg(proc.pid, signal.SIGKILL)
+            except ProcessLookupError:
+                pass
+
+
 def main() -> None:
+    if sys.argv[1:] == ["--only", "kill"]:
+        outlive_kill()
+        return
     t1, o1 = timed(SWEEP20, "finger20", 1)
     t2, o2 = timed(SWEEP20, "finger20", 2)
     assert all(o.status == "built" for o in o1 + o2), [o.reason for o in o1 + o2 if o.reason]
@@ -71,6 +122,8 @@ def main() -> None:
           f"variant: median {first:.0f} MB early, {last:.0f} MB late, max {max(rss):.0f} MB; "
           f"drift {100 * (last - first) / first:+.1f} % (target <= 10 %); "
           f"{len({x.worker_pid for x in o})} worker processes used")
+    if sys.platform.startswith("linux"):
+        outlive_kill()
 
 
 if __name__ == "__main__":

@@ -28,10 +28,13 @@ def examples() -> dict[str, str]:
 @contextmanager
 def registered(name: str, table: dict) -> Iterator[dict]:
     """Run the example; take what it registered out of ``table`` afterwards."""
+    from soft_molds.analysis.registry import registered_checks
+    from soft_molds.export.formats import output_formats
     from soft_molds.plan.processes import processes
     from soft_molds.recipe.registry import body_kinds
 
-    body_kinds(), processes()  # load the bundled ones first: only the example's are removed
+    # Load the bundled ones first: only what the example adds is removed afterwards.
+    body_kinds(), processes(), registered_checks(), output_formats()
     before = dict(table)
     module = types.ModuleType(f"guide_example_{name.replace('-', '_')}")
     sys.modules[module.__name__] = module  # dataclasses look their module up
@@ -47,7 +50,8 @@ def registered(name: str, table: dict) -> Iterator[dict]:
 
 
 def test_the_guide_has_every_worked_example():
-    assert set(examples()) >= {"body-kind", "void-kind", "casting-process"}
+    assert set(examples()) == {"body-kind", "void-kind", "check", "output-format",
+                               "casting-process"}
 
 
 def _rounded_box_volume(a: float, b: float, c: float, r: float) -> float:
@@ -118,3 +122,51 @@ def test_the_casting_process_example_registers_and_gives_its_steps():
         steps = steps_of("two-pour", recipe_from_text(FINGER_TEXT, "f.yaml", "f"))
     assert [s.name for s in steps] == ["skin", "fill"]
     assert "two-pour" not in PROCESSES
+
+
+def test_the_check_example_measures_the_gap_between_openings(finger):
+    import dataclasses
+
+    from soft_molds.analysis.context import CheckContext
+    from soft_molds.analysis.registry import _CHECKS, registered_checks
+    from soft_molds.analysis.review import run_checks
+    from soft_molds.plan import Opening
+
+    ctx = CheckContext.for_step(
+        finger.plan, finger.part("cast").mesh,
+        {p.name: (p.mesh, p.pull_dir) for p in finger.parts if p.role != "cast"},
+        {lab.part: [lab.box] for lab in finger.labels})
+    with registered("check", _CHECKS) as ns:
+        assert "opening-spacing" in [c.names[0] for c in registered_checks()]
+        # Two holes 4.5 mm apart centre to centre, radii 2 and 1: 1.5 mm of plastic
+        # between them (closed form), below the 1.6 mm bridge; one 10 mm off is fine.
+        close = (Opening("sprue", (10.0, 0.0, 7.0), 2.0), Opening("vent", (14.5, 0.0, 7.0), 1.0))
+        got = ns["opening_spacing"](dataclasses.replace(ctx, openings=close)).findings
+        assert [round(f.value, 9) for f in got] == [1.5]
+        far = (close[0], Opening("vent", (22.0, 0.0, 9.0), 1.0))
+        assert ns["opening_spacing"](dataclasses.replace(ctx, openings=far)).findings == ()
+        rev = run_checks(ctx)
+    # The bundled finger's own openings, checked by hand: every pair's edge-to-edge gap.
+    ops = finger.openings
+    gaps = [math.dist(a.center_mm[:2], b.center_mm[:2]) - a.radius_mm - b.radius_mm
+            for i, a in enumerate(ops) for b in ops[i + 1:]]
+    flagged = [f for f in rev.findings if f.check == "opening-spacing"]
+    assert len(flagged) == sum(g < 1.6 for g in gaps)
+
+
+def test_the_output_format_example_writes_what_the_manifest_says(finger):
+    import csv
+    import io
+
+    from soft_molds.export.formats import _FORMATS
+    from soft_molds.export.writer import encode_mold_set
+
+    with registered("output-format", _FORMATS):
+        first = encode_mold_set(finger, formats=["parts-csv"])
+        again = encode_mold_set(finger, formats=["parts-csv"])
+    assert first.files["parts.csv"] == again.files["parts.csv"]
+    rows = list(csv.DictReader(io.StringIO(first.files["parts.csv"].decode())))
+    assert [r["part"] for r in rows] == [p.name for p in finger.parts]
+    for row, part in zip(rows, finger.parts):
+        assert float(row["volume_mm3"]) == pytest.approx(part.brep_volume_mm3, abs=2e-3)
+    assert sorted(first.files) == ["manifest.json", "parts.csv"]

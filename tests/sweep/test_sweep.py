@@ -172,7 +172,7 @@ def test_a_two_worker_dask_cluster_on_loopback_writes_the_same_bytes(one_job, re
     distributed = pytest.importorskip("distributed")
     out1, _, _ = one_job
     with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
-                                  host="127.0.0.1", dashboard_address=None) as cluster:
+                                  host="127.0.0.1", dashboard_address="127.0.0.1:0") as cluster:
         outcomes, _ = run_sweep(plan_tasks([recipe_file]), tmp_path, progress=Quiet(),
                                 scheduler=cluster.scheduler_address)
     assert [o.status for o in outcomes] == ["built"] * 3

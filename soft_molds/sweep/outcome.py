@@ -1,0 +1,71 @@
+"""What became of one variant of a sweep."""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Iterable
+from dataclasses import dataclass, field
+from enum import StrEnum
+
+from ..analysis.findings import Verdict
+from ..recipe.model import Recipe
+from .plan import Task
+
+
+class Status(StrEnum):
+    """built; up to date (an earlier run wrote it, nothing done); refused (an error-level
+    check, nothing written); failed (recipe, kernel or mesh error, or a dead worker)."""
+
+    BUILT = "built"
+    UP_TO_DATE = "up to date"
+    REFUSED = "refused"
+    FAILED = "failed"
+
+
+@dataclass(frozen=True)
+class Outcome:
+    """One variant's result. ``verdict`` is None when nothing was built; ``silicone_cm3``
+    and ``mix_g`` (grams of every portion weighed out) are None unless it was built or is
+    up to date; the worker figures (MB) are the worker's resident memory after the
+    variant and its peak so far."""
+
+    recipe: str
+    label: str
+    family: str
+    status: Status
+    reason: str = ""
+    verdict: Verdict | None = None
+    errors: int = 0
+    warnings: int = 0
+    seconds: float = 0.0
+    silicone_cm3: float | None = None
+    mix_g: float | None = None
+    changed: dict[str, object] = field(default_factory=dict)
+    out_dir: str = ""
+    worker_pid: int = 0
+    worker_rss_mb: float = 0.0
+    worker_peak_mb: float = 0.0
+
+    @property
+    def ok(self) -> bool:
+        return self.status in (Status.BUILT, Status.UP_TO_DATE)
+
+
+Worker = Callable[[Recipe, str, bool], Outcome]
+"""Builds, checks and writes one variant: (recipe, absolute output root, force)."""
+
+
+def failed(t: Task, reason: str) -> Outcome:
+    """The outcome of a task whose worker raised or died."""
+    return Outcome(t.recipe.name, t.recipe.label, t.spec.family, Status.FAILED, reason=reason)
+
+
+def exception_reason(exc: BaseException) -> str:
+    """The first line of an exception, with its type: what the summary shows."""
+    return f"{type(exc).__name__}: {exc}".splitlines()[0]
+
+
+def report_figures(silicone_volume_mm3: float, portions_g: Iterable[float]
+                   ) -> tuple[float, float]:
+    """(silicone in cm3, grams weighed out in all) as the summary shows them, from the
+    figures the manifest records (so a built and an up-to-date variant agree)."""
+    return round(silicone_volume_mm3 / 1000.0, 3), round(sum(portions_g), 3)
