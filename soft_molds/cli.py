@@ -250,6 +250,7 @@ def cmd_check(args: argparse.Namespace) -> int:
 
 
 def cmd_sweep(args: argparse.Namespace) -> int:
+    from .export.claim import FolderBusyError
     from .sweep import Progress, SweepInputError, plan_tasks, run_sweep, write_reports
 
     try:
@@ -266,6 +267,9 @@ def cmd_sweep(args: argparse.Namespace) -> int:
                                           recycle_after=args.recycle_after,
                                           progress=Progress(len(tasks)),
                                           scheduler=args.scheduler)
+    except FolderBusyError as exc:  # another run is filling the same folders: not bad input
+        print(f"error: {exc}", file=sys.stderr)
+        return 1
     except SoftMoldsError as exc:
         print(f"error: {exc}", file=sys.stderr)
         return 2

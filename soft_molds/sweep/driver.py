@@ -8,6 +8,7 @@ from collections.abc import Sequence
 from dataclasses import replace
 from pathlib import Path
 
+from ..export.claim import claim_recipe_folders
 from .cache import earlier_outcome
 from .executors import DEFAULT_RECYCLE_AFTER, Executor, Job, make_executor
 from .outcome import Outcome, Worker
@@ -39,20 +40,22 @@ def run_sweep(tasks: Sequence[Task], out_root: str | os.PathLike[str], jobs: int
     def note(line: str) -> None:
         print(line, file=prog.stream, flush=True)
 
-    todo = []
-    for t in tasks:
-        earlier = earlier_outcome(t, root, force)
-        if earlier is None:
-            todo.append(t)
-        else:
-            report(t, earlier)
-    if isinstance(prog, Progress):
-        prog.start_work()
-    interrupted = False
-    if todo:
-        ex = executor if executor is not None else make_executor(jobs, recycle_after,
-                                                                   scheduler)
-        interrupted = ex.run(todo, Job(worker, root, force), report, note)
+    # One run at a time fills a recipe's family folder: a second fails at once.
+    with claim_recipe_folders(Path(root), (t.recipe.name for t in tasks)):
+        todo = []
+        for t in tasks:
+            earlier = earlier_outcome(t, root, force)
+            if earlier is None:
+                todo.append(t)
+            else:
+                report(t, earlier)
+        if isinstance(prog, Progress):
+            prog.start_work()
+        interrupted = False
+        if todo:
+            ex = executor if executor is not None else make_executor(jobs, recycle_after,
+                                                                       scheduler)
+            interrupted = ex.run(todo, Job(worker, root, force), report, note)
     return [_with_spec(outcomes[t.key], t) for t in tasks if t.key in outcomes], interrupted
 
 
