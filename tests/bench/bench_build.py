@@ -15,6 +15,7 @@ worker), with every kernel entry point timed:
 - check: validity and mass-property (volume, centre) calls made to check what the kernel
   returned;
 - convert: the rest of the tessellation (triangulation read into arrays, vertex welding);
+- mesh check: the integrity check of every part's mesh (closed, consistent, volume);
 - analysis: sprue/vent planning and the review, less any kernel time inside them;
 - write: encoding and writing files, less the STEP translator;
 - other: everything else (layout, label planning, bookkeeping).
@@ -39,7 +40,7 @@ from typing import Any
 ROOT = Path(__file__).resolve().parents[2]
 
 STAGES = ["load", "body", "core", "tessellate", "features", "shell", "write"]
-SPLIT = ["kernel", "step", "check", "convert", "analysis", "write", "other"]
+SPLIT = ["kernel", "step", "check", "convert", "mesh check", "analysis", "write", "other"]
 
 #: cadquery methods that run OCCT construction algorithms (class name, method name).
 KERNEL_METHODS = [
@@ -121,15 +122,25 @@ def instrument() -> tuple[Meter, dict[str, float]]:
     tess.BRepMesh_IncrementalMesh = meter.timed("kernel", tess.BRepMesh_IncrementalMesh)
     tess.step_bytes = meter.timed("step", tess.step_bytes)
     own: dict[str, float] = {}
-    inner = tess.tessellate
+    _envelope(meter, own, tess, "tessellate", "convert")
+    from soft_molds import pipeline
+
+    # The pipeline's mesh integrity check (closedness, winding, volume against the BRep).
+    if hasattr(pipeline, "check_mesh"):
+        _envelope(meter, own, pipeline, "check_mesh", "mesh check")
+    return meter, own
+
+
+def _envelope(meter: Meter, own: dict[str, float], owner: Any, attr: str, key: str) -> None:
+    """Replace ``owner.attr`` by a wrapper adding its non-kernel seconds to ``own[key]``."""
+    inner = getattr(owner, attr)
 
     @functools.wraps(inner)
-    def tessellate(*args: Any, **kwargs: Any) -> Any:
-        with meter.envelope(own, "convert"):
+    def wrapper(*args: Any, **kwargs: Any) -> Any:
+        with meter.envelope(own, key):
             return inner(*args, **kwargs)
 
-    tess.tessellate = tessellate
-    return meter, own
+    setattr(owner, attr, wrapper)
 
 
 def _build_and_write(r: Any) -> tuple[Any, float]:
@@ -167,6 +178,7 @@ def child(src: str) -> None:
     warm, total = _build_and_write(r)
     ts = warm.timings_s
     split = dict(meter.seconds, convert=own.get("convert", 0.0))
+    split["mesh check"] = own.get("mesh check", 0.0)
     # The analysis stages and writing hold no kernel call but the STEP translator (write).
     split["analysis"] = ts.get("analysis", 0.0) + ts.get("features", 0.0)
     split["write"] = ts.get("write", 0.0) - meter.seconds["step"]
@@ -196,9 +208,9 @@ parting: {{axis: z, offset_mm: 1}}
 def _share_row(name: str, w: dict[str, Any]) -> str:
     total = w["total"]
     kernel = w["kernel"] + w["step"]
-    return (f"{name:<18}{total:>8.2f}" + "".join(f"{w[s]:>9.3f}" for s in SPLIT)
+    return (f"{name:<18}{total:>8.2f}" + "".join(f"{w[s]:>11.3f}" for s in SPLIT)
             + f"{100 * kernel / total:>9.0f}%{100 * w['kernel'] / total:>9.0f}%"
-            + f"{w['calls']['check']:>7}")
+            + f"{w['calls']['check']:>9}")
 
 
 def main() -> None:
@@ -228,8 +240,8 @@ def main() -> None:
     print()
     print("warm build and write, seconds: kernel (OCCT construction and meshing), step "
           "(STEP translator), our own work")
-    print(f"{'recipe':<18}{'total':>8}" + "".join(f"{s:>9}" for s in SPLIT)
-          + f"{'kernel':>10}{'w/o STEP':>10}{'checks':>7}")
+    print(f"{'recipe':<18}{'total':>8}" + "".join(f"{s:>11}" for s in SPLIT)
+          + f"{'kernel':>10}{'w/o STEP':>10}{'checks#':>9}")
     for name, r in rows:
         print(_share_row(name, r["warm"]))
     shares = [(r["warm"]["kernel"] + r["warm"]["step"]) / r["warm"]["total"] for _, r in rows]
