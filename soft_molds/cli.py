@@ -299,18 +299,18 @@ def cmd_sweep(args: argparse.Namespace) -> int:
 
 
 def cmd_reference(args: argparse.Namespace) -> int:
-    from .recipe.reference import reference_markdown, splice
+    from .recipe.reference import reference_markdown
 
     if args.update is None:
         print(reference_markdown(), end="")
         return 0
     from pathlib import Path
 
-    from .export.files import write_atomic
+    from .export.reference import update_reference
 
     path = Path(args.update)
     try:
-        write_atomic(path, splice(path.read_text()).encode())
+        update_reference(path)
     except (OSError, ValueError) as exc:
         print(f"error: cannot update {path}: {exc}", file=sys.stderr)
         return 1

@@ -36,7 +36,7 @@ if TYPE_CHECKING:
     from ..analysis.casting import CastingPlan
     from ..analysis.pressure import WallPressure
     from ..analysis.printability import PrintPlan
-    from ..moldset import MoldSet, Part
+    from ..analysis.result import BuiltMoldSet, Part
     from ..plan.model import PlaneScore
 
 MANIFEST_NAME = "manifest.json"
@@ -389,7 +389,7 @@ def _check_consistent(man: Manifest, source: str | os.PathLike[str]) -> None:
 # --- making it from a build ---------------------------------------------------------------
 
 
-def manifest_of(molds: MoldSet) -> Manifest:
+def manifest_of(molds: BuiltMoldSet) -> Manifest:
     """The manifest of ``molds`` with no ``files`` yet (see :meth:`Manifest.with_files`)."""
     r = molds.recipe
     lay = molds.layout

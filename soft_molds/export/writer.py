@@ -20,7 +20,7 @@ from .formats import output_formats
 from .manifest import MANIFEST_NAME, Manifest, manifest_bytes, manifest_of
 
 if TYPE_CHECKING:
-    from ..moldset import MoldSet
+    from ..analysis.result import BuiltMoldSet
 
 
 @dataclass(frozen=True)
@@ -48,7 +48,7 @@ def output_dir(root: str | os.PathLike[str], recipe: str, label: str) -> Path:
     return Path(root) / recipe / label
 
 
-def encode_mold_set(molds: MoldSet, formats: Sequence[str] | None = None) -> EncodedSet:
+def encode_mold_set(molds: BuiltMoldSet, formats: Sequence[str] | None = None) -> EncodedSet:
     """The files of ``molds`` in the ``formats`` named (default: every registered one),
     then ``manifest.json`` recording every other file's SHA-256, so a resumed sweep can
     tell a finished set from one a killed run left behind. ValueError for an unknown
@@ -73,7 +73,7 @@ def encode_mold_set(molds: MoldSet, formats: Sequence[str] | None = None) -> Enc
     return EncodedSet(out, man)
 
 
-def write_mold_set(molds: MoldSet, root: str | os.PathLike[str] = "out",
+def write_mold_set(molds: BuiltMoldSet, root: str | os.PathLike[str] = "out",
                    formats: Sequence[str] | None = None) -> WrittenSet:
     """Encode ``molds`` (see :func:`encode_mold_set`) and write the set under
     ``root/<recipe>/<label>/``: each file appears complete or not at all, the manifest

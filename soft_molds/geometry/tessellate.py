@@ -5,18 +5,21 @@ from __future__ import annotations
 import io
 import math
 import re
+import struct
 
 import numpy as np
-from OCP.BRep import BRep_Tool
+from OCP.BinTools import BinTools, BinTools_FormatVersion
+from OCP.BRep import BRep_Builder, BRep_Tool
 from OCP.BRepMesh import BRepMesh_IncrementalMesh
 from OCP.BRepTools import BRepTools
 from OCP.IFSelect import IFSelect_ReturnStatus
 from OCP.Interface import Interface_Static
+from OCP.Poly import Poly_Triangulation
 from OCP.STEPControl import STEPControl_AsIs, STEPControl_Writer
 from OCP.TopAbs import TopAbs_FACE, TopAbs_REVERSED
 from OCP.TopExp import TopExp_Explorer
 from OCP.TopLoc import TopLoc_Location
-from OCP.TopoDS import TopoDS
+from OCP.TopoDS import TopoDS, TopoDS_Compound, TopoDS_Face, TopoDS_Shape
 from scipy.spatial import cKDTree
 
 from ..errors import GeometryError
@@ -30,7 +33,10 @@ MERGE_MM = 1e-6
 
 def tessellate(shape: Shape, chord_mm: float, angle_deg: float, part: str) -> TriMesh:
     """Mesh ``shape`` with at most ``chord_mm`` facet-to-surface distance (absolute, not
-    relative to the part size) and ``angle_deg`` between neighbouring facets."""
+    relative to the part size) and ``angle_deg`` between neighbouring facets.
+
+    Vertices are the faces' nodes in face order (the kernel's explorer order), triangles
+    likewise, before welding: the STL bytes depend on this order."""
     wrapped = shape.wrapped
     BRepTools.Clean_s(wrapped)  # a cached finer/coarser mesh would be reused silently
     from .kernel import parallel
@@ -39,9 +45,29 @@ def tessellate(shape: Shape, chord_mm: float, angle_deg: float, part: str) -> Tr
                                       parallel())
     if not mesher.IsDone():
         raise GeometryError("tessellate", "the mesher did not finish", part)
+    faces = _face_triangulations(wrapped, part)
+    if not faces:
+        raise GeometryError("tessellate", "the shape has no faces", part)
+    arrays = _read_triangulations([tri for tri, _, _ in faces], part)
     verts: list[np.ndarray] = []
     tris: list[np.ndarray] = []
     base = 0
+    for (_, loc, reversed_), (pts, idx) in zip(faces, arrays):
+        if not loc.IsIdentity():
+            t = loc.Transformation()
+            rot = np.array([[t.Value(r, c) for c in (1, 2, 3)] for r in (1, 2, 3)])
+            pts = pts @ rot.T + np.array([t.Value(r, 4) for r in (1, 2, 3)])
+        verts.append(pts)
+        tris.append((idx[:, ::-1] if reversed_ else idx) + base)
+        base += len(pts)
+    return merge_vertices(np.concatenate(verts), np.concatenate(tris))
+
+
+def _face_triangulations(wrapped: TopoDS_Shape, part: str
+                         ) -> list[tuple[Poly_Triangulation, TopLoc_Location, bool]]:
+    """Every face's triangulation, its location and whether the face is reversed, in the
+    explorer's face order."""
+    out = []
     exp = TopExp_Explorer(wrapped, TopAbs_FACE)
     while exp.More():
         face = TopoDS.Face_s(exp.Current())
@@ -49,24 +75,61 @@ def tessellate(shape: Shape, chord_mm: float, angle_deg: float, part: str) -> Tr
         tri = BRep_Tool.Triangulation_s(face, loc)
         if tri is None:
             raise GeometryError("tessellate", "a face has no triangulation", part)
-        n = tri.NbNodes()
-        pts = np.array([tri.Node(i).Coord() for i in range(1, n + 1)], dtype=np.float64)
-        if not loc.IsIdentity():
-            t = loc.Transformation()
-            rot = np.array([[t.Value(r, c) for c in (1, 2, 3)] for r in (1, 2, 3)])
-            pts = pts @ rot.T + np.array([t.Value(r, 4) for r in (1, 2, 3)])
-        m = tri.NbTriangles()
-        idx = np.array([tri.Triangle(i).Get() for i in range(1, m + 1)], dtype=np.int64)
-        idx -= 1
-        if face.Orientation() == TopAbs_REVERSED:
-            idx = idx[:, ::-1]
-        verts.append(pts)
-        tris.append(idx + base)
-        base += n
+        out.append((tri, loc, face.Orientation() == TopAbs_REVERSED))
         exp.Next()
-    if not verts:
-        raise GeometryError("tessellate", "the shape has no faces", part)
-    return merge_vertices(np.concatenate(verts), np.concatenate(tris))
+    return out
+
+
+#: One triangulation record of the kernel's binary shape format (version 4, little-endian,
+#: unpadded): node count, triangle count, has-UV flag, has-normals flag, deflection.
+_RECORD = struct.Struct("<iibbd")
+_FORMAT_V4 = b"\nOpen CASCADE Topology V4,"
+
+
+def _read_triangulations(tris: list[Poly_Triangulation], part: str
+                         ) -> list[tuple[np.ndarray, np.ndarray]]:
+    """Each triangulation's nodes (n, 3) float64 in its face's frame and triangles (m, 3)
+    int64 numbered from 0.
+
+    OCP has no array view of a triangulation and reading it a node at a time costs two
+    binding calls per node (most of the conversion time). Instead the triangulations are
+    hung on bare faces of one compound and written by the kernel's binary shape writer in
+    one call; its triangulation section holds every record in the compound's order, the
+    coordinates as the kernel's own doubles (bit for bit), so the arrays are read straight
+    from the bytes. Every record's sizes are checked against the triangulation's."""
+    builder = BRep_Builder()
+    compound = TopoDS_Compound()
+    builder.MakeCompound(compound)
+    for tri in tris:
+        face = TopoDS_Face()
+        builder.MakeFace(face, tri)
+        builder.Add(compound, face)
+    stream = io.BytesIO()
+    BinTools.Write_s(compound, stream, True, False,
+                     BinTools_FormatVersion.BinTools_FormatVersion_VERSION_4)
+    data = stream.getvalue()
+    head = data.find(b"\nTriangulations ")
+    if not data.startswith(_FORMAT_V4) or head < 0:
+        raise GeometryError("tessellate", "unexpected layout of the kernel's mesh data", part)
+    line_end = data.index(b"\n", head + 1)
+    count = int(data[head + len(b"\nTriangulations "):line_end])
+    if count != len(tris):
+        raise GeometryError("tessellate", f"{count} triangulations read for {len(tris)} "
+                            "faces (a triangulation shared by two faces)", part)
+    pos = line_end + 1
+    out = []
+    for tri in tris:
+        n, m, has_uv, has_normals, _ = _RECORD.unpack_from(data, pos)
+        if (n, m, has_normals) != (tri.NbNodes(), tri.NbTriangles(), 0):
+            raise GeometryError("tessellate", "a triangulation record does not match its "
+                                "face", part)
+        pos += _RECORD.size
+        pts = np.frombuffer(data, "<f8", 3 * n, pos).reshape(n, 3)
+        pos += 24 * n + (16 * n if has_uv else 0)
+        idx = np.frombuffer(data, "<i4", 3 * m, pos).reshape(m, 3).astype(np.int64) - 1
+        pos += 12 * m
+        out.append((pts.astype(np.float64), idx))
+    return out
 
 
 def merge_vertices(v: np.ndarray, f: np.ndarray, tol: float = MERGE_MM) -> TriMesh:

@@ -19,10 +19,10 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 if TYPE_CHECKING:
-    from ...moldset import MoldSet
+    from ...analysis.result import BuiltMoldSet
     from ..manifest import Manifest
 
-Encoder = Callable[["MoldSet", "Manifest"], Mapping[str, bytes]]
+Encoder = Callable[["BuiltMoldSet", "Manifest"], Mapping[str, bytes]]
 
 
 @dataclass(frozen=True)

@@ -8,12 +8,12 @@ from ..card import card_files
 from . import output_format
 
 if TYPE_CHECKING:
-    from ...moldset import MoldSet
+    from ...analysis.result import BuiltMoldSet
     from ..manifest import Manifest
 
 
 @output_format("casting-card", "what to weigh, the steps of a cast and the cautions")
-def casting_card_files(molds: MoldSet, manifest: Manifest) -> dict[str, bytes]:
+def casting_card_files(molds: BuiltMoldSet, manifest: Manifest) -> dict[str, bytes]:
     if manifest.casting is None:
         return {}
     return card_files([manifest], f"{manifest.recipe} {manifest.label}")

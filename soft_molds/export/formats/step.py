@@ -9,12 +9,12 @@ from typing import TYPE_CHECKING
 from . import output_format
 
 if TYPE_CHECKING:
-    from ...moldset import MoldSet
+    from ...analysis.result import BuiltMoldSet
     from ..manifest import Manifest
 
 
 @output_format("step", "STEP AP214 of every part, mm (for CAD)")
-def step_files(molds: MoldSet, manifest: Manifest) -> dict[str, bytes]:
+def step_files(molds: BuiltMoldSet, manifest: Manifest) -> dict[str, bytes]:
     # Imported here: listing the formats must not load the CAD kernel.
     from ...geometry.tessellate import step_bytes
 

@@ -1,0 +1,111 @@
+"""The kernel wrappers measure once and read meshes as arrays without changing a number.
+
+References: closed-form volumes of a box and a cylinder (elementary geometry);
+OCCT's own per-node accessors of a triangulation (``Poly_Triangulation.Node`` and
+``Triangle``), read one at a time; trimesh for closedness and mesh volume.
+"""
+
+from __future__ import annotations
+
+import math
+
+import cadquery as cq
+import numpy as np
+import pytest
+import trimesh
+from OCP.BRep import BRep_Tool
+from OCP.TopAbs import TopAbs_FACE, TopAbs_REVERSED
+from OCP.TopExp import TopExp_Explorer
+from OCP.TopLoc import TopLoc_Location
+from OCP.TopoDS import TopoDS
+
+from soft_molds.geometry import kernel
+from soft_molds.geometry.tessellate import merge_vertices, tessellate
+
+
+def _drilled_block() -> cq.Shape:
+    """A 40 x 30 x 20 mm box with a 6 mm radius hole through z (cylinder faces are
+    curved, the hole's faces reversed against the box's)."""
+    block = kernel.box((0, 0, 0), (40, 30, 20))
+    hole = kernel.cylinder(2, (20, 15, -1), 22, 6)
+    return kernel.cut(block, [hole], "block", "drill", volume_mm3=40 * 30 * 20
+                      - math.pi * 36 * 20)
+
+
+def _node_by_node(shape: cq.Shape, chord_mm: float, angle_deg: float):
+    """The mesh read one node and one triangle at a time through the bindings, welded the
+    same way: the reference the array reading must equal."""
+    tessellate(shape, chord_mm, angle_deg, "ref")  # meshes the shape in place
+    verts, tris, base = [], [], 0
+    exp = TopExp_Explorer(shape.wrapped, TopAbs_FACE)
+    while exp.More():
+        face = TopoDS.Face_s(exp.Current())
+        loc = TopLoc_Location()
+        tri = BRep_Tool.Triangulation_s(face, loc)
+        pts = np.array([tri.Node(i).Coord() for i in range(1, tri.NbNodes() + 1)])
+        if not loc.IsIdentity():
+            t = loc.Transformation()
+            rot = np.array([[t.Value(r, c) for c in (1, 2, 3)] for r in (1, 2, 3)])
+            pts = pts @ rot.T + np.array([t.Value(r, 4) for r in (1, 2, 3)])
+        idx = np.array([tri.Triangle(i).Get() for i in range(1, tri.NbTriangles() + 1)]) - 1
+        if face.Orientation() == TopAbs_REVERSED:
+            idx = idx[:, ::-1]
+        verts.append(pts)
+        tris.append(idx + base)
+        base += len(pts)
+        exp.Next()
+    return merge_vertices(np.concatenate(verts), np.concatenate(tris))
+
+
+@pytest.mark.parametrize("make", [
+    _drilled_block,
+    # A moved hemisphere (cadquery's default sphere): its faces carry a location, which
+    # the reading must apply.
+    lambda: cq.Solid.makeSphere(7.5).moved(cq.Location(cq.Vector(3, -2, 11))),
+], ids=["drilled-block", "moved-hemisphere"])
+def test_the_array_reading_equals_reading_node_by_node(make):
+    shape = make()
+    got = tessellate(shape, 0.02, 10, "part")
+    want = _node_by_node(shape, 0.02, 10)
+    assert np.array_equal(got.vertices, want.vertices)
+    assert np.array_equal(got.faces, want.faces)
+
+
+def test_a_tessellated_drilled_block_is_closed_and_holds_the_closed_form_volume():
+    mesh = tessellate(_drilled_block(), 0.01, 5, "block")
+    tm = trimesh.Trimesh(mesh.vertices, mesh.faces, process=False)
+    assert tm.is_watertight and tm.is_winding_consistent
+    exact = 40 * 30 * 20 - math.pi * 6 ** 2 * 20
+    # Inscribed polygon of the hole: the mesh can only hold more material, by less than
+    # the chord error times the hole's wall area (2 pi r h x 0.01 mm).
+    assert 0 <= tm.volume - exact < 2 * math.pi * 6 * 20 * 0.01
+
+
+def test_a_checked_shapes_volume_is_the_kernels_own_measure_taken_once():
+    block = _drilled_block()
+    exact = 40 * 30 * 20 - math.pi * 36 * 20
+    assert kernel.volume(block) == pytest.approx(exact, rel=1e-9)
+    # The remembered figure is the kernel's measure of this very solid, to the bit.
+    assert kernel.volume(block) == block.Volume()
+    # A shape this module never checked is measured on request.
+    rod = kernel.cylinder(2, (0, 0, 0), 10.0, 5.0)
+    assert kernel.volume(rod) == pytest.approx(math.pi * 25 * 10, rel=1e-9)
+
+
+def test_a_moved_copy_is_measured_anew_not_given_the_originals_figure():
+    block = _drilled_block()
+    copy = block.translate(cq.Vector(100, 0, 0))
+    assert copy is not block
+    assert kernel.volume(copy) == copy.Volume()
+
+
+def test_split_returns_the_half_below_the_plane_first_whatever_the_axis():
+    block = kernel.checked(kernel.box((0, 0, 0), (40, 30, 20)), "block", "box")
+    for axis, offset, size in ((0, 10.0, 40), (1, 21.0, 30), (2, 5.0, 20)):
+        below, above = kernel.split_at(block, axis, offset, "block")
+        lo_b, hi_b = below.BoundingBox(), above.BoundingBox()
+        assert [lo_b.xmax, lo_b.ymax, lo_b.zmax][axis] == pytest.approx(offset, abs=1e-6)
+        assert [hi_b.xmin, hi_b.ymin, hi_b.zmin][axis] == pytest.approx(offset, abs=1e-6)
+        area = 40 * 30 * 20 / size
+        assert kernel.volume(below) == pytest.approx(area * offset, rel=1e-9)
+        assert kernel.volume(above) == pytest.approx(area * (size - offset), rel=1e-9)
