@@ -141,7 +141,7 @@ def core_extraction(core: TriMesh, pull: Sequence[float], opening_point: Sequenc
     sec = _Sections(core, d, o)
     far = float(sec.depth.max())
     if far <= 0.0:
-        return Extraction(0.0, tuple(o), 0.0, opening_perimeter_mm, 0.0, math.inf,  # type: ignore[arg-type]
+        return Extraction(0.0, tuple(o), 0.0, opening_perimeter_mm, 0.0, math.inf,
                           tuple(o), 0.0, tuple(o))
     n = int(min(max_sections, max(8, math.ceil(far / step_mm))))
     # Section planes between the opening (depth 0) and the far end, never exactly on them.

@@ -379,7 +379,7 @@ def plan_print(mesh: TriMesh, part: str, printer: Printer = DEFAULT_PRINTER,
     public = ("down", "fits", "turn_deg", "overhang_area_mm2", "contact_area_mm2")
     return PrintPlan(
         part=part,
-        down=tuple(b["down"]),  # type: ignore[arg-type]
+        down=tuple(b["down"]),
         turn_deg=b["turn_deg"],
         size_mm=b["_size"],
         fits=b["fits"],

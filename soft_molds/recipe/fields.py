@@ -11,6 +11,7 @@ import difflib
 import math
 from collections.abc import Iterable
 from dataclasses import dataclass
+from typing import Any
 
 from ..errors import Problem
 from .yamlsource import Node
@@ -168,7 +169,7 @@ class MapReader:
             return self.line
         return n.key_line if n.key_line is not None else n.line
 
-    def take(self, f: Field) -> object:
+    def take(self, f: Field) -> Any:
         """Return the validated value of ``f`` (its default when absent, None when bad)."""
         n = self.node(f.name)
         path = join_path(self.path, f.name)
@@ -198,7 +199,9 @@ class MapReader:
             out = []
             for i in items:
                 out.append(self._check_number(f, path, line, i.value))
-            return None if None in out else (float(out[0]), float(out[1]))
+            if out[0] is None or out[1] is None:
+                return None
+            return (float(out[0]), float(out[1]))
         if not _is_number(v):
             self.problem(path, "must be a number" if f.kind == "number" else
                          "must be a whole number", line, n.plain(), f.allowed())
@@ -229,7 +232,7 @@ class MapReader:
         # -0.0 + 0.0 is +0.0 (IEEE 754): "-0.0" and "0" then hash alike in params_sha256.
         return x + 0.0
 
-    def take_all(self, fields: Iterable[Field]) -> dict[str, object]:
+    def take_all(self, fields: Iterable[Field]) -> dict[str, Any]:
         return {f.name: self.take(f) for f in fields}
 
     def finish(self, extra_known: Iterable[str] = ()) -> None:

@@ -335,7 +335,7 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
         problems.append(Problem("inflate.working_pressure_psi", "is given with "
                                 "working_pressure_kpa", line("inflate.working_pressure_psi"),
                                 psi, "one of the two"))
-    if problems:
+    if problems or silicone is None:  # no grade comes without a problem saying why
         raise refused()
     working = psi_to_kpa(psi) if psi is not None else kpa
     lab = dict(blocks["marking"])

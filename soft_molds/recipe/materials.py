@@ -152,7 +152,7 @@ def _read_grade(name: str, node: Node, problems: list[Problem]) -> Grade | None:
     r.finish()
     if not r.ok:
         return None
-    return Grade(name=name, note="" if note is None else str(note.value), **values)  # type: ignore[arg-type]
+    return Grade(name=name, note="" if note is None else str(note.value), **values)
 
 
 def _located(problems, source: str) -> list[Problem]:
@@ -220,7 +220,7 @@ def blend(first: Grade, second: Grade, target_shore_a: float) -> Blend:
     if e1 is None or e2 is None or math.isclose(e1, e2) or not min(e1, e2) <= et <= max(e1, e2):
         raise ValueError(f"the modulus for Shore A{target_shore_a:g} ({et:.3f} MPa) is not "
                          f"between {first.name}'s and {second.name}'s")
-    phi = (et - e2) / (e1 - e2)  # type: ignore[operator]
+    phi = (et - e2) / (e1 - e2)
     m1, m2 = phi * first.density_g_cm3, (1.0 - phi) * second.density_g_cm3
     return Blend(first, second, target_shore_a, phi, m1 / (m1 + m2), et)
 
@@ -290,7 +290,7 @@ def resolve(values: dict[str, Any], base_dir: Path | None,
                                 "material.target_shore_a", "is missing",
                                 line("material"), None,
                                 "give blend_with and target_shore_a together"))
-    elif other is not None:
+    elif other is not None and target is not None:
         g2 = table.get(other)
         if g2 is None:
             problems.append(Problem("material.blend_with", "is not a grade of the table"

@@ -51,9 +51,9 @@ def reference_markdown() -> str:
     for kind, cls in body_kinds().items():
         out += [f"### `body` kind `{kind}`", "", " ".join((cls.__doc__ or "").split()),
                 "", *_table(cls.FIELDS), ""]
-    for kind, cls in void_kinds().items():
+    for kind, vcls in void_kinds().items():
         out += [f"### `voids[]` kind `{kind}`", "",
-                " ".join((cls.__doc__ or "").split()), "", *_table(cls.FIELDS), ""]
+                " ".join((vcls.__doc__ or "").split()), "", *_table(vcls.FIELDS), ""]
     for block, fields in BLOCKS.items():
         out += [f"### `{block}`", "", *_table(fields), ""]
     return "\n".join(out).rstrip() + "\n"

@@ -11,9 +11,9 @@ from __future__ import annotations
 import importlib
 import pkgutil
 from collections.abc import Callable
-from typing import TypeVar
+from typing import TypeVar, cast
 
-from .contracts import check_kind
+from .contracts import BodyKind, VoidKind, check_kind
 
 T = TypeVar("T", bound=type)
 
@@ -52,11 +52,13 @@ def _load() -> None:
     _loaded = True
 
 
-def body_kinds() -> dict[str, type]:
+def body_kinds() -> dict[str, type[BodyKind]]:
+    """Every registered body kind by name (each met its contract when it registered)."""
     _load()
-    return dict(sorted(BODY_KINDS.items()))
+    return {k: cast("type[BodyKind]", v) for k, v in sorted(BODY_KINDS.items())}
 
 
-def void_kinds() -> dict[str, type]:
+def void_kinds() -> dict[str, type[VoidKind]]:
+    """Every registered void kind by name (each met its contract when it registered)."""
     _load()
-    return dict(sorted(VOID_KINDS.items()))
+    return {k: cast("type[VoidKind]", v) for k, v in sorted(VOID_KINDS.items())}

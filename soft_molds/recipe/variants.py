@@ -114,7 +114,7 @@ def _put(node: Node | None, keys: list[str | int], i: int, new: Node, where: Pro
             problems.append(replace(where, message="names a list entry the recipe does not "
                                     "have", allowed=f"an index below {n}"))
             return node
-        items = list(node.value)  # type: ignore[arg-type]
+        items = list(node.value) if isinstance(node.value, list) else []
         items[key] = (_with_line(new, items[key]) if last
                       else _put(items[key], keys, i + 1, new, where, problems))
         return replace(node, value=items)
@@ -124,9 +124,9 @@ def _put(node: Node | None, keys: list[str | int], i: int, new: Node, where: Pro
         problems.append(replace(where, message="goes through a value that is not a mapping",
                                 allowed="a path to a field"))
         return node
-    items = dict(node.value)
-    items[key] = new if last else _put(items.get(key), keys, i + 1, new, where, problems)
-    return replace(node, value=items)
+    entries = dict(node.value)
+    entries[key] = new if last else _put(entries.get(key), keys, i + 1, new, where, problems)
+    return replace(node, value=entries)
 
 
 def _with_line(new: Node, old: Node) -> Node:
