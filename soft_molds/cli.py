@@ -15,6 +15,7 @@ import time
 from collections.abc import Callable, Sequence
 
 from .errors import RecipeError, SoftMoldsError
+from .units import mm3_to_cm3
 from .version import __version__
 
 CAUTIONS = (
@@ -158,20 +159,25 @@ def _load(paths: Sequence[str], label: str | None = None, folders: bool = True):
     return found, bad
 
 
-def cmd_build(args: argparse.Namespace) -> int:
-    variants, bad = _load([args.recipe], args.variant, folders=False)
-    if bad:
-        return 2
+def _out_writable(out: str) -> bool:
+    """Whether files can be written under ``out``; else one error line. Found before
+    minutes of building, not after, and nothing is left behind. Exit 1 as when a write
+    fails after the build: the same fault gives the same status whenever it is found."""
     from pathlib import Path
 
     from .export.files import probe_writable
 
-    # Found before minutes of building, not after, and nothing is left behind. Exit 1 as
-    # when a write fails after the build: the same fault gives the same status whenever it
-    # is found.
-    why = probe_writable(Path(args.out))
+    why = probe_writable(Path(out))
     if why is not None:
-        print(f"error: cannot write under {args.out}: {why}; nothing built", file=sys.stderr)
+        print(f"error: cannot write under {out}: {why}; nothing built", file=sys.stderr)
+    return why is None
+
+
+def cmd_build(args: argparse.Namespace) -> int:
+    variants, bad = _load([args.recipe], args.variant, folders=False)
+    if bad:
+        return 2
+    if not _out_writable(args.out):
         return 1
     from .analysis.findings import refuses_to_write, verdict
     from .pipeline import build
@@ -188,7 +194,7 @@ def cmd_build(args: argparse.Namespace) -> int:
         print(f"{r.name} {r.label}: built in {time.perf_counter() - t:.1f} s")
         for p in molds.parts:
             print(_fmt_part(p))
-        print(f"  silicone {molds.silicone_volume_mm3 / 1000.0:.2f} cm3; sprue and vents: "
+        print(f"  silicone {mm3_to_cm3(molds.silicone_volume_mm3):.2f} cm3; sprue and vents: "
               + ", ".join(o.kind for o in molds.openings))
         if molds.parting_candidates:
             pa = molds.recipe.parting
@@ -262,6 +268,8 @@ def cmd_sweep(args: argparse.Namespace) -> int:
     if not tasks:
         print("error: no recipes given", file=sys.stderr)
         return 2
+    if not _out_writable(args.out):
+        return 1
     try:
         outcomes, interrupted = run_sweep(tasks, args.out, jobs=args.jobs, force=args.force,
                                           recycle_after=args.recycle_after,

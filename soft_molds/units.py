@@ -7,6 +7,11 @@ KPA_PER_PSI = 6.894757
 """1 psi (lbf/in2) = 6.894 757 kPa (NIST SP 811, Appendix B.8)."""
 
 MM3_PER_CM3 = 1000.0
+"""1 cm3 = 1000 mm3 (by definition of the units)."""
+
+
+def mm3_to_cm3(mm3: float) -> float:
+    return mm3 / MM3_PER_CM3
 
 
 def psi_to_kpa(psi: float) -> float:

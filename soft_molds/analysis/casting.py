@@ -20,6 +20,7 @@ from dataclasses import dataclass
 from soft_molds.meshdata import TriMesh
 from soft_molds.recipe.materials import Blend, Grade
 from soft_molds.recipe.model import Recipe
+from soft_molds.units import mm3_to_cm3
 
 from .rays import face_normals
 
@@ -56,7 +57,7 @@ def silicone_quantities(cast_mm3: float, fill_mm3: float, grade: Grade, waste_pc
                         resolution_g: float, blend: Blend | None = None) -> Quantities:
     """Quantities for one cast of ``cast_mm3`` plus ``fill_mm3`` of silicone."""
     mixed = (cast_mm3 + fill_mm3) * (1.0 + waste_pct / 100.0)
-    mass = mixed / 1000.0 * grade.density_g_cm3
+    mass = mm3_to_cm3(mixed) * grade.density_g_cm3
     portions: list[Portion] = []
     parts = ([(blend.first, blend.weight_fraction_first),
               (blend.second, 1.0 - blend.weight_fraction_first)] if blend else [(grade, 1.0)])
@@ -92,7 +93,7 @@ def print_estimate(part: str, mesh: TriMesh, volume_mm3: float, wall_mm: float,
     walls = min(volume_mm3, area * wall_mm)
     solid = walls + (volume_mm3 - walls) * infill_pct / 100.0
     return PrintEstimate(part, volume_mm3, wall_mm, infill_pct,
-                         solid / 1000.0 * filament_density_g_cm3)
+                         mm3_to_cm3(solid) * filament_density_g_cm3)
 
 
 @dataclass(frozen=True)

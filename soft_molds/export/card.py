@@ -14,7 +14,7 @@ from collections.abc import Sequence
 from typing import Any
 
 from ..analysis.findings import Severity, Verdict
-from ..units import kpa_to_psi
+from ..units import kpa_to_psi, mm3_to_cm3
 from .manifest import CastingRecord, Manifest
 
 CAUTIONS = (
@@ -128,8 +128,9 @@ def _weigh_out_blocks(cast: Sequence[tuple[Manifest, CastingRecord]]) -> list[Bl
         by = {p.what: p.g for p in c.portions}
         grams = [by.get(n) for n in names]
         totals = [t + (x or 0.0) for t, x in zip(totals, grams)]
-        rows.append([man.label, _fmt(c.cast_volume_mm3 / 1000, 2),
-                     _fmt(c.fill_volume_mm3 / 1000, 2), _fmt(c.mixed_volume_mm3 / 1000, 2),
+        rows.append([man.label, _fmt(mm3_to_cm3(c.cast_volume_mm3), 2),
+                     _fmt(mm3_to_cm3(c.fill_volume_mm3), 2),
+                     _fmt(mm3_to_cm3(c.mixed_volume_mm3), 2),
                      _fmt(c.mixed_mass_g, 1), *["" if x is None else f"{x:g}" for x in grams],
                      verdict_word(man.verdict)])
     if len(cast) > 1:
@@ -181,7 +182,7 @@ def _print_blocks(cast: Sequence[tuple[Manifest, CastingRecord]]) -> list[Block]
     prows = []
     for man, c in cast:
         for pe in c.prints:
-            prows.append([man.label, pe.part, _fmt(pe.volume_mm3 / 1000, 1),
+            prows.append([man.label, pe.part, _fmt(mm3_to_cm3(pe.volume_mm3), 1),
                           f"{pe.infill_pct:g} %", _fmt(pe.mass_g_estimate, 0)])
     return [("h2", "Printing (estimate; the slicer's figure wins)"),
             ("table", ["variant", "part", "volume cm3", "infill", "filament g"], prows)]

@@ -37,6 +37,7 @@ from matplotlib.lines import Line2D
 from matplotlib.typing import RcKeyType
 
 from ..analysis.section import section_segments
+from ..units import mm3_to_cm3
 from .card import verdict_word
 from .manifest import Manifest
 from .stl import read_binary_stl
@@ -136,7 +137,7 @@ def manifest_figures(man: Manifest) -> tuple[Pair, ...]:
     """The key figures of a variant as (name, value with unit): silicone volume, the mix
     to weigh, the thinnest silicone wall and the lowest pressure at which a wall balloons
     (an estimate)."""
-    figs = [("silicone", f"{man.silicone_volume_mm3 / 1000:.2f} cm3")]
+    figs = [("silicone", f"{mm3_to_cm3(man.silicone_volume_mm3):.2f} cm3")]
     if man.casting is not None:
         figs.append(("mix", " + ".join(f"{p.g:g} g {p.what.split()[-1]}"
                                        for p in man.casting.portions)))

@@ -8,6 +8,7 @@ from enum import StrEnum
 
 from ..analysis.findings import Verdict
 from ..recipe.model import Recipe
+from ..units import mm3_to_cm3
 from .plan import Task
 
 
@@ -68,4 +69,4 @@ def report_figures(silicone_volume_mm3: float, portions_g: Iterable[float]
                    ) -> tuple[float, float]:
     """(silicone in cm3, grams weighed out in all) as the summary shows them, from the
     figures the manifest records (so a built and an up-to-date variant agree)."""
-    return round(silicone_volume_mm3 / 1000.0, 3), round(sum(portions_g), 3)
+    return round(mm3_to_cm3(silicone_volume_mm3), 3), round(sum(portions_g), 3)

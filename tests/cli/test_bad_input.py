@@ -656,3 +656,18 @@ def test_usage_mistakes_exit_2_with_usage_not_traceback(argv, capsys):
     err = capsys.readouterr().err
     assert err.startswith("usage: soft-molds")
     assert "Traceback" not in err
+
+
+def test_sweep_refuses_an_output_folder_it_cannot_write_before_building(tmp_path, capsys,
+                                                                        monkeypatch):
+    import soft_molds.sweep as sweep
+
+    calls = []
+    monkeypatch.setattr(sweep, "run_sweep", lambda *a, **k: calls.append(a))
+    monkeypatch.chdir(tmp_path)
+    (tmp_path / "taken").write_text("a file where the output folder should go\n")
+    assert main(["sweep", str(GOOD), "--out", "taken/out", "--jobs", "1"]) == 1
+    cap = capsys.readouterr()
+    assert calls == []
+    assert cap.err.splitlines() == ["error: cannot write under taken/out: taken is not a "
+                                    "folder; nothing built"]
