@@ -54,6 +54,29 @@ def twister():
 BUNDLED = sorted(p.stem for p in RECIPES.glob("*.yaml"))
 
 
+def bundled_variants() -> list[tuple[str, str]]:
+    """(recipe stem, variant label) of every variant of every bundled recipe."""
+    from soft_molds import load_variants
+
+    return [(stem, r.label) for stem in BUNDLED for _, r in load_variants(recipe_path(stem))]
+
+
+def built_variant(stem: str, label: str):
+    """The MoldSet of one variant of a bundled recipe (built on first use, then shared; the
+    default variant is the one ``built(stem)`` gives)."""
+    key = f"{stem}/{label}"
+    if key not in _cache:
+        from soft_molds import build, load_recipe, load_variants
+
+        default = load_recipe(recipe_path(stem))
+        if default.label == label:
+            _cache[key] = built(stem)
+        else:
+            (r,) = [r for _, r in load_variants(recipe_path(stem)) if r.label == label]
+            _cache[key] = build(r)
+    return _cache[key]
+
+
 @pytest.fixture(scope="session")
 def bundled():
     """Callable: bundled recipe name -> its shared MoldSet."""

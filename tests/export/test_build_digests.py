@@ -40,10 +40,10 @@ def _variants():
     return [(p, r) for p in RECIPES for _, r in load_variants(p)]
 
 
-def _digests_of(recipe, built_default=None) -> dict[str, str]:
+def _digests_of(recipe, molds=None) -> dict[str, str]:
     from soft_molds import build
 
-    molds = built_default if built_default is not None else build(recipe)
+    molds = molds if molds is not None else build(recipe)
     with tempfile.TemporaryDirectory() as tmp:
         molds.export(tmp)
         return _digests_of_folder(Path(tmp) / recipe.name / recipe.label,
@@ -61,15 +61,12 @@ _IDS = [f"{p.stem}-{r.label}" for p, r in _variants()]
 
 
 @pytest.mark.parametrize("index", range(len(_IDS)), ids=_IDS)
-def test_every_written_file_matches_the_recorded_digest(index, bundled):
-    from soft_molds import load_recipe
+def test_every_written_file_matches_the_recorded_digest(index):
+    from conftest import built_variant
 
     path, recipe = _variants()[index]
-    default = load_recipe(path)
-    # The default variant is shared with the other tests (built once per session).
-    same = default.params_sha256() == recipe.params_sha256()
-    molds = bundled(path.stem) if same else None
-    got = _digests_of(recipe, molds)
+    # Every variant is built once per session and shared with the other tests.
+    got = _digests_of(recipe, built_variant(path.stem, recipe.label))
     want = {k: v for k, v in json.loads(RECORD.read_text()).items()
             if k.startswith(f"{recipe.name}/{recipe.label}/")}
     assert sorted(got) == sorted(want), "a different set of files was written"

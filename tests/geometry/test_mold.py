@@ -10,11 +10,15 @@ import manifold3d as m3
 import numpy as np
 import pytest
 import trimesh
+from conftest import built_variant, bundled_variants
 
 from soft_molds.plan.layout import key_symmetry_clashes
 from soft_molds.recipe.model import ISO273_MEDIUM_MM
 
 NAMES = ["seedling-finger", "tray-pusher", "stem-cushion", "wrist-twister", "soil-tamper"]
+#: Every variant of every bundled recipe, for the properties every mold set must have.
+VARIANTS = bundled_variants()
+VARIANT_IDS = [f"{stem}-{label}" for stem, label in VARIANTS]
 
 
 def manifold(mesh) -> m3.Manifold:
@@ -22,9 +26,9 @@ def manifold(mesh) -> m3.Manifold:
                                  tri_verts=np.array(mesh.faces, dtype=np.uint64)))
 
 
-@pytest.mark.parametrize("name", NAMES)
-def test_every_part_is_a_closed_volume_for_trimesh_and_manifold3d(name, bundled):
-    for part in bundled(name).parts:
+@pytest.mark.parametrize(("stem", "label"), VARIANTS, ids=VARIANT_IDS)
+def test_every_part_is_a_closed_volume_for_trimesh_and_manifold3d(stem, label):
+    for part in built_variant(stem, label).parts:
         tm = part.mesh.to_trimesh()
         assert tm.is_watertight and tm.is_winding_consistent and tm.is_volume, part.name
         mf = manifold(part.mesh)
@@ -34,11 +38,11 @@ def test_every_part_is_a_closed_volume_for_trimesh_and_manifold3d(name, bundled)
         assert mf.genus() >= 0
 
 
-@pytest.mark.parametrize("name", NAMES)
-def test_no_two_parts_interpenetrate(name, bundled):
+@pytest.mark.parametrize(("stem", "label"), VARIANTS, ids=VARIANT_IDS)
+def test_no_two_parts_interpenetrate(stem, label):
     """Shells, core and cast touch but never overlap: any intersection (manifold3d boolean)
     stays below 0.05 % of the smaller part."""
-    parts = bundled(name).parts
+    parts = built_variant(stem, label).parts
     solids = {p.name: manifold(p.mesh) for p in parts}
     for a, b in itertools.combinations(solids, 2):
         inter = (solids[a] ^ solids[b]).volume()
@@ -46,12 +50,12 @@ def test_no_two_parts_interpenetrate(name, bundled):
         assert inter < 5e-4 * smaller, (a, b, inter)
 
 
-@pytest.mark.parametrize("name", NAMES)
-def test_cast_surface_lies_on_mold_or_core_surfaces(name, bundled):
+@pytest.mark.parametrize(("stem", "label"), VARIANTS, ids=VARIANT_IDS)
+def test_cast_surface_lies_on_mold_or_core_surfaces(stem, label):
     """Sampled points of the silicone part's surface lie within 0.05 mm of a shell or core
     surface (trimesh proximity): at least 99.5 % of those away from the sprue and vent
     mouths (open on purpose), which themselves take at most 2 % of the surface."""
-    molds = bundled(name)
+    molds = built_variant(stem, label)
     cast = molds.part("cast").mesh.to_trimesh()
     tools = trimesh.util.concatenate([p.mesh.to_trimesh() for p in molds.parts
                                       if p.role != "cast"])
