@@ -173,8 +173,10 @@ def build_primitive(p: Primitive, part: str) -> cq.Shape:
 
 
 def fuse(shapes: Sequence[cq.Shape], part: str, step: str,
-         volume_mm3: float | None = None) -> cq.Shape:
-    """Fuse many solids in one boolean (one by one grows quadratically, kernel-notes)."""
+         volume_mm3: float | None = None, solids: int | None = 1) -> cq.Shape:
+    """Fuse many solids in one boolean (one by one grows quadratically, kernel-notes).
+    ``solids``: how many separate solids the result must have (None: any number, e.g. voids
+    that meet only in the tube socket, fused with it later)."""
     if not shapes:
         raise GeometryError(step, "nothing to fuse", part)
     if len(shapes) == 1:
@@ -185,8 +187,11 @@ def fuse(shapes: Sequence[cq.Shape], part: str, step: str,
     except Exception as exc:  # OCCT raises bare Standard_Failure subclasses
         raise GeometryError(step, f"fuse failed: {exc}", part) from exc
     shape, valid, vol = _clean(out)
-    return checked(shape, part, step, volume_mm3=volume_mm3, known_valid=valid,
-                   known_volume=vol)
+    # One solid is returned as that solid whatever was asked: the same result as before
+    # the count was left open, so the booleans downstream see the same input.
+    found = len(solids_of(shape))
+    return checked(shape, part, step, 1 if found == 1 else solids, volume_mm3=volume_mm3,
+                   known_valid=valid, known_volume=vol)
 
 
 def cut(base: cq.Shape, tools: Sequence[cq.Shape], part: str, step: str,

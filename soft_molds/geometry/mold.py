@@ -206,7 +206,10 @@ def build_cast(r: Recipe, step: CastingStep, body: k.Shape | None = None) -> Cas
     if body is None:
         body = build_body(r)
     void_prims = [p for group in r.void_primitives() for p in group]
-    voids = k.fuse([k.build_primitive(p, "voids") for p in void_prims], "voids", "fuse voids")
+    # Voids may meet only in the tube socket (two rows on one socket): any number of
+    # solids here, one once the socket joins them.
+    voids = k.fuse([k.build_primitive(p, "voids") for p in void_prims], "voids", "fuse voids",
+                   solids=None)
     socket = k.build_primitive(r.inlet.socket(), "voids")
     void_set = k.fuse([voids, socket], "voids", "join voids to the inlet socket")
 

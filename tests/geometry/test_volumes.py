@@ -132,3 +132,18 @@ def test_cushion_volumes_match_the_closed_form(cushion):
 def test_every_part_mesh_volume_is_within_half_a_percent_of_its_brep(name, bundled):
     for part in bundled(name).parts:
         assert close(part.mesh.volume_mm3(), part.brep_volume_mm3, 0.005), part.name
+
+
+# ---- twin-row finger: two chamber rows meeting only in one wide socket ------------------
+def test_two_rows_on_one_socket_match_the_closed_form(bundled):
+    """Each row's feed channel (r 1 at y = -7.5 or 7.5) lies inside the 9 mm socket for
+    its 6 mm depth (7.5 + 1 < 9) and inside each chamber's flat faces (one depth each, half
+    of the last), so it shows for 43.5 - 6 - (3 x 5 + 2.5) = 20 mm per row."""
+    molds = bundled("twin-row-finger")
+    body = rounded_box_volume(60.0, 34.0, 26.0, 2.0)
+    chamber = rounded_box_volume(5.0, 10.0, 12.0, 0.5)
+    voids = PI * 9.0 ** 2 * 6.0 + 2 * (4 * chamber + PI * 1.0 ** 2 * 20.0)
+    assert close(molds.volumes_mm3["body"], body, 0.001)
+    assert close(molds.void_volume_mm3, voids, 0.001)
+    assert close(molds.part("cast").brep_volume_mm3, body - voids, 0.001)
+    assert close(molds.part("cast").mesh.volume_mm3(), body - voids, 0.005)
