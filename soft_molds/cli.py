@@ -14,6 +14,7 @@ import sys
 import time
 from collections.abc import Callable, Sequence
 
+from .analysis.findings import Finding, Severity, counts
 from .errors import RecipeError, SoftMoldsError
 from .units import mm3_to_cm3
 from .version import __version__
@@ -37,17 +38,18 @@ def _fmt_part(p) -> str:
             f"triangles  {size} mm  pull {pull:<3} {verdict}")
 
 
-def _findings_table(findings, show_info: bool = True) -> list[str]:
+def _findings_table(findings: Sequence[Finding], show_info: bool = True) -> list[str]:
     """The review's findings as aligned lines, errors first."""
-    rows = [f for f in findings if show_info or f.severity != "info"]
-    n = {s: sum(1 for f in findings if f.severity == s) for s in ("error", "warning", "info")}
-    head = (f"  checks: {n['error']} error(s), {n['warning']} warning(s), {n['info']} note(s)")
+    rows = [f for f in findings if show_info or f.severity is not Severity.INFO]
+    n = counts(findings)
+    head = f"  checks: {n.errors} error(s), {n.warnings} warning(s), {n.infos} note(s)"
     if not rows:
         return [head]
     width = max(len(f.check) for f in rows)
     pw = max(len(f.part) for f in rows)
-    return [head] + [f"  {f.severity.upper() if f.severity != 'info' else 'note':<7} "
-                     f"{f.check:<{width}} {f.part:<{pw}} {f.message}" for f in rows]
+    word = {Severity.ERROR: "ERROR", Severity.WARNING: "WARNING", Severity.INFO: "note"}
+    return [head] + [f"  {word[f.severity]:<7} {f.check:<{width}} {f.part:<{pw}} {f.message}"
+                     for f in rows]
 
 
 def _weigh_out(molds) -> list[str]:
