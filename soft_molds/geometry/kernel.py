@@ -17,7 +17,7 @@ from OCP.BRepAlgoAPI import BRepAlgoAPI_Cut, BRepAlgoAPI_Fuse, BRepAlgoAPI_Split
 from OCP.BRepBndLib import BRepBndLib
 
 from ..errors import GeometryError
-from ..recipe.primitives import AXES, Primitive, RoundedBox, RoundedRod
+from ..recipe.primitives import AXES, Primitive, ProfileLine, Revolved, RoundedBox, RoundedRod
 
 Shape = cq.Shape
 _DIRS = {0: cq.Vector(1, 0, 0), 1: cq.Vector(0, 1, 0), 2: cq.Vector(0, 0, 1)}
@@ -164,11 +164,30 @@ def _rounded_rod(p: RoundedRod, part: str) -> cq.Shape:
     return solid.translate(cq.Vector(*offset))
 
 
+def _revolved(p: Revolved, part: str) -> cq.Shape:
+    """Revolve the profile outline (lines and rounding arcs in the local XY plane: X along
+    the axis, Y the radius) about the x axis, closed along the axis; checked against the
+    volume of the same outline by discs (Pappus)."""
+    pieces = p.pieces()
+    wp = cq.Workplane("XY").moveTo(*pieces[0].start)
+    for piece in pieces:
+        if isinstance(piece, ProfileLine):
+            wp = wp.lineTo(*piece.end)
+        else:
+            wp = wp.threePointArc(piece.mid(), piece.end)
+    made = wp.close().revolve(360, (0, 0, 0), (1, 0, 0)).val()
+    if not isinstance(made, cq.Shape):
+        raise GeometryError("revolve profile", "the kernel returned no solid", part)
+    return checked(made, part, "revolve profile", volume_mm3=p.volume_mm3(), rel_tol=1e-6)
+
+
 def build_primitive(p: Primitive, part: str) -> cq.Shape:
     if isinstance(p, RoundedBox):
         return _rounded_box(p, part)
     if isinstance(p, RoundedRod):
         return _rounded_rod(p, part)
+    if isinstance(p, Revolved):
+        return _revolved(p, part)
     raise GeometryError("build primitive", f"unknown primitive {type(p).__name__}", part)
 
 
