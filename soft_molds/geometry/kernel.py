@@ -164,6 +164,10 @@ def _rounded_rod(p: RoundedRod, part: str) -> cq.Shape:
     return solid.translate(cq.Vector(*offset))
 
 
+#: Angle (deg) the seams of a revolved profile are turned about x, away from y = 0 and z = 0.
+SEAM_TURN_DEG = 45.0
+
+
 def _revolved(p: Revolved, part: str) -> cq.Shape:
     """Revolve the profile outline (lines and rounding arcs in the local XY plane: X along
     the axis, Y the radius) about the x axis, closed along the axis; checked against the
@@ -178,6 +182,9 @@ def _revolved(p: Revolved, part: str) -> cq.Shape:
     made = wp.close().revolve(360, (0, 0, 0), (1, 0, 0)).val()
     if not isinstance(made, cq.Shape):
         raise GeometryError("revolve profile", "the kernel returned no solid", part)
+    # The revolved faces' seams lie in the profile's plane; turned off both parting planes
+    # through the axis (y = 0, z = 0), the split never runs along them.
+    made = made.rotate(cq.Vector(0, 0, 0), cq.Vector(1, 0, 0), SEAM_TURN_DEG)
     return checked(made, part, "revolve profile", volume_mm3=p.volume_mm3(), rel_tol=1e-6)
 
 
@@ -231,7 +238,9 @@ def _clean(raw: cq.Shape) -> tuple[cq.Shape, bool, float | None]:
     upstream failure mode, kernel-notes). Returns the shape, whether it was found valid and,
     when measured, its volume (mm3; volume integration is costly on filleted shapes)."""
     try:
-        cleaned = raw.clean()
+        # On a copy: unifying rewrites shared edges in place, and a part split from the same
+        # block (the other shell half) shares the parting faces' edges with this one.
+        cleaned = raw.copy().clean()
     except Exception:
         return raw, False, None
     if not cleaned.isValid():

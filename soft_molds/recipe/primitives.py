@@ -175,10 +175,10 @@ def corner_tangent_mm(prev: np.ndarray, at: np.ndarray, nxt: np.ndarray, radius:
 
 
 def profile_vertices(points: tuple[tuple[float, float], ...]) -> np.ndarray:
-    """The closed profile's corners, clockwise in (x, rho): the axis point under the inlet
+    """The closed profile's corners, clockwise in (x, rho): the axis point under the near
     face, the points, and the axis point under the far end (left out when the last point
     already lies on the axis)."""
-    pts = [(0.0, 0.0), *points]
+    pts = [(points[0][0], 0.0), *points]
     if points[-1][1] > 0.0:
         pts.append((points[-1][0], 0.0))
     return np.asarray(pts, dtype=np.float64)
@@ -228,7 +228,7 @@ def _line(out: list[ProfilePiece], a: np.ndarray, b: np.ndarray) -> None:
 def profile_problems(points: tuple[tuple[float, float], ...], rounds: tuple[float, ...]
                      ) -> list[tuple[int, str, str]]:
     """What makes a profile unusable, as (point index, what is wrong, what is allowed):
-    it starts at x = 0 (the flat inlet face), x rises strictly from point to point (the
+    x rises strictly from point to point (the
     radius is a function of x: no overhang, so no self-intersection and no undercut
     against a parting plane through the axis), every radius is > 0 except that the last
     may be 0 (a tip closing on the axis; it takes no rounding), and the roundings of the
@@ -236,9 +236,6 @@ def profile_problems(points: tuple[tuple[float, float], ...], rounds: tuple[floa
     out: list[tuple[int, str, str]] = []
     if len(points) < 2:
         return [(0, "has fewer than two points", "at least two (x, radius) points")]
-    if points[0][0] != 0.0:
-        out.append((0, "does not start on the inlet face",
-                    "x = 0 for the first point (the flat inlet face)"))
     for i, (x, r) in enumerate(points):
         last = i == len(points) - 1
         if r < 0.0 or (r == 0.0 and not last):
@@ -262,7 +259,7 @@ def profile_problems(points: tuple[tuple[float, float], ...], rounds: tuple[floa
         edge = float(np.linalg.norm(v[j + 1] - v[j]))
         if need > edge * (1.0 + 1e-9) + PROFILE_EPS_MM:
             i = max(j - 1, 0)
-            where = ("the inlet face" if j == 0 else "the far end face"
+            where = ("the near face" if j == 0 else "the far end face"
                      if j == len(points) else f"the edge to point {j}")
             out.append((i, f"has roundings that do not fit {where}: they need {need:.3f} mm "
                         f"of it, it is {edge:.3f} mm long",
@@ -338,9 +335,10 @@ def _spans_at_least(piece: ProfilePiece, a: float) -> list[tuple[float, float]]:
 @dataclass(frozen=True)
 class Revolved:
     """A solid of revolution about the x axis: the region under the profile ``points``
-    ((x, radius) in mm, x rising from 0 at the flat inlet face to the far end, where a
-    flat face closes it unless the last radius is 0) in the (x, rho) half plane, every
-    point's corner rounded by ``rounds_mm`` (one per point, 0 = sharp)."""
+    ((x, radius) in mm, x rising from the flat near face at the first point's x, 0 for a
+    body's inlet face, to the far end, where a flat face closes it unless the last radius
+    is 0) in the (x, rho) half plane, every point's corner rounded by ``rounds_mm`` (one
+    per point, 0 = sharp). :func:`profile_problems` says what makes a profile invalid."""
 
     points: tuple[tuple[float, float], ...]
     rounds_mm: tuple[float, ...]
@@ -349,7 +347,12 @@ class Revolved:
         return profile_pieces(self.points, self.rounds_mm)
 
     @property
+    def start_mm(self) -> float:
+        return self.points[0][0]
+
+    @property
     def length_mm(self) -> float:
+        """x of the far end (mm)."""
         return self.points[-1][0]
 
     def max_radius_mm(self) -> float:
@@ -363,7 +366,7 @@ class Revolved:
         return best
 
     def radius_at(self, x: np.ndarray) -> np.ndarray:
-        """Outer radius (mm) at each x in [0, length]; -inf outside."""
+        """Outer radius (mm) at each x in [start, length]; -inf outside."""
         x = np.asarray(x, dtype=np.float64)
         out = np.full(x.shape, -np.inf)
         for p in self.pieces():
@@ -383,12 +386,12 @@ class Revolved:
             else:
                 e = _arc_distance(q, piece)
             np.minimum(d, e, out=d)
-        inside = (x > 0.0) & (x < self.length_mm) & (rho < self.radius_at(x))
+        inside = (x > self.start_mm) & (x < self.length_mm) & (rho < self.radius_at(x))
         return np.where(inside, -d, d)
 
     def bounds(self) -> tuple[np.ndarray, np.ndarray]:
         r = self.max_radius_mm()
-        return np.array([0.0, -r, -r]), np.array([self.length_mm, r, r])
+        return np.array([self.start_mm, -r, -r]), np.array([self.length_mm, r, r])
 
     def volume_mm3(self) -> float:
         """Exact volume (mm3) by discs: pi times the integral of rho^2 dx along the outline
@@ -428,7 +431,7 @@ class Revolved:
         the hull of the x where the profile stands at radius >= |t|; between the two cross
         axes, the chord of the widest circle."""
         if w == 0:
-            if t < 0.0 or t > self.length_mm:
+            if t < self.start_mm or t > self.length_mm:
                 return None
             r = max(float(self.radius_at(np.array([t]))[0]), 0.0)
             return (-r, r)
