@@ -233,7 +233,10 @@ def _body_size_mm(node: Node | None) -> tuple[float, float, float] | None:
     values = MapReader(node, "body", scratch).take_all(cls.FIELDS)
     if scratch:
         return None
-    lo, hi = bounds_of(cls(**values).primitives())
+    try:
+        lo, hi = bounds_of(cls(**values).primitives())
+    except ValueError:  # a kind whose cross-check failed may have no shape at all
+        return None
     return (hi[0] - lo[0], hi[1] - lo[1], hi[2] - lo[2])
 
 

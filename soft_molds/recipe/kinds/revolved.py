@@ -102,14 +102,22 @@ class RevolvedBody:
                         line, v["round_mm"], allowed) for i, what, allowed in bad[:1]]
 
     def profile(self) -> tuple[tuple[float, float], ...]:
-        """The (x, radius) points, mm (as written, or the bellows shortcut's)."""
+        """The (x, radius) points, mm (as written, or the bellows shortcut's). ValueError
+        when the fields give none (only a body that failed its cross-check)."""
         if self.profile_mm is not None:
             return self.profile_mm
-        return bellows_profile(*(getattr(self, k) for k in BELLOWS_FIELDS))
+        values = [getattr(self, k) for k in BELLOWS_FIELDS]
+        if any(x is None for x in values):
+            raise ValueError("neither profile_mm nor every bellows field is given")
+        return bellows_profile(*values)
 
     def solid(self) -> Revolved:
+        """The body as one primitive. ValueError for a profile that failed its checks."""
         pts = self.profile()
-        return Revolved(pts, per_point(pts, self.round_mm))
+        rr = per_point(pts, self.round_mm)
+        if len(rr) != len(pts) or profile_problems(pts, rr):
+            raise ValueError("the profile is not valid (see cross_check)")
+        return Revolved(pts, rr)
 
     def primitives(self) -> tuple[Primitive, ...]:
         return (self.solid(),)
