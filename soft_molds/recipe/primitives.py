@@ -204,7 +204,10 @@ def profile_pieces(points: tuple[tuple[float, float], ...], rounds: tuple[float,
         t = corner_tangent_mm(prev, at, nxt, rho)
         a = (at - prev) / np.linalg.norm(at - prev)
         b = (nxt - at) / np.linalg.norm(nxt - at)
-        t_in, t_out = at - a * t, at + b * t
+        # A rounding that takes a whole edge ends exactly on the next corner (no float
+        # sliver of edge left, which would hide the corner's own x from radius_at).
+        t_in = prev if t >= np.linalg.norm(at - prev) - PROFILE_EPS_MM else at - a * t
+        t_out = nxt if t >= np.linalg.norm(nxt - at) - PROFILE_EPS_MM else at + b * t
         convex = a[0] * b[1] - a[1] * b[0] < 0.0  # a right turn of the clockwise outline
         n_in = np.array([a[1], -a[0]]) if convex else np.array([-a[1], a[0]])
         c = t_in + rho * n_in

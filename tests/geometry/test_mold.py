@@ -14,7 +14,8 @@ import trimesh
 from soft_molds.plan.layout import key_symmetry_clashes
 from soft_molds.recipe.model import ISO273_MEDIUM_MM
 
-NAMES = ["seedling-finger", "tray-pusher", "stem-cushion", "wrist-twister", "soil-tamper"]
+NAMES = ["seedling-finger", "tray-pusher", "stem-cushion", "wrist-twister", "soil-tamper",
+         "plug-bellows"]
 
 
 def manifold(mesh) -> m3.Manifold:
