@@ -257,14 +257,14 @@ def profile_problems(points: tuple[tuple[float, float], ...], rounds: tuple[floa
     radius = [0.0, *rounds] + [0.0] * (len(v) - 1 - len(rounds))
     tan = [0.0] + [corner_tangent_mm(v[j - 1], v[j], v[j + 1], radius[j])
                    for j in range(1, len(v) - 1)] + [0.0]
-    last = len(points) - 1
+    final = len(points) - 1
     for j in range(len(v) - 1):
         need = tan[j] + tan[j + 1]
         edge = float(np.linalg.norm(v[j + 1] - v[j]))
         if need > edge * (1.0 + 1e-9) + PROFILE_EPS_MM:
             # Vertex j is point j - 1; name the corner that takes more of the edge.
-            i = min(max(j - 1 if tan[j] >= tan[j + 1] else j, 0), last)
-            where = ("the inlet face" if j == 0 else "the far end face" if j > last
+            i = min(max(j - 1 if tan[j] >= tan[j + 1] else j, 0), final)
+            where = ("the inlet face" if j == 0 else "the far end face" if j > final
                      else f"the edge from point {j - 1} to point {j}")
             out.append((i, f"has roundings that do not fit {where}: they need {need:.3f} mm "
                         f"of it, it is {edge:.3f} mm long",
