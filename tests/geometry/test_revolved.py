@@ -269,3 +269,40 @@ def test_rounded_crests_set_the_bounds_and_the_plan_parts_through_the_axis():
     assert np.allclose(lo, (0.0, -top, -top)) and np.allclose(hi, (58.0, top, top))
     offset, width = widest_offset((body,), 1, 2)
     assert offset == 0.0 and width == pytest.approx(2.0 * top, rel=1e-9)
+
+
+# ---- any valid profile ---------------------------------------------------------------------
+
+def _random_profiles(n: int, seed: int = 11):
+    from soft_molds.recipe.primitives import profile_problems
+
+    rng = np.random.default_rng(seed)
+    out = []
+    while len(out) < n:
+        k = int(rng.integers(2, 9))
+        xs = np.concatenate([[0.0], np.cumsum(rng.uniform(3.0, 10.0, k - 1))])
+        rs = rng.uniform(3.0, 15.0, k)
+        if rng.random() < 0.3:
+            rs[-1] = 0.0
+        rr = rng.uniform(0.0, 3.0, k) * (rs > 0)
+        pts = tuple((float(x), float(r)) for x, r in zip(xs, rs))
+        if not profile_problems(pts, tuple(float(x) for x in rr)):
+            out.append((pts, tuple(float(x) for x in rr)))
+    return out
+
+
+@pytest.mark.parametrize("profile", _random_profiles(40))
+def test_the_volume_by_discs_equals_pappus_for_any_valid_profile(profile):
+    from soft_molds.recipe.primitives import Revolved
+
+    pts, rr = profile
+    assert Revolved(pts, rr).volume_mm3() == pytest.approx(pappus(pts, rr)[0], rel=1e-9)
+
+
+def test_one_random_profile_builds_to_its_pappus_volume(kernel):
+    from soft_molds.recipe.primitives import Revolved
+
+    k, _ = kernel
+    pts, rr = _random_profiles(1, seed=5)[0]
+    solid = k.build_primitive(Revolved(pts, rr), "body")
+    assert close(solid.Volume(), pappus(pts, rr)[0], 1e-3)
