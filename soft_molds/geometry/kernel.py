@@ -238,9 +238,7 @@ def _clean(raw: cq.Shape) -> tuple[cq.Shape, bool, float | None]:
     upstream failure mode, kernel-notes). Returns the shape, whether it was found valid and,
     when measured, its volume (mm3; volume integration is costly on filleted shapes)."""
     try:
-        # On a copy: unifying rewrites shared edges in place, and a part split from the same
-        # block (the other shell half) shares the parting faces' edges with this one.
-        cleaned = raw.copy().clean()
+        cleaned = raw.clean()
     except Exception:
         return raw, False, None
     if not cleaned.isValid():
@@ -270,6 +268,9 @@ def split_at(shape: cq.Shape, axis: int, offset: float, part: str) -> tuple[cq.S
     # The halves lie on either side of the plane: the centres of their loose bounding boxes
     # order them as well as their centres of mass would, at a fraction of the cost.
     pieces.sort(key=lambda s: _loose_box_centre(s)[axis])
+    # The halves share the parting face's edges; cleaning one after a later boolean
+    # rewrites shared edges in place, so the upper half gets its own copy of them.
+    pieces[1] = pieces[1].copy()
     below, above = (checked(p, part, "split at parting plane") for p in pieces)
     total = volume(below) + volume(above)
     whole = volume(shape)
