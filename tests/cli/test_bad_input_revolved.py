@@ -188,8 +188,9 @@ CASES = [
            "follows the body's profile, and only a revolved body has one (body.kind is rod)",
            "'bellows'", "body.kind: revolved"),)),
     Case("bellows-wall-thicker-than-the-pleats", _thick, (
-        _e("voids[0].wall_mm", _at(_thick, "wall_mm: 4"), "cannot follow the body: near the "
-           "bellows fields it", "4.0", "a wall thinner than half the body's narrowest pleat"),)),
+        _e("voids[0].wall_mm", _at(_thick, "wall_mm: 4"), "cannot follow the body: near point 0 "
+           "of the profile the bellows fields make it leaves no room inside", "4.0",
+           "a wall thinner than half the body's narrowest pleat"),)),
     Case("bellows-without-wall", _no_wall, (
         _e("voids[0].wall_mm", _at(_no_wall, "kind: bellows"), "is required", None, NUMBER),)),
     Case("bellows-wall-zero", _zero_wall, (

@@ -127,7 +127,7 @@ class Bellows:
         if cavity is None:
             i, what = why if why is not None else (0, "")
             at = (f"body.profile_mm[{i}]" if body.profile_mm is not None else
-                  "the bellows fields")
+                  f"point {i} of the profile the bellows fields make")
             return None, [Problem(f"{path}.wall_mm", f"cannot follow the body: near {at} it "
                                   f"{what}", None, self.wall_mm,
                                   "a wall thinner than half the body's narrowest pleat or "
