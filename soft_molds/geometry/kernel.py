@@ -17,7 +17,7 @@ from OCP.BRepAlgoAPI import BRepAlgoAPI_Cut, BRepAlgoAPI_Fuse, BRepAlgoAPI_Split
 from OCP.BRepBndLib import BRepBndLib
 
 from ..errors import GeometryError
-from ..recipe.primitives import AXES, Primitive, RoundedBox, RoundedRod
+from ..recipe.primitives import AXES, Primitive, ProfileLine, Revolved, RoundedBox, RoundedRod
 
 Shape = cq.Shape
 _DIRS = {0: cq.Vector(1, 0, 0), 1: cq.Vector(0, 1, 0), 2: cq.Vector(0, 0, 1)}
@@ -164,11 +164,37 @@ def _rounded_rod(p: RoundedRod, part: str) -> cq.Shape:
     return solid.translate(cq.Vector(*offset))
 
 
+#: Angle (deg) the seams of a revolved profile are turned about x, away from y = 0 and z = 0.
+SEAM_TURN_DEG = 45.0
+
+
+def _revolved(p: Revolved, part: str) -> cq.Shape:
+    """Revolve the profile outline (lines and rounding arcs in the local XY plane: X along
+    the axis, Y the radius) about the x axis, closed along the axis; checked against the
+    volume of the same outline by discs (Pappus)."""
+    pieces = p.pieces()
+    wp = cq.Workplane("XY").moveTo(*pieces[0].start)
+    for piece in pieces:
+        if isinstance(piece, ProfileLine):
+            wp = wp.lineTo(*piece.end)
+        else:
+            wp = wp.threePointArc(piece.mid(), piece.end)
+    made = wp.close().revolve(360, (0, 0, 0), (1, 0, 0)).val()
+    if not isinstance(made, cq.Shape):
+        raise GeometryError("revolve profile", "the kernel returned no solid", part)
+    # The revolved faces' seams lie in the profile's plane; turned off both parting planes
+    # through the axis (y = 0, z = 0), the split never runs along them.
+    made = made.rotate(cq.Vector(0, 0, 0), cq.Vector(1, 0, 0), SEAM_TURN_DEG)
+    return checked(made, part, "revolve profile", volume_mm3=p.volume_mm3(), rel_tol=1e-6)
+
+
 def build_primitive(p: Primitive, part: str) -> cq.Shape:
     if isinstance(p, RoundedBox):
         return _rounded_box(p, part)
     if isinstance(p, RoundedRod):
         return _rounded_rod(p, part)
+    if isinstance(p, Revolved):
+        return _revolved(p, part)
     raise GeometryError("build primitive", f"unknown primitive {type(p).__name__}", part)
 
 
@@ -247,6 +273,9 @@ def split_at(shape: cq.Shape, axis: int, offset: float, part: str) -> tuple[cq.S
     # The halves lie on either side of the plane: the centres of their loose bounding boxes
     # order them as well as their centres of mass would, at a fraction of the cost.
     pieces.sort(key=lambda s: _loose_box_centre(s)[axis])
+    # The halves share the parting face's edges; cleaning one after a later boolean
+    # rewrites shared edges in place, so the upper half gets its own copy of them.
+    pieces[1] = pieces[1].copy()
     below, above = (checked(p, part, "split at parting plane") for p in pieces)
     total = volume(below) + volume(above)
     whole = volume(shape)

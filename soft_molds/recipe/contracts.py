@@ -13,6 +13,10 @@ Void kinds provide ``primitives(body_length_mm)``, ``entry()`` and
 ``membranes(body_length_mm)`` (the walls
 inflation loads from one side, for the pressure check; a void with none returns ``()``
 explicitly, so a kind cannot lose its pressure check by omission).
+
+A void whose shape follows the body's (a bellows cavity inside a revolved body) may also
+provide ``follow_body(body, path)``: called once the body is read, it returns the void fitted
+to that body (or None) and the problems that refuse the pair, each naming its field path.
 """
 
 from __future__ import annotations

@@ -68,6 +68,8 @@ class Field:
             return "one of " + ", ".join(self.choices)
         if self.kind == "text":
             return "text"
+        if self.kind in ("points", "rounds"):
+            return _list_allowed(self)
         parts = []
         if self.gap_below > 0.0:
             parts.append(f"0 or {_fmt(self.gap_below)} <= ")
@@ -84,6 +86,16 @@ class Field:
 
 
 REQUIRED = _REQUIRED
+
+#: Most points a profile field takes: a bellows of 100 pleats needs about 200.
+MAX_POINTS = 400
+
+
+def _list_allowed(f: Field) -> str:
+    each = f"0 or {_fmt(f.gap_below)} <= value <= {_fmt(f.hi or MAX_SIZE_MM)} {f.unit}"
+    if f.kind == "points":
+        return (f"a list of 2 to {MAX_POINTS} points [x, radius], each value {each}")
+    return f"a number, or a list of numbers (one per point), each {each}"
 
 
 def number(name: str, doc: str, default: object = REQUIRED, *, unit: str = "mm",
@@ -114,6 +126,20 @@ def text(name: str, doc: str, default: object = REQUIRED) -> Field:
 def pair(name: str, doc: str, default: object = REQUIRED, *, unit: str = "mm",
          lo: float | None = -MAX_SIZE_MM, hi: float | None = MAX_SIZE_MM) -> Field:
     return Field(name, "pair", doc, default, unit, lo, hi, False)
+
+
+def points(name: str, doc: str, default: object = None) -> Field:
+    """A list of (x, radius) points in mm, each coordinate 0 or at least ``MIN_SIZE_MM``
+    (the order and shape of the points are the kind's to check)."""
+    return Field(name, "points", doc, default, "mm", 0.0, MAX_SIZE_MM, False,
+                 gap_below=MIN_SIZE_MM)
+
+
+def rounds(name: str, doc: str, default: object = 0.0) -> Field:
+    """One rounding radius (mm) for every corner of a profile, or a list of one per point;
+    each 0 or at least ``MIN_SIZE_MM``."""
+    return Field(name, "rounds", doc, default, "mm", 0.0, MAX_SIZE_MM, False,
+                 gap_below=MIN_SIZE_MM)
 
 
 def join_path(base: str, key: str | int) -> str:
@@ -202,6 +228,8 @@ class MapReader:
             if out[0] is None or out[1] is None:
                 return None
             return (float(out[0]), float(out[1]))
+        if f.kind in ("points", "rounds"):
+            return self._take_list(f, path, line, n)
         if not _is_number(v):
             self.problem(path, "must be a number" if f.kind == "number" else
                          "must be a whole number", line, n.plain(), f.allowed())
@@ -213,6 +241,39 @@ class MapReader:
         if checked is None:
             return None
         return int(checked) if f.kind == "integer" else float(checked)
+
+    def _take_list(self, f: Field, path: str, line: int | None, n: Node) -> Any:
+        """A ``points`` or ``rounds`` value: every bad item reported on its own line."""
+        if f.kind == "rounds" and _is_number(n.value):
+            return self._check_number(f, path, line, n.value)
+        items = n.value if isinstance(n.value, list) else None
+        if items is None or not items or len(items) > MAX_POINTS:
+            self.problem(path, "must be a list" if items is None else
+                         "has too many items" if items else "must not be empty", line,
+                         n.plain() if items is None else len(items), f.allowed())
+            return None
+        out: list[Any] = []
+        for i, item in enumerate(items):
+            ipath, iline = join_path(path, i), item.line
+            if f.kind == "rounds":
+                if not _is_number(item.value):
+                    self.problem(ipath, "must be a number", iline, item.plain(), f.allowed())
+                    out.append(None)
+                else:
+                    out.append(self._check_number(f, ipath, iline, item.value))
+                continue
+            pair_ = item.value if isinstance(item.value, list) else None
+            if pair_ is None or len(pair_) != 2 or not all(_is_number(c.value) for c in pair_):
+                self.problem(ipath, "must be a point [x, radius] of two numbers", iline,
+                             item.plain(), f.allowed())
+                out.append(None)
+                continue
+            xy = [self._check_number(f, ipath, iline, c.value) for c in pair_]
+            out.append(None if None in xy else (xy[0], xy[1]))
+        if f.kind == "points" and len(items) < 2:
+            self.problem(path, "has fewer than two points", line, len(items), f.allowed())
+            return None
+        return None if any(v is None for v in out) else tuple(out)
 
     def _check_number(self, f: Field, path: str, line: int | None, v: object) -> float | None:
         try:

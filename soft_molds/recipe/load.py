@@ -16,7 +16,7 @@ from pathlib import Path
 
 from ..errors import Problem, RecipeError
 from ..units import psi_to_kpa
-from .contracts import bounds_of
+from .contracts import BodyKind, bounds_of
 from .fields import MapReader, join_path, suggest
 from .materials import resolve
 from .model import (
@@ -194,13 +194,29 @@ def _read_kind(node: Node | None, path: str, registry: dict, problems: list[Prob
         # A kind's cross-check only knows the block's line; point at the field's own key
         # when the recipe wrote it (a default keeps the block's line).
         prefix = path + "."
-        located = [replace(p, line=r.line_of(p.path[len(prefix):]))
-                   if p.path.startswith(prefix) and p.path[len(prefix):] in r.items else p
-                   for p in extra]
+        located = [replace(p, line=_field_line(r, p.path[len(prefix):]) or p.line)
+                   if p.path.startswith(prefix) else p for p in extra]
         problems.extend(located)
         follow_on.extend(located)
         return None
     return cls(**values)
+
+
+def _field_line(r: MapReader, sub: str) -> int | None:
+    """The line of a kind's field (``round_mm``) or of an item of it (``profile_mm[3]``)
+    as the recipe wrote it; None when it was not written there."""
+    m = re.fullmatch(r"([A-Za-z0-9_]+)((?:\[\d+\])*)", sub)
+    if m is None or m.group(1) not in r.items:
+        return None
+    node = r.items[m.group(1)]
+    line = r.line_of(m.group(1))
+    for index in re.findall(r"\[(\d+)\]", m.group(2)):
+        items = node.value if isinstance(node.value, list) else []
+        if int(index) >= len(items):
+            return line
+        node = items[int(index)]
+        line = node.line
+    return line
 
 
 def _body_size_mm(node: Node | None) -> tuple[float, float, float] | None:
@@ -217,7 +233,10 @@ def _body_size_mm(node: Node | None) -> tuple[float, float, float] | None:
     values = MapReader(node, "body", scratch).take_all(cls.FIELDS)
     if scratch:
         return None
-    lo, hi = bounds_of(cls(**values).primitives())
+    try:
+        lo, hi = bounds_of(cls(**values).primitives())
+    except ValueError:  # a kind whose cross-check failed may have no shape at all
+        return None
     return (hi[0] - lo[0], hi[1] - lo[1], hi[2] - lo[2])
 
 
@@ -298,6 +317,9 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
 
     if problems or body is None or any(v is None for v in voids):
         raise refused()
+    voids = _follow_body(body, voids, problems, _lines(root))
+    if problems:
+        raise refused()
 
     inlet_v = blocks["inlet"]
     if inlet_v["center_mm"] is None:
@@ -368,6 +390,27 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
             exc.recipe = recipe
         raise exc
     return recipe
+
+
+def _follow_body(body: BodyKind, voids: list, problems: list[Problem],
+                 lines: dict[str, int]) -> list:
+    """The voids, those that follow the body's shape (a ``follow_body`` method, see
+    :mod:`.contracts`) fitted to it; their problems, located by path, added to
+    ``problems``."""
+    out = []
+    for i, v in enumerate(voids):
+        follow = getattr(v, "follow_body", None)
+        if follow is None:
+            out.append(v)
+            continue
+        fitted, found = follow(body, join_path("voids", i))
+        for p in found:
+            path = p.path
+            while p.line is None and path and path not in lines:
+                path = path.rsplit(".", 1)[0] if "." in path else ""
+            problems.append(p if p.line is not None else replace(p, line=lines.get(path)))
+        out.append(fitted if fitted is not None else v)
+    return out
 
 
 def _lines(root: Node) -> dict[str, int]:

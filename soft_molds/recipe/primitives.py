@@ -10,6 +10,7 @@ Frame: mm; +x is the body's long axis, pointing away from the inlet face at x = 
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 
 import numpy as np
@@ -126,7 +127,367 @@ class RoundedRod:
         return (cv - half, cv + half)
 
 
-Primitive = RoundedBox | RoundedRod
+# ---- Revolved: a profile of (x, radius) points revolved about the x axis ------------------
+
+#: Lengths below this are float noise in a profile (mm): a segment that short between two
+#: roundings is left out, and two roundings may meet on an edge within it.
+PROFILE_EPS_MM = 1e-9
+
+
+@dataclass(frozen=True)
+class ProfileArc:
+    """A rounding of the profile in the (x, rho) half plane: centre, radius and its end
+    points (mm), ``upper`` when the arc is the upper half of its circle (a convex corner;
+    a concave one, seen from inside the solid, is the lower half)."""
+
+    center: tuple[float, float]
+    radius: float
+    start: tuple[float, float]
+    end: tuple[float, float]
+    upper: bool
+
+    def mid(self) -> tuple[float, float]:
+        u = np.asarray(self.start) + np.asarray(self.end) - 2.0 * np.asarray(self.center)
+        n = float(np.linalg.norm(u))
+        u = u / n if n > 0 else np.array([0.0, 1.0 if self.upper else -1.0])
+        return (self.center[0] + self.radius * float(u[0]),
+                self.center[1] + self.radius * float(u[1]))
+
+
+@dataclass(frozen=True)
+class ProfileLine:
+    """A straight piece of the profile from ``start`` to ``end`` in (x, rho), mm."""
+
+    start: tuple[float, float]
+    end: tuple[float, float]
+
+
+ProfilePiece = ProfileLine | ProfileArc
+
+
+def corner_tangent_mm(prev: np.ndarray, at: np.ndarray, nxt: np.ndarray, radius: float) -> float:
+    """How far from the corner ``at`` a rounding of ``radius`` touches each of its two edges
+    (mm): radius x tan(turn / 2), the turn being the angle between the edge directions."""
+    a, b = at - prev, nxt - at
+    a, b = a / np.linalg.norm(a), b / np.linalg.norm(b)
+    turn = float(np.arctan2(abs(a[0] * b[1] - a[1] * b[0]), float(a @ b)))
+    return radius * float(np.tan(turn / 2.0))
+
+
+def profile_vertices(points: tuple[tuple[float, float], ...]) -> np.ndarray:
+    """The closed profile's corners, clockwise in (x, rho): the axis point under the near
+    face, the points, and the axis point under the far end (left out when the last point
+    already lies on the axis)."""
+    pts = [(points[0][0], 0.0), *points]
+    if points[-1][1] > 0.0:
+        pts.append((points[-1][0], 0.0))
+    return np.asarray(pts, dtype=np.float64)
+
+
+@functools.lru_cache(maxsize=256)
+def profile_pieces(points: tuple[tuple[float, float], ...], rounds: tuple[float, ...]
+                   ) -> tuple[ProfilePiece, ...]:
+    """The profile's outline from the inlet face's axis point to the far end's, rounded
+    (the axis itself is no surface and is left out). Assumes a valid profile
+    (:func:`profile_problems` finds none)."""
+    v = profile_vertices(points)
+    radius = [0.0, *rounds] + [0.0] * (len(v) - 1 - len(rounds))
+    out: list[ProfilePiece] = []
+    cursor = v[0]
+    for j in range(1, len(v) - 1):
+        prev, at, nxt = v[j - 1], v[j], v[j + 1]
+        rho = radius[j]
+        if rho <= 0.0:
+            _line(out, cursor, at)
+            cursor = at
+            continue
+        t = corner_tangent_mm(prev, at, nxt, rho)
+        a = (at - prev) / np.linalg.norm(at - prev)
+        b = (nxt - at) / np.linalg.norm(nxt - at)
+        # A rounding that takes a whole edge ends exactly on the next corner (no float
+        # sliver of edge left, which would hide the corner's own x from radius_at).
+        t_in = prev if t >= np.linalg.norm(at - prev) - PROFILE_EPS_MM else at - a * t
+        t_out = nxt if t >= np.linalg.norm(nxt - at) - PROFILE_EPS_MM else at + b * t
+        convex = a[0] * b[1] - a[1] * b[0] < 0.0  # a right turn of the clockwise outline
+        n_in = np.array([a[1], -a[0]]) if convex else np.array([-a[1], a[0]])
+        c = t_in + rho * n_in
+        _line(out, cursor, t_in)
+        out.append(ProfileArc((float(c[0]), float(c[1])), rho, _pt(t_in), _pt(t_out),
+                              bool(convex)))
+        cursor = t_out
+    _line(out, cursor, v[-1])
+    return tuple(out)
+
+
+def _pt(p: np.ndarray) -> tuple[float, float]:
+    return (float(p[0]) + 0.0, float(p[1]) + 0.0)
+
+
+def _line(out: list[ProfilePiece], a: np.ndarray, b: np.ndarray) -> None:
+    if float(np.linalg.norm(b - a)) > PROFILE_EPS_MM:
+        out.append(ProfileLine(_pt(a), _pt(b)))
+
+
+def profile_problems(points: tuple[tuple[float, float], ...], rounds: tuple[float, ...]
+                     ) -> list[tuple[int, str, str]]:
+    """What makes a profile unusable, as (point index, what is wrong, what is allowed):
+    x rises strictly from point to point (the
+    radius is a function of x: no overhang, so no self-intersection and no undercut
+    against a parting plane through the axis), every radius is > 0 except that the last
+    may be 0 (a tip closing on the axis; it takes no rounding), and the roundings of the
+    two corners of every edge fit on it together."""
+    out: list[tuple[int, str, str]] = []
+    if len(points) < 2:
+        return [(0, "has fewer than two points", "at least two (x, radius) points")]
+    for i, (x, r) in enumerate(points):
+        last = i == len(points) - 1
+        if r < 0.0 or (r == 0.0 and not last):
+            out.append((i, "has no positive radius",
+                        "radius > 0 (only the last point may close on the axis, radius 0)"))
+        if i and x <= points[i - 1][0]:
+            out.append((i, f"does not lie beyond point {i - 1} along x",
+                        f"x > {points[i - 1][0]:g} mm: x rises strictly (no overhanging "
+                        "profile for now)"))
+    if points[-1][1] == 0.0 and rounds[-1] > 0.0:
+        out.append((len(points) - 1, "rounds a tip on the axis",
+                    "rounding 0 where the profile closes on the axis"))
+    if out:
+        return out
+    v = profile_vertices(points)
+    radius = [0.0, *rounds] + [0.0] * (len(v) - 1 - len(rounds))
+    tan = [0.0] + [corner_tangent_mm(v[j - 1], v[j], v[j + 1], radius[j])
+                   for j in range(1, len(v) - 1)] + [0.0]
+    final = len(points) - 1
+    for j in range(len(v) - 1):
+        need = tan[j] + tan[j + 1]
+        edge = float(np.linalg.norm(v[j + 1] - v[j]))
+        if need > edge * (1.0 + 1e-9) + PROFILE_EPS_MM:
+            # Vertex j is point j - 1; name the corner that takes more of the edge.
+            i = min(max(j - 1 if tan[j] >= tan[j + 1] else j, 0), final)
+            where = ("the inlet face" if j == 0 else "the far end face" if j > final
+                     else f"the edge from point {j - 1} to point {j}")
+            out.append((i, f"has roundings that do not fit {where}: they need {need:.3f} mm "
+                        f"of it, it is {edge:.3f} mm long",
+                        "smaller roundings (each takes radius x tan(turn/2) of both edges)"))
+    return out
+
+
+def _to_profile(p: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    return p[:, 0], np.hypot(p[:, 1], p[:, 2])
+
+
+def _segment_distance(q: np.ndarray, a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    ab = b - a
+    t = np.clip(((q - a) @ ab) / float(ab @ ab), 0.0, 1.0)
+    return np.linalg.norm(q - (a + t[:, None] * ab), axis=1)
+
+
+def _arc_distance(q: np.ndarray, arc: ProfileArc) -> np.ndarray:
+    c = np.asarray(arc.center)
+    u1, u2 = np.asarray(arc.start) - c, np.asarray(arc.end) - c
+    s = np.sign(u1[0] * u2[1] - u1[1] * u2[0]) or 1.0
+    d = q - c
+    on = ((u1[0] * d[:, 1] - u1[1] * d[:, 0]) * s >= 0.0) & \
+         ((d[:, 0] * u2[1] - d[:, 1] * u2[0]) * s >= 0.0)
+    ends = np.minimum(np.linalg.norm(q - np.asarray(arc.start), axis=1),
+                      np.linalg.norm(q - np.asarray(arc.end), axis=1))
+    return np.where(on, np.abs(np.linalg.norm(d, axis=1) - arc.radius), ends)
+
+
+def _radius_at(piece: ProfilePiece, x: np.ndarray) -> np.ndarray:
+    """rho of ``piece`` at each x (-inf where the piece does not span x; vertical lines,
+    the end faces, span none)."""
+    (x0, r0), (x1, r1) = piece.start, piece.end
+    lo, hi = min(x0, x1), max(x0, x1)
+    inside = (x >= lo) & (x <= hi) & (hi > lo)
+    if isinstance(piece, ProfileLine):
+        rho = r0 + (r1 - r0) * (x - x0) / (x1 - x0) if x1 != x0 else np.zeros_like(x)
+    else:
+        cx, cy = piece.center
+        h = np.sqrt(np.maximum(piece.radius ** 2 - (x - cx) ** 2, 0.0))
+        rho = cy + h if piece.upper else cy - h
+    return np.where(inside, rho, -np.inf)
+
+
+def _spans_at_least(piece: ProfilePiece, a: float) -> list[tuple[float, float]]:
+    """Sub-intervals of x over which ``piece`` stands at radius >= ``a`` (exact)."""
+    (x0, r0), (x1, r1) = piece.start, piece.end
+    lo, hi = min(x0, x1), max(x0, x1)
+    if isinstance(piece, ProfileLine):
+        if r0 >= a and r1 >= a:
+            return [(lo, hi)]
+        if r0 < a and r1 < a:
+            return []
+        xc = x0 + (a - r0) * (x1 - x0) / (r1 - r0)
+        return [(xc, max(x0, x1))] if (r1 >= a) == (x1 >= x0) else [(min(x0, x1), xc)]
+    cx, cy = piece.center
+    rr = piece.radius
+    if piece.upper:
+        if a <= cy:
+            return [(lo, hi)]
+        if a > cy + rr:
+            return []
+        h = float(np.sqrt(rr * rr - (a - cy) ** 2))
+        s0, s1 = max(lo, cx - h), min(hi, cx + h)
+        return [(s0, s1)] if s0 <= s1 else []
+    if a > cy:
+        return []
+    h = float(np.sqrt(max(rr * rr - (cy - a) ** 2, 0.0)))
+    out = [(lo, min(hi, cx - h)), (max(lo, cx + h), hi)]
+    return [s for s in out if s[0] <= s[1]]
+
+
+@dataclass(frozen=True)
+class Revolved:
+    """A solid of revolution about the x axis: the region under the profile ``points``
+    ((x, radius) in mm, x rising from the flat near face at the first point's x, 0 for a
+    body's inlet face, to the far end, where a flat face closes it unless the last radius
+    is 0) in the (x, rho) half plane, every point's corner rounded by ``rounds_mm`` (one
+    per point, 0 = sharp). :func:`profile_problems` says what makes a profile invalid."""
+
+    points: tuple[tuple[float, float], ...]
+    rounds_mm: tuple[float, ...]
+
+    def pieces(self) -> tuple[ProfilePiece, ...]:
+        return profile_pieces(self.points, self.rounds_mm)
+
+    @property
+    def start_mm(self) -> float:
+        return self.points[0][0]
+
+    @property
+    def length_mm(self) -> float:
+        """x of the far end (mm)."""
+        return self.points[-1][0]
+
+    def max_radius_mm(self) -> float:
+        best = 0.0
+        for p in self.pieces():
+            best = max(best, p.start[1], p.end[1])
+            if isinstance(p, ProfileArc) and p.upper:
+                lo, hi = sorted((p.start[0], p.end[0]))
+                if lo <= p.center[0] <= hi:
+                    best = max(best, p.center[1] + p.radius)
+        return best
+
+    def radius_at(self, x: np.ndarray) -> np.ndarray:
+        """Outer radius (mm) at each x in [start, length]; -inf outside."""
+        x = np.asarray(x, dtype=np.float64)
+        out = np.full(x.shape, -np.inf)
+        for p in self.pieces():
+            np.maximum(out, _radius_at(p, x), out=out)
+        return out
+
+    def sdf(self, p: np.ndarray) -> np.ndarray:
+        """Exact signed distance (mm): the nearest surface point of a solid of revolution
+        lies in the query point's own meridian half plane, so the 3-D distance is the 2-D
+        distance in (x, rho) to the profile outline (the axis is no surface)."""
+        x, rho = _to_profile(np.asarray(p, dtype=np.float64))
+        q = np.stack([x, rho], axis=1)
+        d = np.full(len(q), np.inf)
+        for piece in self.pieces():
+            if isinstance(piece, ProfileLine):
+                e = _segment_distance(q, np.asarray(piece.start), np.asarray(piece.end))
+            else:
+                e = _arc_distance(q, piece)
+            np.minimum(d, e, out=d)
+        inside = (x > self.start_mm) & (x < self.length_mm) & (rho < self.radius_at(x))
+        return np.where(inside, -d, d)
+
+    def bounds(self) -> tuple[np.ndarray, np.ndarray]:
+        r = self.max_radius_mm()
+        return np.array([self.start_mm, -r, -r]), np.array([self.length_mm, r, r])
+
+    def volume_mm3(self) -> float:
+        """Exact volume (mm3) by discs: pi times the integral of rho^2 dx along the outline
+        (clockwise, so the top runs towards +x), each piece in closed form."""
+        total = 0.0
+        for p in self.pieces():
+            (x0, r0), (x1, r1) = p.start, p.end
+            if isinstance(p, ProfileLine):
+                total += (x1 - x0) * (r0 * r0 + r0 * r1 + r1 * r1) / 3.0
+                continue
+            cx, cy = p.center
+            a = p.radius
+            t0 = float(np.arctan2(r0 - cy, x0 - cx))
+            # The short way round from start to end: every rounding turns by < 180 deg.
+            t1 = t0 + _wrap(float(np.arctan2(r1 - cy, x1 - cx)) - t0)
+            total += _arc_rho2_dx(cy, a, t1) - _arc_rho2_dx(cy, a, t0)
+        return float(np.pi * total)
+
+    def surface_samples(self, spacing_mm: float) -> np.ndarray:
+        """Points on the surface: the outline sampled at most ``spacing_mm`` apart, each
+        sample revolved with at most that spacing round the axis, and the end faces."""
+        prof = []
+        for p in self.pieces():
+            n = max(2, int(np.ceil(_piece_length(p) / spacing_mm)) + 1)
+            for t in np.linspace(0.0, 1.0, n):
+                prof.append(_piece_point(p, float(t)))
+        out = []
+        for x, rho in prof:
+            k = max(1, int(np.ceil(2 * np.pi * rho / spacing_mm)))
+            ang = np.arange(k) * 2 * np.pi / k
+            out.append(np.stack([np.full(k, x), rho * np.cos(ang), rho * np.sin(ang)], axis=1))
+        return np.concatenate(out)
+
+    def section_extent(self, v: int, w: int, t: float) -> tuple[float, float] | None:
+        """Extent (lo, hi) along ``v`` of the section by ``coord[w] = t`` (None: the plane
+        misses). Exact: across the axis a disc of the profile's radius at x = t; along it,
+        the hull of the x where the profile stands at radius >= |t|; between the two cross
+        axes, the chord of the widest circle."""
+        if w == 0:
+            if t < self.start_mm or t > self.length_mm:
+                return None
+            r = max(float(self.radius_at(np.array([t]))[0]), 0.0)
+            return (-r, r)
+        a = abs(t)
+        if v == 0:
+            spans = [s for p in self.pieces() for s in _spans_at_least(p, a)]
+            if not spans:
+                return None
+            return (min(s[0] for s in spans), max(s[1] for s in spans))
+        big = self.max_radius_mm()
+        if a > big:
+            return None
+        h = float(np.sqrt(big * big - a * a))
+        return (-h, h)
+
+
+def _arc_rho2_dx(cy: float, a: float, t: float) -> float:
+    """Antiderivative in t of rho^2 dx/dt on the circle x = cx + a cos t, rho = cy + a sin t
+    (dx = -a sin t dt), mm3."""
+    c = float(np.cos(t))
+    return -a * (cy * cy * (-c) + 2.0 * cy * a * (t / 2.0 - float(np.sin(2.0 * t)) / 4.0)
+                 + a * a * (-c + c ** 3 / 3.0))
+
+
+def _piece_length(p: ProfilePiece) -> float:
+    if isinstance(p, ProfileLine):
+        return float(np.hypot(p.end[0] - p.start[0], p.end[1] - p.start[1]))
+    chord = float(np.hypot(p.end[0] - p.start[0], p.end[1] - p.start[1]))
+    return 2.0 * p.radius * float(np.arcsin(min(1.0, chord / (2.0 * p.radius))))
+
+
+def _piece_point(p: ProfilePiece, t: float) -> tuple[float, float]:
+    s, e = np.asarray(p.start), np.asarray(p.end)
+    if isinstance(p, ProfileLine):
+        q = s + t * (e - s)
+        return float(q[0]), max(float(q[1]), 0.0)
+    c = np.asarray(p.center)
+    a0 = float(np.arctan2(*(s - c)[::-1]))
+    a1 = float(np.arctan2(*(e - c)[::-1]))
+    d = _wrap(a1 - a0)  # the short way round (turns are < 180 deg)
+    ang = a0 + t * d
+    return (float(c[0] + p.radius * np.cos(ang)),
+            max(float(c[1] + p.radius * np.sin(ang)), 0.0))
+
+
+def _wrap(a: float) -> float:
+    """``a`` (rad) wrapped into [-pi, pi)."""
+    return float((a + np.pi) % (2 * np.pi) - np.pi)
+
+
+Primitive = RoundedBox | RoundedRod | Revolved
 
 
 def union_sdf(prims: tuple[Primitive, ...], p: np.ndarray) -> np.ndarray:

@@ -21,6 +21,7 @@ from recipe_text import FINGER_TEXT, edit, line_of
 
 from soft_molds.cli import main
 from soft_molds.errors import SoftMoldsError
+from soft_molds.recipe.registry import body_kinds
 
 ROOT = Path(__file__).resolve().parents[2]
 GOOD = ROOT / "recipes" / "seedling-finger.yaml"
@@ -220,7 +221,7 @@ CASES = [
     _case("unknown-body-kind", _body_kind,
           Expect("body.kind", line_of(_body_kind, "kind: bars"),
                  "is not a known body kind (did you mean 'bar'?)", got="'bars'",
-                 allowed="bar, rod")),
+                 allowed=", ".join(body_kinds()))),
     _case("unknown-void-kind", _void_kind,
           Expect("voids[0].kind", line_of(_void_kind, "kind: chamber"),
                  "is not a known void kind (did you mean 'chambers'?)", got="'chamber'",
@@ -545,6 +546,7 @@ CHECK_SCRIPT = """\
 import sys
 from soft_molds.cli import main
 from soft_molds.errors import SoftMoldsError
+from soft_molds.recipe.registry import body_kinds
 status = main(["check", sys.argv[1], sys.argv[2]])
 print("status", status, "cadquery" in sys.modules, "OCP" in sys.modules)
 """

@@ -10,12 +10,12 @@ import manifold3d as m3
 import numpy as np
 import pytest
 import trimesh
-from conftest import built_variant, bundled_variants
+from conftest import BUNDLED, built_variant, bundled_variants
 
 from soft_molds.plan.layout import key_symmetry_clashes
 from soft_molds.recipe.model import ISO273_MEDIUM_MM
 
-NAMES = ["seedling-finger", "tray-pusher", "stem-cushion", "wrist-twister", "soil-tamper"]
+NAMES = BUNDLED
 #: Every variant of every bundled recipe, for the properties every mold set must have.
 VARIANTS = bundled_variants()
 VARIANT_IDS = [f"{stem}-{label}" for stem, label in VARIANTS]
