@@ -147,3 +147,18 @@ def test_two_rows_on_one_socket_match_the_closed_form(bundled):
     assert close(molds.void_volume_mm3, voids, 0.001)
     assert close(molds.part("cast").brep_volume_mm3, body - voids, 0.001)
     assert close(molds.part("cast").mesh.volume_mm3(), body - voids, 0.005)
+
+
+# ---- gap rod: a chamber row 4 mm above a rod's axis, fed from a coaxial socket ----------
+def test_chambers_above_a_rod_axis_match_the_closed_form(bundled):
+    """The feed channel (r 1 at z = 4) lies inside the 12 mm socket for its 8 mm depth
+    (4 + 1 < 6) and inside each chamber's flat faces (one depth each, half of the last), so
+    it shows for 18 + 4 x 9 + 2.5 - 8 - (4 x 5 + 2.5) = 26 mm."""
+    molds = bundled("gap-rod")
+    body = rounded_rod_volume(12.0, 72.0, 1.0)
+    chamber = rounded_box_volume(5.0, 12.0, 8.0, 0.5)
+    voids = PI * 6.0 ** 2 * 8.0 + 5 * chamber + PI * 1.0 ** 2 * 26.0
+    assert close(molds.volumes_mm3["body"], body, 0.001)
+    assert close(molds.void_volume_mm3, voids, 0.001)
+    assert close(molds.part("cast").brep_volume_mm3, body - voids, 0.001)
+    assert close(molds.part("cast").mesh.volume_mm3(), body - voids, 0.005)
