@@ -92,7 +92,7 @@ def sanity_problems(r: Recipe, lines: dict[str, int]) -> list[Problem]:
         samples = samples[~inside_self & ~inside_socket]
         _wall_problems(out, path, line(path), body, samples, min_wall,
                        partial(_wall_keys, void, path))
-        _socket_wall_problems(out, r, void, path, line(path), per_prim)
+        _socket_wall_problems(out, r, void, path, line, per_prim)
 
         (ey, ez), er, ex = void.entry()
         off = np.hypot(ey - cy, ez - cz)
@@ -159,7 +159,8 @@ def _wall_keys(void: object, path: str, outward: np.ndarray) -> str:
 
 
 def _socket_wall_problems(out: list[Problem], r: Recipe, void: object, path: str,
-                          line: int | None, per_prim: list[np.ndarray]) -> None:
+                          line: Callable[[str], int | None], per_prim: list[np.ndarray]
+                          ) -> None:
     """The silicone between the socket's floor and a part of the void that does not open
     into the socket (a chamber beyond the feed channel): at least the least wall, or the
     tube pressed into the socket tears through it."""
@@ -179,8 +180,10 @@ def _socket_wall_problems(out: list[Problem], r: Recipe, void: object, path: str
         return
     fields = {f.name for f in getattr(void, "FIELDS", ())}
     own = f"{path}.start_mm, " if "start_mm" in fields else ""
-    out.append(Problem(path, f"leaves a silicone wall of {worst:.2f} mm to the inlet socket's "
-                       f"floor at {_fmt_point(where)}", line, None,
+    # Blame the start the recipe wrote, else the void entry (its default placement).
+    at = f"{path}.start_mm" if f"{path}.start_mm" in r.lines else path
+    out.append(Problem(at, f"leaves a silicone wall of {worst:.2f} mm to the inlet socket's "
+                       f"floor at {_fmt_point(where)}", line(at), None,
                        f"at least checks.min_wall_mm = {min_wall:g} mm (this wall is set by "
                        f"{own}inlet.socket_depth_mm ({r.inlet.socket_depth_mm:g} mm) and "
                        "checks.min_wall_mm)"))
