@@ -187,3 +187,39 @@ def _socket_wall_problems(out: list[Problem], r: Recipe, void: object, path: str
                        f"at least checks.min_wall_mm = {min_wall:g} mm (this wall is set by "
                        f"{own}inlet.socket_depth_mm ({r.inlet.socket_depth_mm:g} mm) and "
                        "checks.min_wall_mm)"))
+
+
+def wall_keys_at(r: Recipe, point: tuple[float, float, float], between: bool) -> str:
+    """The recipe keys that set the silicone wall whose middle is ``point`` (mm, world):
+    for a wall between voids, the nearest two of the socket and the voids' parts (each
+    chamber on its own; a feed channel, which joins them, is no side of such a wall);
+    for an outer wall, the nearest void's keys across the wall's direction."""
+    p = np.asarray([point], dtype=float)
+    length = r.body_length_mm
+    sides: list[tuple[float, str, int, object]] = [
+        (float(r.inlet.socket().sdf(p)[0]), "socket", -1, None)]
+    for i, v in enumerate(r.voids):
+        boxes = getattr(v, "chamber_boxes", None)
+        parts = boxes(length) if boxes is not None else v.primitives(length)
+        sides += [(float(q.sdf(p)[0]), "void", i, v) for q in parts]
+    sides.sort(key=lambda s: s[0])
+    (_, what_a, a, va), (_, what_b, b, vb) = sides[0], sides[1]
+    if not between:
+        return _wall_keys(va, f"voids[{a}]", _outward(r.body_primitives(), p[0])) \
+            if what_a == "void" else "inlet.socket_depth_mm, checks.min_wall_mm"
+    keys: list[str] = []
+    if "socket" in (what_a, what_b):
+        i, near = (b, vb) if what_a == "socket" else (a, va)
+        keys = [f"voids[{i}].start_mm"] if _has(near, "start_mm") else []
+        keys.append("inlet.socket_depth_mm")
+    elif a == b:
+        keys = [f"voids[{a}].{k}" for k in ("pitch_mm", "depth_mm") if _has(va, k)]
+    else:
+        for i, side in ((a, va), (b, vb)):
+            keys += [f"voids[{i}].{k}" for k in ("center_mm", "width_mm", "diameter_mm")
+                     if _has(side, k)]
+    return ", ".join([*keys, "checks.min_wall_mm"])
+
+
+def _has(void: object, name: str) -> bool:
+    return any(f.name == name for f in getattr(void, "FIELDS", ()))
