@@ -17,6 +17,12 @@ explicitly, so a kind cannot lose its pressure check by omission).
 A void whose shape follows the body's (a bellows cavity inside a revolved body) may also
 provide ``follow_body(body, path)``: called once the body is read, it returns the void fitted
 to that body (or None) and the problems that refuse the pair, each naming its field path.
+
+A void placed by default (a chamber row without ``start_mm``) may also provide
+``after_socket(clear_from_mm, body_length_mm)``: called once the inlet is known, it returns
+the void with that default settled so that it starts no nearer the inlet face than
+``clear_from_mm`` (the socket floor plus ``checks.min_wall_mm``); a void the recipe places
+itself is returned unchanged.
 """
 
 from __future__ import annotations

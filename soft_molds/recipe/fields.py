@@ -40,8 +40,9 @@ def _fmt(x: float) -> str:
 class Field:
     """One recipe key.
 
-    ``kind`` is ``"number"``, ``"integer"``, ``"choice"``, ``"text"`` or ``"pair"`` (two
-    numbers). ``lo``/``hi`` bound numbers (``lo_open`` makes the lower bound strict);
+    ``kind`` is ``"number"``, ``"integer"``, ``"choice"``, ``"text"``, ``"pair"`` (two
+    numbers), ``"points"``, ``"rounds"`` or ``"graded"`` (see their constructors).
+    ``lo``/``hi`` bound numbers (``lo_open`` makes the lower bound strict);
     ``gap_below`` > 0 with ``lo`` = 0 accepts 0 or at least ``gap_below``, nothing between.
     ``default`` is ``None`` when the key is optional with no value, or the module-level
     ``REQUIRED`` sentinel when it must be given.
@@ -57,6 +58,7 @@ class Field:
     lo_open: bool = False
     choices: tuple[str, ...] = ()
     gap_below: float = 0.0
+    item: str = ""  # what a ``graded`` field gives one value to ("chamber")
 
     @property
     def required(self) -> bool:
@@ -68,7 +70,7 @@ class Field:
             return "one of " + ", ".join(self.choices)
         if self.kind == "text":
             return "text"
-        if self.kind in ("points", "rounds"):
+        if self.kind in ("points", "rounds", "graded"):
             return _list_allowed(self)
         parts = []
         if self.gap_below > 0.0:
@@ -93,6 +95,10 @@ MAX_POINTS = 400
 
 def _list_allowed(f: Field) -> str:
     each = f"0 or {_fmt(f.gap_below)} <= value <= {_fmt(f.hi or MAX_SIZE_MM)} {f.unit}"
+    if f.kind == "graded":
+        each = f"{_fmt(f.lo or 0.0)} <= value <= {_fmt(f.hi or MAX_SIZE_MM)} {f.unit}"
+        return (f"a number, a list of numbers (one per {f.item}), or a linear grade "
+                f"{{from: first, to: last}}, each {each}")
     if f.kind == "points":
         return (f"a list of 2 to {MAX_POINTS} points [x, radius], each value {each}")
     return f"a number, or a list of numbers (one per point), each {each}"
@@ -140,6 +146,35 @@ def rounds(name: str, doc: str, default: object = 0.0) -> Field:
     each 0 or at least ``MIN_SIZE_MM``."""
     return Field(name, "rounds", doc, default, "mm", 0.0, MAX_SIZE_MM, False,
                  gap_below=MIN_SIZE_MM)
+
+
+@dataclass(frozen=True)
+class Grade:
+    """A size graded linearly from the first item of a row to the last (mm)."""
+
+    from_mm: float
+    to_mm: float
+
+
+def graded(name: str, doc: str, default: object = REQUIRED, *, item: str = "item") -> Field:
+    """A size (mm, at least ``MIN_SIZE_MM``) of each item of a row: one number for all, a
+    list with one per ``item`` (the kind checks its length), or ``{from: a, to: b}``, a
+    :class:`Grade` from the first item to the last. Resolve it with :func:`per_item`."""
+    return Field(name, "graded", doc, default, "mm", MIN_SIZE_MM, MAX_SIZE_MM, False,
+                 item=item)
+
+
+def per_item(value: float | tuple[float, ...] | Grade, n: int) -> tuple[float, ...]:
+    """The ``n`` values (mm) a ``graded`` field gives: a grade's are evenly spaced from its
+    first value to its last (one item takes the first); a list is returned as written."""
+    if isinstance(value, Grade):
+        if n == 1:
+            return (value.from_mm,)
+        step = (value.to_mm - value.from_mm) / (n - 1)
+        return tuple(value.from_mm + i * step for i in range(n - 1)) + (value.to_mm,)
+    if isinstance(value, tuple):
+        return value
+    return (float(value),) * n
 
 
 def join_path(base: str, key: str | int) -> str:
@@ -228,7 +263,7 @@ class MapReader:
             if out[0] is None or out[1] is None:
                 return None
             return (float(out[0]), float(out[1]))
-        if f.kind in ("points", "rounds"):
+        if f.kind in ("points", "rounds", "graded"):
             return self._take_list(f, path, line, n)
         if not _is_number(v):
             self.problem(path, "must be a number" if f.kind == "number" else
@@ -243,19 +278,23 @@ class MapReader:
         return int(checked) if f.kind == "integer" else float(checked)
 
     def _take_list(self, f: Field, path: str, line: int | None, n: Node) -> Any:
-        """A ``points`` or ``rounds`` value: every bad item reported on its own line."""
-        if f.kind == "rounds" and _is_number(n.value):
+        """A ``points``, ``rounds`` or ``graded`` value: every bad item reported on its own
+        line."""
+        if f.kind in ("rounds", "graded") and _is_number(n.value):
             return self._check_number(f, path, line, n.value)
+        if f.kind == "graded" and isinstance(n.value, dict):
+            return self._take_grade(f, path, n)
         items = n.value if isinstance(n.value, list) else None
         if items is None or not items or len(items) > MAX_POINTS:
-            self.problem(path, "must be a list" if items is None else
+            self.problem(path, ("must be a number, a list or {from, to}" if f.kind == "graded"
+                                else "must be a list") if items is None else
                          "has too many items" if items else "must not be empty", line,
                          n.plain() if items is None else len(items), f.allowed())
             return None
         out: list[Any] = []
         for i, item in enumerate(items):
             ipath, iline = join_path(path, i), item.line
-            if f.kind == "rounds":
+            if f.kind in ("rounds", "graded"):
                 if not _is_number(item.value):
                     self.problem(ipath, "must be a number", iline, item.plain(), f.allowed())
                     out.append(None)
@@ -274,6 +313,17 @@ class MapReader:
             self.problem(path, "has fewer than two points", line, len(items), f.allowed())
             return None
         return None if any(v is None for v in out) else tuple(out)
+
+    def _take_grade(self, f: Field, path: str, n: Node) -> Grade | None:
+        """``{from: a, to: b}``: both ends required, each a size in ``f``'s range."""
+        ends = (Field("from", "number", "first item", REQUIRED, f.unit, f.lo, f.hi),
+                Field("to", "number", "last item", REQUIRED, f.unit, f.lo, f.hi))
+        r = MapReader(n, path, self.problems)
+        got = r.take_all(ends)
+        r.finish()
+        if not r.ok:
+            return None
+        return Grade(got["from"], got["to"])
 
     def _check_number(self, f: Field, path: str, line: int | None, v: object) -> float | None:
         try:

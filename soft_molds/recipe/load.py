@@ -324,6 +324,8 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
     inlet_v = blocks["inlet"]
     if inlet_v["center_mm"] is None:
         inlet_v["center_mm"] = voids[0].entry()[0]
+    voids = _after_socket(body, voids, inlet_v["socket_depth_mm"]
+                          + blocks["checks"]["min_wall_mm"])
     parting_v = blocks["parting"]
     if parting_v["axis"] is None:
         lo, hi = bounds_of(body.primitives())
@@ -411,6 +413,16 @@ def _follow_body(body: BodyKind, voids: list, problems: list[Problem],
             problems.append(p if p.line is not None else replace(p, line=lines.get(path)))
         out.append(fitted if fitted is not None else v)
     return out
+
+
+def _after_socket(body: BodyKind, voids: list, clear_from_mm: float) -> list:
+    """The voids, those with a default placement (an ``after_socket`` method, see
+    :mod:`.contracts`) kept ``clear_from_mm`` beyond the inlet face (the socket floor plus
+    the least wall)."""
+    lo, hi = bounds_of(body.primitives())
+    length = hi[0] - lo[0]
+    return [v.after_socket(clear_from_mm, length) if hasattr(v, "after_socket") else v
+            for v in voids]
 
 
 def _lines(root: Node) -> dict[str, int]:

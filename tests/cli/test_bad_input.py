@@ -264,10 +264,11 @@ CASES = [
           Expect("mold", line_of(_list, "mold:"), "must be a mapping of settings",
                  got="[5, 'M4']")),
     # elementary geometry: 12 chambers span 11 x 8 + 5 = 93 mm > 70 mm; centred, the row
-    # starts at x = (70 - 93)/2 = -11.5.
+    # would start at x = (70 - 93)/2 = -11.5, so it starts past the socket floor and the
+    # least wall instead (6 + 1 = 7) and ends at 7 + 93 = 100, beyond the far end.
     _case("too-many-chambers-for-the-body", _many,
           Expect("voids[0]", line_of(_many, "- kind"),
-                 "breaks through the body surface at (-11.50,")),
+                 "breaks through the body surface at (100.00,")),
     _case("too-many-void-entries", _seventeen,
           Expect("voids", line_of(_seventeen, "voids:"), "has too many entries", got="17",
                  allowed="at most 16")),

@@ -331,7 +331,10 @@ def test_chamber_side_wall_is_half_the_width_difference(width, wall):
     assert (p.path, p.line) == ("voids[0]", line_of(text, "- kind: chambers"))
     assert wall_in(p.message) == pytest.approx(wall, abs=0.005)
     assert abs(point_in(p.message)[1]) == pytest.approx(width / 2, abs=0.01)
-    assert p.allowed == "at least checks.min_wall_mm = 1 mm"
+    # A side wall (across y) names the keys that set it.
+    assert p.allowed == ("at least checks.min_wall_mm = 1 mm (this wall is set by "
+                         "voids[0].width_mm, voids[0].center_mm, the body's size, "
+                         "checks.min_wall_mm)")
 
 
 def test_chambers_poking_out_of_the_bar_break_through():
@@ -351,10 +354,12 @@ def test_chambers_top_wall_just_above_min_wall_passes():
 
 def test_more_chambers_than_the_bar_holds_break_through():
     # elementary geometry: 12 chambers at pitch 8, depth 5 span 11*8 + 5 = 93 mm > 70 mm;
-    # centred, the row starts at x = (70 - 93)/2 = -11.5, outside the inlet face.
+    # centred, the row would start at x = (70 - 93)/2 = -11.5, outside the inlet face, so
+    # the default starts it past the socket floor and the least wall (6 + 1 = 7 mm) and it
+    # ends at 7 + 93 = 100 mm, beyond the far end.
     p = only_problem(edit(FINGER, "count: 3", "count: 12"))
     assert p.path == "voids[0]" and "breaks through" in p.message
-    assert point_in(p.message)[0] == pytest.approx(-11.5, abs=0.01)
+    assert point_in(p.message)[0] == pytest.approx(100.0, abs=0.01)
 
 
 # Bar 40 x 24 x 12 with edge radius e: the flat part of the x = 0 face spans

@@ -20,7 +20,10 @@ from ..registry import void_kind
 class Bore:
     """Spans x in [start, start + length] (mm) with its axis at ``center_mm`` = (y, z);
     both ends are rounded with ``end_round_mm`` (the near end lies inside the inlet
-    socket, so only the far end's rounding shows in the cast)."""
+    socket, so only the far end's rounding shows in the cast). A bore may be wider than
+    the socket (a thin tube into a fat bore) when it holds the socket's whole section and
+    starts past the inlet face, inside the socket; whether its core still comes out
+    through the socket is the core-extraction check's to say."""
 
     FIELDS: ClassVar[tuple[Field, ...]] = (
         number("diameter_mm", "bore diameter"),
