@@ -12,7 +12,6 @@ from __future__ import annotations
 import os
 import subprocess
 import sys
-import time
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -440,13 +439,11 @@ def test_at_least_fifteen_distinct_bad_inputs_are_covered():
 
 @pytest.mark.parametrize("case", CASES, ids=[c.name for c in CASES])
 def test_bad_recipe_exits_2_with_one_located_line_per_problem_and_writes_nothing(
-        case, tmp_path, capsys, monkeypatch):
+        case, tmp_path, capsys, monkeypatch, no_cad_work):
     monkeypatch.chdir(tmp_path)  # anything written relative to the cwd would show here
     path = write_case(case, tmp_path)
     out = tmp_path / "out"
-    t = time.perf_counter()
     status = main(["build", str(path), "--out", str(out)])
-    elapsed = time.perf_counter() - t
     cap = capsys.readouterr()
     assert status == 2
     assert cap.out == ""
@@ -454,8 +451,6 @@ def test_bad_recipe_exits_2_with_one_located_line_per_problem_and_writes_nothing
     assert not out.exists()
     assert sorted(p.name for p in tmp_path.iterdir()) == sorted(
         ([] if case.text is None else ["recipe.yaml"]) + [name for name, _ in case.files])
-    # Bad input is refused before any CAD work, even the alias bomb.
-    assert elapsed < 3.0
 
 
 def test_directory_instead_of_a_recipe_is_refused(tmp_path, capsys):

@@ -8,7 +8,6 @@ written here, known by construction."""
 from __future__ import annotations
 
 import re
-import time
 from typing import NamedTuple
 
 import pytest
@@ -116,12 +115,11 @@ CASES = [
 
 @pytest.mark.parametrize("name, text, expect", CASES, ids=[c[0] for c in CASES])
 def test_bad_chamber_input_exits_2_with_one_located_line_and_writes_nothing(
-        name, text, expect, tmp_path, capsys, monkeypatch):
+        name, text, expect, tmp_path, capsys, monkeypatch, no_cad_work):
     monkeypatch.chdir(tmp_path)
     path = tmp_path / "recipe.yaml"
     path.write_text(text, encoding="utf-8")
     out = tmp_path / "out"
-    t = time.perf_counter()
     status = main(["build", str(path), "--out", str(out)])
     cap = capsys.readouterr()
     assert status == 2, cap.err
@@ -129,7 +127,6 @@ def test_bad_chamber_input_exits_2_with_one_located_line_and_writes_nothing(
     assert_reported(cap.err, str(path), expect)
     assert not out.exists()
     assert sorted(p.name for p in tmp_path.iterdir()) == ["recipe.yaml"]
-    assert time.perf_counter() - t < 3.0  # refused before any CAD work
 
 
 def test_every_changed_chamber_field_has_a_bad_input_case():

@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import re
 import struct
-import time
 import xml.etree.ElementTree as ET
 import zlib
 
@@ -165,7 +164,6 @@ def test_sections_of_10_and_20_mm_squares_draw_in_ratio_2_at_the_stated_scale():
 
 
 def test_one_and_five_variants_render_and_six_or_none_raise():
-    t0 = time.perf_counter()
     for n in (1, 5):
         png, svg = render_sheet(_family(n))
         width, height = struct.unpack(">II", png[16:24])
@@ -173,7 +171,6 @@ def test_one_and_five_variants_render_and_six_or_none_raise():
         texts = _svg_texts(svg)
         assert [t for t in texts if re.fullmatch(r"F2-[A-F]", t)] == \
             [f"F2-{c}" for c in "ABCDE"[:n]]
-    assert time.perf_counter() - t0 < 8.0
     six = SheetData("too many", "", tuple(_variant(c) for c in "ABCDEF"))
     with pytest.raises(ValueError, match="1 to 5 variants, got 6"):
         render_sheet(six)

@@ -7,7 +7,6 @@ from __future__ import annotations
 
 import subprocess
 import sys
-import time
 
 import numpy as np
 import pytest
@@ -60,13 +59,11 @@ def test_a_metre_long_body_is_refused_before_anything_is_built(tmp_path):
     text = edit(FINGER_TEXT, "length_mm: 70", "length_mm: 1000")
     path = tmp_path / "long.yaml"
     path.write_text(text)
-    t = time.perf_counter()
     run = subprocess.run([sys.executable, "-m", "soft_molds", "check", str(path)],
                          capture_output=True, text=True, timeout=120)
     assert run.returncode == 2, run.stdout + run.stderr
     assert "printer.bed_mm: is too small for the shell-lower" in run.stderr
     assert "cadquery" not in run.stderr
-    assert time.perf_counter() - t < 60
 
 
 @pytest.mark.parametrize("bed", ["[220, 220]", "[120, 120]"])

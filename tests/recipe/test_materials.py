@@ -14,7 +14,6 @@ from __future__ import annotations
 import dataclasses
 import os
 import threading
-import time
 import tracemalloc
 from importlib import resources
 
@@ -294,21 +293,18 @@ def test_the_recipe_and_the_table_share_the_measured_value_ranges():
 
 # ------------------------------------------------------------ table file: the file guards
 
-def _table_problem(tmp_path, table_file: str) -> tuple[str, float]:
-    """The one problem line of the test recipe naming ``table_file``, and the seconds it
-    took to refuse."""
+def _table_problem(tmp_path, table_file: str) -> str:
+    """The one problem line of the test recipe naming ``table_file``."""
     text = _with(f"material:\n  grade: my-A15\n  table_file: {table_file}\n")
-    t = time.perf_counter()
     (line,) = _error(text, base_dir=tmp_path).lines()
-    return line, time.perf_counter() - t
+    return line
 
 
 def test_a_device_as_table_file_is_refused_without_reading_it(tmp_path):
     # /dev/zero never ends: reading it whole would exhaust memory.
-    line, seconds = _table_problem(tmp_path, "/dev/zero")
+    line = _table_problem(tmp_path, "/dev/zero")
     assert "material.table_file: cannot be read: grades table path is a character device, " \
            "not a regular file (got '/dev/zero')" in line
-    assert seconds < 1.0
 
 
 def test_a_fifo_as_table_file_is_refused_without_waiting_for_a_writer(tmp_path):
@@ -316,10 +312,10 @@ def test_a_fifo_as_table_file_is_refused_without_waiting_for_a_writer(tmp_path):
     os.mkfifo(fifo)
     result: list[str] = []
     worker = threading.Thread(target=lambda: result.append(_table_problem(tmp_path,
-                                                                          fifo.name)[0]),
+                                                                          fifo.name)),
                               daemon=True)
     worker.start()
-    worker.join(5.0)
+    worker.join(30.0)  # a hang detector, not a speed test: it only fails if it blocks
     if worker.is_alive():  # opening a FIFO for reading blocks until a writer comes
         os.close(os.open(fifo, os.O_WRONLY | os.O_NONBLOCK))
         pytest.fail("reading the table file waited on a FIFO")
@@ -329,7 +325,7 @@ def test_a_fifo_as_table_file_is_refused_without_waiting_for_a_writer(tmp_path):
 
 def test_a_directory_as_table_file_is_refused(tmp_path):
     (tmp_path / "grades").mkdir()
-    line, _ = _table_problem(tmp_path, "grades")
+    line = _table_problem(tmp_path, "grades")
     assert "cannot be read: grades table path is a directory, not a file" in line
 
 
@@ -339,7 +335,7 @@ def test_a_huge_table_file_is_refused_by_its_size_before_it_is_read(tmp_path):
         fh.truncate(300 * 1024 * 1024)
     tracemalloc.start()
     try:
-        line, _ = _table_problem(tmp_path, "big.yaml")
+        line = _table_problem(tmp_path, "big.yaml")
         peak = tracemalloc.get_traced_memory()[1]
     finally:
         tracemalloc.stop()
@@ -348,26 +344,24 @@ def test_a_huge_table_file_is_refused_by_its_size_before_it_is_read(tmp_path):
     assert peak < 5 * 1024 * 1024  # nothing like the file's 300 MB was ever read
 
 
-def test_an_alias_bomb_in_a_table_file_is_refused_in_bounded_time(tmp_path):
+def test_an_alias_bomb_in_a_table_file_is_refused_at_the_expansion_bound(tmp_path):
     # "Billion laughs", a well-known expansion attack (common practice to refuse it).
     rows = ['  a: &a ["x", "x", "x", "x", "x", "x", "x", "x", "x"]']
     rows += [f"  {b}: &{b} [" + ", ".join([f"*{a}"] * 9) + "]"
              for a, b in zip("abcdefgh", "bcdefghi")]
     (tmp_path / "bomb.yaml").write_text("grades:\n" + "\n".join(rows) + "\n")
-    line, seconds = _table_problem(tmp_path, "bomb.yaml")
+    line = _table_problem(tmp_path, "bomb.yaml")
     # Expanded values: a 10, b 91, c 820, d 7381, then e's list and e[0] pass 15 000 and
     # e[1] would pass 20 000 (as for the recipe's own bomb): e is on line 6.
     assert line == (f"{tmp_path / 'bomb.yaml'}:6: grades.e[1]: anchors/aliases expand beyond "
                     "20000 nodes")
-    assert seconds < 3.0
 
 
 def test_ten_thousand_nested_brackets_in_a_table_file_are_refused_at_their_line(tmp_path):
     (tmp_path / "deep.yaml").write_text("# ours\ngrades: " + "[" * 10_000 + "]" * 10_000)
-    line, seconds = _table_problem(tmp_path, "deep.yaml")
+    line = _table_problem(tmp_path, "deep.yaml")
     assert line == (f"{tmp_path / 'deep.yaml'}:2: grades table nests more than 32 levels "
                     "deep; allowed: at most 32 levels of lists and mappings")
-    assert seconds < 1.0
 
 
 @pytest.mark.parametrize("content, message", [
@@ -387,14 +381,14 @@ def test_a_table_file_gets_the_recipes_yaml_limits(tmp_path, content, message):
         path.write_bytes(content)
     else:
         path.write_text(content)
-    line, _ = _table_problem(tmp_path, "ours.yaml")
+    line = _table_problem(tmp_path, "ours.yaml")
     assert line.startswith(f"{path}:{message}")
 
 
 def test_a_table_file_problem_names_the_table_file_and_its_line(tmp_path):
     text = _ONE_GRADE.replace("density_g_cm3: 1.075", "density_g_cm3: .inf")
     (tmp_path / "ours.yaml").write_text(text)
-    line, _ = _table_problem(tmp_path, "ours.yaml")
+    line = _table_problem(tmp_path, "ours.yaml")
     assert line == (f"{tmp_path / 'ours.yaml'}:7: grades.my-A15.density_g_cm3: must be a "
                     "finite number (got inf); allowed: a number, 0.5 < value <= 3 g/cm3")
 

@@ -11,7 +11,6 @@ from __future__ import annotations
 import codecs
 import math
 import os
-import time
 
 import pytest
 import yaml
@@ -116,11 +115,8 @@ def _billion_laughs(levels: int = 9, fan: int = 9) -> str:
 
 def test_billion_laughs_is_refused_quickly_at_the_alias_line():
     text = _billion_laughs()  # 9 levels x 9 aliases: 9**10 strings if expanded
-    start = time.perf_counter()
     with pytest.raises(RecipeError) as excinfo:
         parse_recipe_text(text)
-    elapsed = time.perf_counter() - start
-    assert elapsed < 2.0  # sanity bound; the refusal takes well under a second
     # Nodes per level when expanded: 10, 91, 820, 7381 (1 + 9 * previous), so the
     # 20000 bound is crossed inside the second alias on line 5 (l4).
     assert _problems(excinfo) == [
@@ -379,12 +375,12 @@ def test_aliases_that_nest_too_deeply_are_refused_with_the_alias_line():
          2)]
 
 
-def test_ten_thousand_nested_brackets_are_refused_at_their_line_in_bounded_time():
+def test_ten_thousand_nested_brackets_are_refused_at_their_line_without_recursing():
+    # Speed is a benchmark's business (machines are noisy); this proves the refusal is a
+    # RecipeError at the line, not Python's RecursionError from a recursive reader.
     text = "name: x\nbody: " + "[" * 10_000 + "]" * 10_000 + "\n"
-    t = time.perf_counter()
     with pytest.raises(RecipeError) as excinfo:
         parse_recipe_text(text)
-    assert time.perf_counter() - t < 1.0
     assert _problems(excinfo) == [("", f"recipe nests more than {MAX_DEPTH} levels deep", 2)]
     assert excinfo.value.problems[0].allowed == f"at most {MAX_DEPTH} levels of lists and mappings"
 
@@ -422,10 +418,8 @@ def test_special_files_are_refused_before_they_are_read(tmp_path, kind):
         what = "a named pipe (FIFO)"
     else:
         path, what = "/dev/zero", "a character device"
-    t = time.perf_counter()
     with pytest.raises(UnreadableFile) as excinfo:
         read_yaml_file(path, "grades table")
-    assert time.perf_counter() - t < 1.0
     (p,) = excinfo.value.problems
     assert (p.message, p.value, p.line) == (
         f"grades table path is {what}, not a regular file", str(path), None)
