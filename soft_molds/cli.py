@@ -342,7 +342,7 @@ def cmd_reference(args: argparse.Namespace) -> int:
     except (OSError, ValueError) as exc:
         print(f"error: cannot update {path}: {exc}", file=sys.stderr)
         return 1
-    print(f"updated the recipe reference in {path}")
+    print(f"updated the recipe reference and the finding advice in {path}")
     return 0
 
 
@@ -415,7 +415,8 @@ def make_parser() -> argparse.ArgumentParser:
     bl.set_defaults(func=cmd_blend)
     ref = sub.add_parser("reference", help="print every recipe key with unit, default, range",
                          description="Print the recipe reference (Markdown), or rewrite the "
-                                     "copy between the reference markers in FILE.")
+                                     "copies between the reference and the finding-advice "
+                                     "markers in FILE.")
     ref.add_argument("--update", metavar="FILE", help="rewrite the reference inside FILE")
     ref.set_defaults(func=cmd_reference)
     return ap

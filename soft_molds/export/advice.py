@@ -1,9 +1,9 @@
 """What to do about each finding, one short paragraph per name a registered check emits.
 
 The casting card prints the paragraph beside a finding, and the README's section "What to
-do about a finding" is generated from the same table (``soft-molds reference --update
-README.md`` rewrites it; a test keeps the two identical and fails when a registered check
-emits a name without advice). The remedies are the usual ones of the trade (common
+do about a finding" is generated from the same table (``.venv/bin/soft-molds reference
+--update README.md`` rewrites it; a test keeps the two identical and fails when a
+registered check emits a name without advice). The remedies are the usual ones of the trade (common
 practice) and the recipe fields that move each measured figure.
 """
 
@@ -37,8 +37,8 @@ ADVICE: dict[str, str] = {
         "(`material.grade`, or your measured `material.elongation_pct`)."),
     "core-slenderness": (
         "The core print is long and thin between supports and may bend or break when cast "
-        "or pulled. Print it solid, make the void wider or shorter, or accept the risk "
-        "after a trial; the limit is `checks.core_slenderness_max`."),
+        "or pulled. Make the void wider or shorter, or accept the risk after a trial "
+        "print; the limit is `checks.core_slenderness_max`."),
     "silicone-wall": (
         "A silicone wall is thinner than `checks.min_wall_mm`: it may tear or balloon. Move "
         "the void away from the outer surface (`center_mm`), make it smaller or the body "
@@ -46,7 +46,8 @@ ADVICE: dict[str, str] = {
     "trapped-air": (
         "Air stays caught at a high point the vents do not reach, leaving a bubble in the "
         "cast. Change the pour orientation (`parting.axis`), raise the body's ceiling "
-        "toward the sprue, or drill a vent there after printing and check again."),
+        "toward the sprue, or drill a vent through the upper shell at the stated point "
+        "after printing."),
     "build-volume": (
         "A part fits the printer in no orientation. Check `printer.bed_mm` and "
         "`printer.height_mm`, or make the mold smaller (`mold.wall_mm`, `mold.flange_mm`)."),
@@ -82,8 +83,15 @@ def advice_markdown() -> str:
     return "\n\n".join(f"`{n}`: {advice_for(n)}" for n in finding_names()) + "\n"
 
 
-_MARKERS = re.compile(
-    r"(<!-- finding-advice:start[^>]*-->\n\n)(.*?)(\n<!-- finding-advice:end -->)", re.S)
+_MARKERS = re.compile(r"(<!-- finding-advice:start[^>]*-->)(.*?)(<!-- finding-advice:end -->)",
+                      re.S)
+
+
+def advice_section(document: str) -> str | None:
+    """The generated text between the advice markers of ``document`` (None without them),
+    as :func:`splice_advice` writes it."""
+    m = _MARKERS.search(document)
+    return None if m is None else m.group(2).removeprefix("\n\n").removesuffix("\n")
 
 
 def splice_advice(document: str) -> str:
@@ -91,5 +99,5 @@ def splice_advice(document: str) -> str:
     :func:`advice_markdown`; ValueError when the markers are missing."""
     if not _MARKERS.search(document):
         raise ValueError("finding-advice markers not found")
-    return _MARKERS.sub(lambda m: m.group(1) + advice_markdown() + m.group(3), document,
-                        count=1)
+    return _MARKERS.sub(lambda m: f"{m.group(1)}\n\n{advice_markdown()}\n{m.group(3)}",
+                        document, count=1)
