@@ -223,21 +223,16 @@ def bed_face(man: Manifest, part: str) -> str:
     if rec is None:
         return "-"
     down = rec.down
-    words = f"{_axis_word(down)} side"
-    try:
-        pull = man.part(part).pull_dir
-    except KeyError:
-        pull = None
-    if pull is not None and man.part(part).role == "shell":
-        along = sum(a * b for a, b in zip(down, pull))
-        if along > 0.99:
-            words = f"back face ({_axis_word(down)}) down, parting face up"
-        elif along < -0.99:
-            words = f"parting face ({_axis_word(down)}) down"
-    elif man.part(part).role == "core" and abs(down[0]) < 0.5:
-        words = f"{_axis_word(down)} side down, lying along x"
-    else:
-        words += " down"
+    rec_part = man.part(part)
+    words = f"{_axis_word(down)} side down"
+    along = (0.0 if rec_part.pull_dir is None
+             else sum(a * b for a, b in zip(down, rec_part.pull_dir)))
+    if rec_part.role == "shell" and along > 0.99:
+        words = f"back face ({_axis_word(down)}) down, parting face up"
+    elif rec_part.role == "shell" and along < -0.99:
+        words = f"parting face ({_axis_word(down)}) down"
+    elif rec_part.role == "core" and abs(down[0]) < 0.5:
+        words += ", lying along x"
     if rec.turn_deg:
         words += f", turned {rec.turn_deg:g} deg on the bed to fit"
     return words

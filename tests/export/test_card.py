@@ -155,3 +155,18 @@ def test_a_stack_past_a_series_length_takes_the_next_and_past_the_series_a_rod()
     assert series_length_mm(42.2) == 45
     assert series_length_mm(40.0) == 40     # an exact length needs no rounding
     assert series_length_mm(100.5) is None  # beyond the series: threaded rod
+
+
+def test_bed_face_words_a_shell_on_its_parting_face_or_side_and_a_turn(finger):
+    from soft_molds.export.card import bed_face
+
+    man = finger.manifest()
+    rec = man.prints["shell-upper"]     # pulls along +z
+
+    def on(down, turn=0.0):
+        return bed_face(replace(man, prints={**man.prints, "shell-upper": replace(
+            rec, down=down, turn_deg=turn)}), "shell-upper")
+
+    assert on((0.0, 0.0, 1.0)) == "back face (+z) down, parting face up"
+    assert on((0.0, 0.0, -1.0)) == "parting face (-z) down"
+    assert on((0.0, 1.0, 0.0), 90.0) == "+y side down, turned 90 deg on the bed to fit"
