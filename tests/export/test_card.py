@@ -170,3 +170,16 @@ def test_bed_face_words_a_shell_on_its_parting_face_or_side_and_a_turn(finger):
     assert on((0.0, 0.0, 1.0)) == "back face (+z) down, parting face up"
     assert on((0.0, 0.0, -1.0)) == "parting face (-z) down"
     assert on((0.0, 1.0, 0.0), 90.0) == "+y side down, turned 90 deg on the bed to fit"
+
+
+def test_a_family_says_a_shared_line_once_and_labels_lines_that_differ(finger):
+    from soft_molds.export.manifest import RecipeEcho
+
+    a = finger.manifest()
+    inlet = {**a.params.data["inlet"], "socket_diameter_mm": 5.0}
+    b = replace(a, label="B", params=RecipeEcho({**a.params.data, "inlet": inlet}))
+    items = next(blk[1] for blk in card_blocks([a, b], "pair")
+                 if blk[0] == "ul" and any(t.startswith(("Clamp", "A: Clamp")) for t in blk[1]))
+    assert sum(t.startswith("Clamp screws: 6 M4 x 35") for t in items) == 1  # both alike
+    assert "A: Tube: 4 mm outer diameter" in " ".join(items)
+    assert "B: Tube: 5 mm outer diameter" in " ".join(items)
