@@ -58,8 +58,9 @@ def _weigh_out(molds) -> list[str]:
         return []
     q, g = plan.quantities, plan.grade
     parts = ", ".join(f"{p.what} {p.grams:g} g" for p in q.portions)
-    return [f"  weigh out ({g.name}, {q.waste_pct:g} % waste included): {parts}; pot life about "
-            f"{g.pot_life_min:g} min, demold after about {g.demold_h:g} h (casting-card.md)"]
+    return [f"  weigh out ({g.name}, {q.waste_pct:g} % waste included): {parts}; pot life "
+            f"{g.pot_life_min:g} min, demold after {g.demold_h:g} h (the recipe's material "
+            "figures; check your data sheet; casting-card.md)"]
 
 
 def cmd_blend(args: argparse.Namespace) -> int:
@@ -232,11 +233,14 @@ def cmd_check(args: argparse.Namespace) -> int:
     from .pipeline import build
 
     failed = []
+    files: dict[str, bool] = {}  # recipe file -> every variant passed
     for _, r in variants:
+        files.setdefault(r.source, True)
         try:
             molds = build(r)
         except SoftMoldsError as exc:
             failed.append(f"{r.source} {r.label}: {exc}".splitlines()[0])
+            files[r.source] = False
             print(f"FAIL {r.source} {r.label}: {exc}")
             continue
         bad_one = bool(molds.errors) or (args.strict and bool(molds.warnings))
@@ -250,11 +254,25 @@ def cmd_check(args: argparse.Namespace) -> int:
         if bad_one:
             worst = (molds.errors or molds.warnings)[0]
             failed.append(f"{r.source} {r.label}: {worst.check}: {worst.message}")
-    what = "errors or warnings" if args.strict else "errors"
-    print(f"{len(variants) - len(failed)} of {len(variants)} recipes passed (no {what})")
+            files[r.source] = False
+    print(check_tally(len(variants) - len(failed), len(variants), sum(files.values()),
+                      len(files), args.strict))
     for line in failed:
         print(f"  failed: {line}")
     return 1 if failed else 0
+
+
+def _count(n: int, noun: str) -> str:
+    return f"{n} {noun}{'' if n == 1 else 's'}"
+
+
+def check_tally(variants_ok: int, variants: int, recipes_ok: int, recipes: int,
+                strict: bool) -> str:
+    """The last line of ``check``: variants counted as variants, recipe files as recipes
+    (a recipe passes when every variant of it passes)."""
+    what = "errors or warnings" if strict else "errors"
+    return (f"{variants_ok} of {_count(variants, 'variant')} passed (no {what}); "
+            f"{recipes_ok} of {_count(recipes, 'recipe')} passed in every variant")
 
 
 def cmd_sweep(args: argparse.Namespace) -> int:
@@ -324,7 +342,7 @@ def cmd_reference(args: argparse.Namespace) -> int:
     except (OSError, ValueError) as exc:
         print(f"error: cannot update {path}: {exc}", file=sys.stderr)
         return 1
-    print(f"updated the recipe reference in {path}")
+    print(f"updated the recipe reference and the finding advice in {path}")
     return 0
 
 
@@ -397,7 +415,8 @@ def make_parser() -> argparse.ArgumentParser:
     bl.set_defaults(func=cmd_blend)
     ref = sub.add_parser("reference", help="print every recipe key with unit, default, range",
                          description="Print the recipe reference (Markdown), or rewrite the "
-                                     "copy between the reference markers in FILE.")
+                                     "copies between the reference and the finding-advice "
+                                     "markers in FILE.")
     ref.add_argument("--update", metavar="FILE", help="rewrite the reference inside FILE")
     ref.set_defaults(func=cmd_reference)
     return ap

@@ -1,20 +1,24 @@
 """The casting card: a printable page per family of variants, in Markdown and as one
 self-contained HTML file (no scripts, fonts or pictures fetched from anywhere).
 
-It says what to weigh, how long the mix stays workable and when to demold, the steps of a
-cast, what the checks found, how much pressure each variant's walls are estimated to take,
-and the cautions. The card is built once as a list of blocks and rendered twice, so the
-two files always say the same thing. Nothing in it depends on the time or the machine.
+It says what to weigh, how long the mix stays workable and when to demold, the screws and
+the tube to have at hand, the steps of a cast, what the checks found and what to do about
+each finding, how much pressure each variant's walls are estimated to take, how each part
+goes on the print bed and the text cut into it, and the cautions. The card is built once
+as a list of blocks and rendered twice, so the two files always say the same thing.
+Nothing in it depends on the time or the machine.
 """
 
 from __future__ import annotations
 
 import html
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from typing import Any
 
 from ..analysis.findings import Severity, Verdict
-from ..units import kpa_to_psi, mm3_to_cm3
+from ..units import inhg_to_kpa, kpa_to_psi, mm3_to_cm3
+from .advice import advice_for
+from .fasteners import NUT_MM, WASHER_MM, clamp_screws
 from .manifest import CastingRecord, Manifest
 
 CAUTIONS = (
@@ -32,14 +36,20 @@ CAUTIONS = (
     "rules; defer to local codes and licensed practice.",
 )
 
+#: Vacuum for degassing (common practice: near full vacuum, about 29 inHg; silicone froths
+#: near 28-29 inHg). Shown in kPa too: 1 inHg = 3.386389 kPa (NIST SP 811).
+DEGAS_INHG = 29.0
+
 STEPS = (
     "Check the prints: clean, dry, no strings in the cavity, vents and sprue open.",
     "Coat the cavity and the core with a thin release agent suited to silicone; let it dry.",
     "Seat the core print in the lower shell, close the upper shell on the keys (they fit "
-    "one way only) and bolt or clamp the halves evenly.",
+    "one way only) and bolt the halves with the clamp screws listed above, a washer under "
+    "each head and each nut, tightened evenly in a cross pattern.",
     "Weigh part A and part B as listed (stir each first), then mix for about three minutes, "
     "scraping the sides and bottom.",
-    "Degas under vacuum (common practice: near full vacuum, about 29 inHg, in a container "
+    f"Degas under vacuum (common practice: near full vacuum, about {DEGAS_INHG:g} inHg, "
+    f"that is {inhg_to_kpa(DEGAS_INHG):.0f} kPa below atmospheric pressure, in a container "
     "about four times the mixed volume) until the foam collapses.",
     "Pour from the sprue in a thin, steady stream into the funnel until silicone shows in "
     "every vent; keep the mold level.",
@@ -49,7 +59,7 @@ STEPS = (
     "straight up and the cast off the lower shell.",
     "Remove the core: hold the cast at its inlet and draw the core out through the tube "
     "socket, slowly, along the body's axis (the inlet stretches as each chamber passes).",
-    "Trim the sprue and vent stubs flush.",
+    "Trim the sprue and vent stubs flush, then push the tube listed above into the socket.",
 )
 
 Block = tuple[Any, ...]
@@ -74,6 +84,7 @@ def card_blocks(family: Sequence[Manifest], title: str) -> list[Block]:
     blocks: list[Block] = [("h1", f"Casting card: {title}")]
     blocks += _silicone_blocks(cast)
     blocks += _weigh_out_blocks(cast)
+    blocks += _hardware_blocks([man for man, _ in cast])
     blocks.append(("h2", "Steps"))
     blocks.append(("ol", list(STEPS)))
     blocks += _pressure_blocks([man for man, _ in cast])
@@ -93,10 +104,6 @@ def _silicone_blocks(cast: Sequence[tuple[Manifest, CastingRecord]]) -> list[Blo
     for line, labels in seen.items():
         who = "" if len(seen) == 1 else f" ({', '.join(labels)})"
         blocks.append(("p", f"Silicone{who}: {line}"))
-    for man, c in cast:
-        if c.note and (len(seen) == 1 and man is cast[0][0] or len(seen) > 1):
-            blocks.append(("p", f"Note{'' if len(seen) == 1 else ' ' + man.label}: "
-                           f"{c.note}."))
     for man, c in cast:
         b = c.blend
         if b is None:
@@ -168,34 +175,128 @@ def _pressure_blocks(family: Sequence[Manifest]) -> list[Block]:
 
 
 def _check_blocks(family: Sequence[Manifest]) -> list[Block]:
-    items = []
+    items, named = [], []
     for man in family:
         bad = [f for f in man.checks if f.severity in (Severity.ERROR, Severity.WARNING)]
         if not bad:
             items.append(f"{man.label}: no errors or warnings.")
         for f in bad:
             items.append(f"{man.label}: {f.severity} {f.check} ({f.part}): {f.message}")
-    return [("h2", "Checks"), ("ul", items)]
+            if f.check not in named:
+                named.append(f.check)
+    blocks: list[Block] = [("h2", "Checks"), ("ul", items)]
+    if named:
+        blocks.append(("p", "What to do about these findings:"))
+        blocks.append(("ul", [f"{name}: {advice_for(name)}" for name in named]))
+    return blocks
 
 
 def _print_blocks(cast: Sequence[tuple[Manifest, CastingRecord]]) -> list[Block]:
     prows = []
     for man, c in cast:
+        labels = {lab.part: lab for lab in man.labels}
         for pe in c.prints:
-            prows.append([man.label, pe.part, _fmt(mm3_to_cm3(pe.volume_mm3), 1),
-                          f"{pe.infill_pct:g} %", _fmt(pe.mass_g_estimate, 0)])
+            lab = labels.get(pe.part)
+            cut = "-" if lab is None else (f"{lab.text} ({lab.height_mm:g} mm letters, "
+                                           f"{lab.depth_mm:g} mm deep)")
+            prows.append([man.label, pe.part, bed_face(man, pe.part), cut,
+                          _fmt(mm3_to_cm3(pe.volume_mm3), 1), f"{pe.infill_pct:g} %",
+                          _fmt(pe.mass_g_estimate, 0)])
     return [("h2", "Printing (estimate; the slicer's figure wins)"),
-            ("table", ["variant", "part", "volume cm3", "infill", "filament g"], prows)]
+            ("p", "On the bed: the face each part is printed on, as the print check chose "
+             "it (flat, fits the printer, least overhang). Text: what is cut into the part, "
+             "so casts and parts cannot be mixed up."),
+            ("table", ["variant", "part", "on the bed", "text cut in", "volume cm3",
+                       "infill", "filament g"], prows)]
+
+
+def _axis_word(v: Sequence[float]) -> str:
+    i = max(range(3), key=lambda k: abs(v[k]))
+    return ("+" if v[i] > 0 else "-") + "xyz"[i]
+
+
+def bed_face(man: Manifest, part: str) -> str:
+    """Which face of ``part`` goes on the print bed, in words: for a shell, its back (the
+    face away from the parting plane) or its parting face; else the world side facing
+    down (e.g. "-y side"); with the turn on the bed when there is one."""
+    rec = man.prints.get(part)
+    if rec is None:
+        return "-"
+    down = rec.down
+    rec_part = man.part(part)
+    words = f"{_axis_word(down)} side down"
+    along = (0.0 if rec_part.pull_dir is None
+             else sum(a * b for a, b in zip(down, rec_part.pull_dir)))
+    if rec_part.role == "shell" and along > 0.99:
+        words = f"back face ({_axis_word(down)}) down, parting face up"
+    elif rec_part.role == "shell" and along < -0.99:
+        words = f"parting face ({_axis_word(down)}) down"
+    elif rec_part.role == "core" and abs(down[0]) < 0.5:
+        words += ", lying along x"
+    if rec.turn_deg:
+        words += f", turned {rec.turn_deg:g} deg on the bed to fit"
+    return words
 
 
 def _silicone_line(c: CastingRecord) -> str:
+    """The silicone and its handling times, said once: the recipe's material figures (the
+    short end of the pot life and the long end of the demold time where products differ,
+    the range kept in the grade's note), then the data sheet."""
     hard = (f"Shore {c.scale}{c.hardness:g}" if c.scale == "A"
             else f"Shore {c.scale}-{c.hardness:g}")
     ratio = c.mix_ratio
+    note = c.note.removesuffix(" by product")
+    spread = f"; products differ: {note}" if note else ""
     return (f"{c.grade}, {c.cure}-cure, {hard}, density {c.density_g_cm3:g} g/cm3, "
-            f"mix {ratio[0]:g}A : {ratio[1]:g}B by {c.mix_by}; pot life about "
-            f"{c.pot_life_min:g} min, demold after about {c.demold_h:g} h at room "
-            "temperature (typical values, from memory; your data sheet wins).")
+            f"mix {ratio[0]:g}A : {ratio[1]:g}B by {c.mix_by}. Pot life {c.pot_life_min:g} "
+            f"min; demold after {c.demold_h:g} h at room temperature. These are the "
+            f"recipe's material figures (typical values{spread}); check your data sheet, "
+            "its figures win.")
+
+
+def _grouped(family: Sequence[Manifest], line: Callable[[Manifest], str | None]
+             ) -> list[str]:
+    """``line(man)`` for each variant, said once with the labels it applies to when the
+    variants differ (variants with no line left out)."""
+    seen: dict[str, list[str]] = {}
+    for man in family:
+        text = line(man)
+        if text is not None:
+            seen.setdefault(text, []).append(man.label)
+    if len(seen) == 1 and sum(map(len, seen.values())) == len(family):
+        return list(seen)
+    return [f"{', '.join(labels)}: {text}" for text, labels in seen.items()]
+
+
+def _screw_line(man: Manifest) -> str | None:
+    s = clamp_screws(man)
+    if s is None:
+        return None
+    if s.length_mm is None:
+        size = f"{s.bolt} threaded rods at least {s.needed_mm:g} mm long"
+    else:
+        size = f"{s.bolt} x {s.length_mm} socket head cap screws (ISO 4762)"
+    return (f"Clamp screws: {s.count} {size}, {s.count} nuts (ISO 4032) and {2 * s.count} "
+            f"washers (ISO 7089). The shells stack {s.stack_mm:g} mm; with a "
+            f"{WASHER_MM[s.bolt]:g} mm washer each side and a {NUT_MM[s.bolt]:g} mm nut the "
+            f"screw must be {s.needed_mm:g} mm long to stand two threads past the nut "
+            "(common practice), rounded up to the series' length (lengths from memory).")
+
+
+def _tube_line(man: Manifest) -> str | None:
+    inlet = man.params.data.get("inlet")
+    if not isinstance(inlet, dict):
+        return None
+    d, depth = inlet.get("socket_diameter_mm"), inlet.get("socket_depth_mm")
+    if not isinstance(d, (int, float)) or not isinstance(depth, (int, float)):
+        return None
+    return (f"Tube: {d:g} mm outer diameter (the socket's diameter; the silicone grips it), "
+            f"pushed {depth:g} mm in to the bottom of the socket.")
+
+
+def _hardware_blocks(family: Sequence[Manifest]) -> list[Block]:
+    items = _grouped(family, _screw_line) + _grouped(family, _tube_line)
+    return [("h2", "Have at hand"), ("ul", items)] if items else []
 
 
 def card_files(family: Sequence[Manifest], title: str,

@@ -15,9 +15,10 @@ from collections.abc import Mapping, Sequence
 from pathlib import Path
 from typing import Protocol
 
-from ..analysis.findings import Verdict
+from ..analysis.findings import Severity, Verdict
 from ..version import __version__
 from .card import card_files
+from .fieldwords import field_words
 from .files import json_bytes, write_atomic
 from .manifest import Manifest, ManifestError, read_manifest
 from .sheet import SheetData, SheetVariant, manifest_row, render_sheet, unbuilt_row
@@ -54,31 +55,57 @@ class ReportedVariant(Protocol):
     @property
     def changed(self) -> Mapping[str, object]: ...
     @property
+    def description(self) -> str: ...
+    @property
     def out_dir(self) -> str: ...
     @property
     def ok(self) -> bool: ...
 
 
 SUMMARY_FIELDS = ("recipe", "label", "family", "status", "verdict", "errors", "warnings",
-                  "silicone_cm3", "mix_g", "seconds", "changed", "reason", "out_dir")
+                  "warning_checks", "min_pressure_margin", "silicone_cm3", "mix_g", "seconds",
+                  "changed", "reason", "out_dir")
+
+#: The family of a recipe that makes one: family 1 of the documented numbering (its sheet
+#: and card have no suffix).
+ONE_FAMILY = "F1"
 
 
-def summary_row(v: ReportedVariant) -> dict[str, object]:
-    """The row of ``summary.json`` (keys in :data:`SUMMARY_FIELDS` order)."""
-    return {"recipe": v.recipe, "label": v.label, "family": v.family, "status": str(v.status),
-            "verdict": "" if v.verdict is None else str(v.verdict), "errors": v.errors,
-            "warnings": v.warnings, "silicone_cm3": v.silicone_cm3, "mix_g": v.mix_g,
+def summary_row(v: ReportedVariant, man: Manifest | None = None) -> dict[str, object]:
+    """The row of ``summary.json`` (keys in :data:`SUMMARY_FIELDS` order). ``man``: the
+    variant's manifest, when it was built or is up to date; it gives ``warning_checks``
+    (the checks that warned, in review order) and ``min_pressure_margin`` (the lowest
+    margin of any wall over the working pressure; None without one)."""
+    warned: list[str] = []
+    margin = None
+    if man is not None:
+        warned = list(dict.fromkeys(f.check for f in man.checks
+                                    if f.severity is Severity.WARNING))
+        margins = [w.margin for w in man.pressure.walls if w.margin is not None]
+        margin = min(margins) if margins else None
+    return {"recipe": v.recipe, "label": v.label, "family": v.family or ONE_FAMILY,
+            "status": str(v.status), "verdict": "" if v.verdict is None else str(v.verdict),
+            "errors": v.errors, "warnings": v.warnings, "warning_checks": warned,
+            "min_pressure_margin": margin, "silicone_cm3": v.silicone_cm3, "mix_g": v.mix_g,
             "seconds": round(v.seconds, 3), "changed": dict(v.changed), "reason": v.reason,
             "out_dir": v.out_dir}
 
 
-def summary_csv(variants: Sequence[ReportedVariant]) -> bytes:
-    """The rows of :func:`summary_row` as CSV, ``changed`` as ``path=value; ...``."""
+def summary_csv(variants: Sequence[ReportedVariant],
+                manifests: Sequence[Manifest | None] | None = None) -> bytes:
+    """The rows of :func:`summary_row` as CSV (``manifests``: one per variant, or None),
+    ``changed`` as ``path=value; ...``, ``warning_checks`` joined by "; " and an
+    empty cell for no margin."""
+    mans = list(manifests) if manifests is not None else [None] * len(variants)
     buf = io.StringIO()
     w = csv.DictWriter(buf, fieldnames=SUMMARY_FIELDS, lineterminator="\n")
     w.writeheader()
-    for v in variants:
-        w.writerow({**summary_row(v),
+    for v, man in zip(variants, mans):
+        row = summary_row(v, man)
+        margin, warned = row["min_pressure_margin"], row["warning_checks"]
+        assert isinstance(warned, list)
+        w.writerow({**row, "warning_checks": "; ".join(warned),
+                    "min_pressure_margin": "" if margin is None else margin,
                     "changed": "; ".join(f"{k}={x}" for k, x in v.changed.items())})
     return buf.getvalue().encode()
 
@@ -97,30 +124,35 @@ def write_reports(variants: Sequence[ReportedVariant], out_root: str | os.PathLi
     """Write summary.json, summary.csv and, per family, its sheet and casting card;
     returns the paths written (the two summaries first)."""
     root = Path(out_root)
-    rows = [summary_row(v) for v in variants]
+    mans = [_manifest(Path(v.out_dir)) if v.ok else None for v in variants]
+    rows = [summary_row(v, m) for v, m in zip(variants, mans)]
     written = []
     for name, data in (("summary.json", json_bytes({"tool_version": __version__,
                                                     "variants": rows})),
-                       ("summary.csv", summary_csv(variants))):
+                       ("summary.csv", summary_csv(variants, mans))):
         write_atomic(root / name, data)
         written.append(root / name)
+    by_dir = {v.out_dir: m for v, m in zip(variants, mans)}
     for (recipe, fam), members in families(variants).items():
-        written += _family_files(root / recipe, recipe, fam, members)
+        written += _family_files(root / recipe, recipe, fam, members,
+                                 [by_dir[v.out_dir] for v in members])
     return written
 
 
-def _family_files(folder: Path, recipe: str, fam: str, members: Sequence[ReportedVariant]
-                  ) -> list[Path]:
+def _family_files(folder: Path, recipe: str, fam: str, members: Sequence[ReportedVariant],
+                  manifests: Sequence[Manifest | None]) -> list[Path]:
     suffix = f"-{fam}" if fam else ""
-    mans, rows = [], []
-    for v in members:
-        man = _manifest(Path(v.out_dir)) if v.ok else None
-        rows.append(_sheet_row(v, man))
-        if man is not None:
-            mans.append(man)
+    mans = [m for m in manifests if m is not None]
+    # Words for the changed fields need the kinds the recipe names; a variant that was not
+    # built borrows them from a sibling (a variant changes values, not kinds).
+    params = mans[0].params.data if mans else {}
+    rows = [_sheet_row(v, m, params) for v, m in zip(members, manifests)]
     title = f"{recipe}" + (f" family {fam}" if fam else "")
     written = []
-    png, svg = render_sheet(SheetData(title, f"soft-molds {__version__}", tuple(rows)))
+    # No date on the sheet: the same recipe and version give the same bytes; the version
+    # here and the recipe hash on each row name the build instead.
+    png, svg = render_sheet(SheetData(title, f"soft-molds {__version__}", tuple(rows),
+                                      members[0].description))
     for ext, data in (("png", png), ("svg", svg)):
         p = folder / f"family-sheet{suffix}.{ext}"
         write_atomic(p, data)
@@ -140,11 +172,13 @@ def _manifest(folder: Path) -> Manifest | None:
         return None
 
 
-def _sheet_row(v: ReportedVariant, man: Manifest | None) -> SheetVariant:
+def _sheet_row(v: ReportedVariant, man: Manifest | None,
+               params: Mapping[str, object]) -> SheetVariant:
     """One variant's row of the family sheet: its key figures and a section of its cast
-    part, or its status and reason when there is no manifest to show."""
-    changed = tuple((k, f"{x:g}" if isinstance(x, float) else str(x))
-                    for k, x in v.changed.items())
+    part, or its status and reason when there is no manifest to show; the changed fields
+    in words (``params``: a resolved recipe of the family, for the kinds)."""
+    own = man.params.data if man is not None else params
+    changed = tuple(field_words(k, x, own) for k, x in v.changed.items())
     if man is None:
         return unbuilt_row(v.label, changed, str(v.status), v.reason)
     return manifest_row(man, Path(v.out_dir), changed)

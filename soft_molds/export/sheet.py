@@ -1,8 +1,13 @@
 """The family sheet: one printable A4 picture per family of up to five variants, in PNG and
 SVG, to pin beside the casts.
 
-One row per variant: the label and the verdict on the left, the changed recipe parameters
-and the key figures in the middle, a section drawing through the cast part on the right.
+One row per variant: the label and a badge naming its worst finding (``warning: pressure``)
+on the left, the changed recipe parameters in the words of the bench ("chamber height
+6 mm") and the key figures in the middle, a section drawing through the cast part on the
+right. The header gives the recipe's description, the tool version and, per row, the
+recipe hash. The sheet carries no date on purpose: the same recipe and tool version must
+give the same bytes (the build digests pin them), and the version and hash say which
+build a printed sheet belongs to better than a date would.
 Every section is drawn at one common scale (paper mm per part mm), so the rows compare by
 eye; each row carries a scale bar, and the header states the scale at 100 % print.
 
@@ -21,6 +26,7 @@ from __future__ import annotations
 
 import io
 import math
+import re
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from pathlib import Path
@@ -36,6 +42,7 @@ from matplotlib.font_manager import FontProperties
 from matplotlib.lines import Line2D
 from matplotlib.typing import RcKeyType
 
+from ..analysis.findings import Severity
 from ..analysis.section import section_segments
 from ..units import mm3_to_cm3
 from .card import verdict_word
@@ -90,11 +97,13 @@ _LINE_IN = _TEXT_PT * 1.32 / 72.0
 class SheetVariant:
     """One row of the sheet.
 
-    ``changed``: (parameter path, value text) pairs that differ from the family's
-    reference recipe. ``figures``: (name, value text with unit) key figures.
-    ``verdict``: "ok", "warnings", "errors" or "failed". ``section``: (n, 2, 2) line
-    segments in mm in the 2-D frame named by ``section_axes`` (first name horizontal,
-    second vertical, pointing up); may be empty (shape (0, 2, 2) or size 0).
+    ``changed``: (parameter words, value text with unit) pairs that differ from the
+    family's reference recipe, drawn as "chamber height 6 mm". ``figures``: (name, value
+    text with unit) key figures. ``verdict``: "ok", "warnings", "errors" or "failed" (the
+    badge's colour). ``badge``: the badge's text, e.g. "warning: pressure" (the verdict
+    when empty). ``section``: (n, 2, 2) line segments in mm in the 2-D frame named by
+    ``section_axes`` (first name horizontal, second vertical, pointing up); may be empty
+    (shape (0, 2, 2) or size 0).
     """
 
     label: str
@@ -103,24 +112,40 @@ class SheetVariant:
     verdict: str
     section: np.ndarray
     section_axes: tuple[str, str]
+    badge: str = ""
 
 
 @dataclass(frozen=True)
 class SheetData:
-    """A family sheet: title and subtitle (e.g. recipe file, tool version) and 1..5 rows."""
+    """A family sheet: title and subtitle (e.g. tool version), 1..5 rows, and the
+    recipe's description (drawn under the title when not empty)."""
 
     title: str
     subtitle: str
     variants: tuple[SheetVariant, ...]
+    description: str = ""
 
 
 Pair = tuple[str, str]
 
 
+def worst_finding(man: Manifest) -> str:
+    """The badge of a variant: "ok", or the severity and check of its worst finding
+    (errors before warnings, then in review order), with "+n" for n other checks that
+    found as bad, e.g. "warning: pressure +1"."""
+    for sev in (Severity.ERROR, Severity.WARNING):
+        names = list(dict.fromkeys(f.check for f in man.checks if f.severity is sev))
+        if names:
+            more = f" +{len(names) - 1}" if len(names) > 1 else ""
+            return f"{sev}: {names[0]}{more}"
+    return "ok"
+
+
 def manifest_row(man: Manifest, folder: Path, changed: tuple[Pair, ...] = ()) -> SheetVariant:
-    """The row of a built variant: label, verdict and key figures from its manifest, and a
-    section through the cast part it wrote into ``folder``, cut across the in-plane cross
-    axis (y when z is up, else z) through the centre of the tube socket."""
+    """The row of a built variant: label, worst finding and key figures from its manifest,
+    and a section through the cast part it wrote into ``folder``, cut across the in-plane
+    cross axis (y when z is up, else z) through the centre of the tube socket.
+    ``changed``: (words, value) pairs as drawn (see :mod:`.fieldwords`)."""
     cross = "y" if man.pour.up[2] else "z"
     cy, cz = man.inlet_center_mm
     cast = next((p for p in man.parts if p.role == "cast"), None)
@@ -130,7 +155,7 @@ def manifest_row(man: Manifest, folder: Path, changed: tuple[Pair, ...] = ()) ->
         seg, axes = section_segments(read_binary_stl(folder / cast.file), cross,
                                      cy if cross == "y" else cz)
     return SheetVariant(man.label, changed, manifest_figures(man), verdict_word(man.verdict),
-                        seg, axes)
+                        seg, axes, worst_finding(man))
 
 
 def manifest_figures(man: Manifest) -> tuple[Pair, ...]:
@@ -147,16 +172,21 @@ def manifest_figures(man: Manifest) -> tuple[Pair, ...]:
     lims = [w.limit_kpa for w in man.pressure.walls if w.limit_kpa is not None]
     if lims:
         figs.append(("balloons at", f"about {min(lims):.0f} kPa"))
+    figs.append(("recipe hash", man.source_params_sha256[:12]))
     return tuple(figs)
 
 
 def unbuilt_row(label: str, changed: tuple[Pair, ...], status: str,
                 reason: str) -> SheetVariant:
     """The row of a variant with no files: ``status`` "failed" (the build broke) or another
-    word (e.g. "refused": a check failed), with the first 80 characters of ``reason``."""
+    word (e.g. "refused": a check failed), with the first 80 characters of ``reason``; the
+    badge says the status and, for a reason that starts with a check's name (a refusal's
+    does: "trapped-air: ..."), that check."""
+    m = re.match(r"([a-z][a-z0-9]*(?:-[a-z0-9]+)*): ", reason)
+    badge = f"{status}: {m.group(1)}" if m and status != "failed" else status
     return SheetVariant(label, changed, (("status", status), ("reason", reason[:80])),
                         "failed" if status == "failed" else "errors", np.empty((0, 2, 2)),
-                        ("x", "z"))
+                        ("x", "z"), badge)
 
 
 @dataclass(frozen=True)
@@ -212,7 +242,10 @@ def build_figure(data: SheetData) -> Figure:
 
     fig.text(*at(_MARGIN, page_h - _HEADER_TOP), data.title, ha="left", va="top",
              fontsize=15, fontweight="bold")
-    fig.text(*at(_MARGIN, page_h - _HEADER_TOP - 0.32), data.subtitle, ha="left", va="top",
+    sub = data.subtitle if not data.description else f"{data.description}  \u2014  " \
+        f"{data.subtitle}"
+    fig.text(*at(_MARGIN, page_h - _HEADER_TOP - 0.32),
+             _fit(sub, page_w - 2 * _MARGIN, 8.5, "normal", measure), ha="left", va="top",
              fontsize=8.5, color="0.3")
 
     row_h = (page_h - _ROWS_TOP - _ROWS_BOTTOM) / MAX_VARIANTS
@@ -367,8 +400,17 @@ def _draw_label(fig: Figure, at: PagePoint, v: SheetVariant, top: float, rendere
     fig.text(*at(x, top - _ROW_PAD), label, ha="left", va="top", fontsize=size,
              fontweight="bold")
     face, ink = VERDICT_STYLE[v.verdict]
-    fig.text(*at(x + 0.06, top - _ROW_PAD - 0.62), v.verdict, ha="left", va="top",
-             fontsize=10, fontweight="bold", color=ink,
+    # The badge names the worst finding; shrink it to the column (its box pads 0.35 em).
+    badge = v.badge or v.verdict
+    bsize = 10.0
+    bprop = FontProperties(family="sans-serif", size=bsize, weight="bold")
+    room = w - 0.06 - 2 * 0.35 * bsize / 72.0
+    bw = renderer.get_text_width_height_descent(badge, bprop, ismath=False)[0] / renderer.dpi
+    if bw > room:
+        bsize = max(6.0, bsize * room / bw)
+    badge = _fit(badge, room, bsize, "bold", renderer)
+    fig.text(*at(x + 0.06, top - _ROW_PAD - 0.62), badge, ha="left", va="top",
+             fontsize=bsize, fontweight="bold", color=ink,
              bbox={"boxstyle": "round,pad=0.35", "facecolor": face, "edgecolor": "black",
                    "linewidth": 0.8})
 
@@ -377,7 +419,7 @@ def _draw_text(fig: Figure, at: PagePoint, v: SheetVariant, top: float, row_h: f
                renderer) -> None:
     x, w = _COL_TEXT
     capacity = int((row_h - 2 * _ROW_PAD) / _LINE_IN)
-    changed = [(p, f" = {val}") for p, val in v.changed] or [("nothing (reference)", "")]
+    changed = [(p, f" {val}") for p, val in v.changed] or [("nothing (reference)", "")]
     figures = [(name, f": {val}") for name, val in v.figures] or [("none", "")]
     # Two headings; figures keep their room first, the changes get what is left.
     room = max(capacity - 2, 2)

@@ -59,7 +59,8 @@ def reference_markdown() -> str:
     return "\n".join(out).rstrip() + "\n"
 
 
-START = "<!-- recipe-reference:start (generated: soft-molds reference --update README.md) -->"
+START = ("<!-- recipe-reference:start (generated: .venv/bin/soft-molds reference --update "
+         "README.md) -->")
 END = "<!-- recipe-reference:end -->"
 
 

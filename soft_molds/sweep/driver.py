@@ -60,4 +60,5 @@ def run_sweep(tasks: Sequence[Task], out_root: str | os.PathLike[str], jobs: int
 
 
 def _with_spec(o: Outcome, t: Task) -> Outcome:
-    return replace(o, family=t.spec.family, changed=t.spec.changed())
+    return replace(o, family=t.spec.family, changed=t.spec.changed(),
+                   description=t.recipe.description)

@@ -26,8 +26,8 @@ class Status(StrEnum):
 class Outcome:
     """One variant's result. ``verdict`` is None when nothing was built; ``silicone_cm3``
     and ``mix_g`` (grams of every portion weighed out) are None unless it was built or is
-    up to date; the worker figures (MB) are the worker's resident memory after the
-    variant and its peak so far."""
+    up to date; ``description`` is the recipe's, for the family sheet; the worker figures
+    (MB) are the worker's resident memory after the variant and its peak so far."""
 
     recipe: str
     label: str
@@ -41,6 +41,7 @@ class Outcome:
     silicone_cm3: float | None = None
     mix_g: float | None = None
     changed: dict[str, object] = field(default_factory=dict)
+    description: str = ""
     out_dir: str = ""
     worker_pid: int = 0
     worker_rss_mb: float = 0.0

@@ -48,7 +48,8 @@ def test_check_exits_1_on_an_error_and_strict_also_on_a_warning(tmp_path, capsys
     out = capsys.readouterr().out
     assert "WARNING core-slenderness" in out
     assert main(["check", "--strict", str(slender)]) == 1
-    assert "0 of 1 recipes passed (no errors or warnings)" in capsys.readouterr().out
+    assert ("0 of 1 variant passed (no errors or warnings); 0 of 1 recipe passed in every "
+            "variant") in capsys.readouterr().out
 
 
 def test_check_of_a_folder_checks_every_variant_and_lists_the_failures(tmp_path, capsys):
@@ -59,6 +60,17 @@ def test_check_of_a_folder_checks_every_variant_and_lists_the_failures(tmp_path,
     (tmp_path / "pair.yaml").write_text(text)
     assert main(["check", str(tmp_path)]) == 1
     out = capsys.readouterr().out
-    assert "1 of 2 recipes passed" in out
+    # two variants of one recipe file: counted as variants, and the file as one recipe
+    assert "1 of 2 variants passed (no errors); 0 of 1 recipe passed in every variant" in out
     failed = [line for line in out.splitlines() if line.startswith("  failed:")]
     assert len(failed) == 1 and " B: core-extraction" in failed[0]
+
+
+def test_the_tally_counts_variants_and_recipes_each_by_its_own_name():
+    from soft_molds.cli import check_tally
+
+    assert check_tally(10, 10, 8, 8, False) == (
+        "10 of 10 variants passed (no errors); 8 of 8 recipes passed in every variant")
+    assert check_tally(1, 1, 1, 1, True) == (
+        "1 of 1 variant passed (no errors or warnings); 1 of 1 recipe passed in every "
+        "variant")

@@ -23,6 +23,15 @@ def test_reference_update_rewrites_only_between_the_markers(tmp_path, capsys):
     text = doc.read_text()
     assert text.startswith("before\n") and text.endswith("after\n") and "stale" not in text
     assert reference_markdown() in text
+    # with the finding-advice markers too, both copies are rewritten
+    from soft_molds.export.advice import advice_markdown
+
+    doc.write_text(f"{START}\n{END}\n<!-- finding-advice:start -->\nSTALE ADVICE\n"
+                   "<!-- finding-advice:end -->\n")
+    assert main(["reference", "--update", str(doc)]) == 0
+    text = doc.read_text()
+    assert "STALE ADVICE" not in text
+    assert advice_markdown() in text and reference_markdown() in text
 
 
 def test_build_into_an_unwritable_place_is_one_line_exit_1(tmp_path, capsys):

@@ -12,6 +12,7 @@ import re
 import struct
 import xml.etree.ElementTree as ET
 import zlib
+from types import SimpleNamespace
 
 import matplotlib as mpl
 import numpy as np
@@ -30,7 +31,7 @@ def _square(side_mm: float, x0: float = 0.0, y0: float = 0.0) -> np.ndarray:
 
 
 def _variant(label: str, verdict: str = "ok", section: np.ndarray | None = None,
-             changed: tuple[tuple[str, str], ...] = (("voids[0].height_mm", "7"),)
+             changed: tuple[tuple[str, str], ...] = (("chamber height", "7 mm"),)
              ) -> SheetVariant:
     return SheetVariant(
         label=label, changed=changed,
@@ -135,7 +136,7 @@ def test_svg_is_xml_a4_in_points_and_every_label_and_verdict_is_text(five):
         assert word in texts
     assert "seedling-finger family F2" in texts
     assert any("relief valve" in t and "never exceed a tested pressure" in t for t in texts)
-    assert "voids[0].height_mm = 7" in texts
+    assert "chamber height 7 mm" in texts
     assert "mix: 7.6 g A + 7.6 g B" in texts
 
 
@@ -216,8 +217,8 @@ def test_dollar_signs_and_long_values_stay_literal_text():
         _variant("A", changed=(("note", "$a$ and $b$"), ("body.label", long_value))),))
     texts = _svg_texts(render_sheet(data)[1])
     assert "cost $5 per cast" in texts          # not parsed as mathtext
-    assert "note = $a$ and $b$" in texts
-    cut = next(t for t in texts if t.startswith("body.label = x"))
+    assert "note $a$ and $b$" in texts
+    cut = next(t for t in texts if t.startswith("body.label x"))
     assert cut.endswith("\u2026") and len(cut) < 100   # cut to the column, not spilled
 
 
@@ -226,7 +227,7 @@ def test_a_long_parameter_path_gives_way_before_its_value():
     texts = _svg_texts(render_sheet(SheetData("t", "", (
         _variant("A", changed=((path, "7.25"),)),)))[1])
     line = next(t for t in texts if t.startswith("voids[0]."))
-    assert line.endswith("height_mm = 7.25") and "\u2026" in line and len(line) < len(path)
+    assert line.endswith("height_mm 7.25") and "\u2026" in line and len(line) < len(path)
 
 
 def test_a_row_from_a_written_variant_reads_its_manifest_and_cuts_its_cast(finger,
@@ -248,6 +249,9 @@ def test_a_row_from_a_written_variant_reads_its_manifest_and_cuts_its_cast(finge
     # chambers 8 mm high centred 1 mm above the middle of the 14 mm bar: the top wall is
     # 7 - (1 + 4) = 2 mm, the thinnest (closed form)
     assert figs["thinnest wall"] == "2.00 mm"
+    # the row names its build: the first 12 hex digits of the recipe's hash, no date
+    assert figs["recipe hash"] == finger.manifest().source_params_sha256[:12]
+    assert row.badge == "ok" or row.badge.startswith(("warning: ", "error: "))
     # z is up, so the cut is across y through the socket centre (y = 0): the outline of
     # the 70 mm x 14 mm bar from x = 0 (closed form from the recipe)
     assert row.section_axes == ("x", "z")
@@ -264,5 +268,40 @@ def test_a_variant_without_files_gets_a_row_saying_why():
     failed = unbuilt_row("B", (), "failed", "kernel: " + "x" * 200)
     refused = unbuilt_row("C", (), "refused", "trapped-air: a bubble")
     assert (failed.verdict, refused.verdict) == ("failed", "errors")
+    assert (failed.badge, refused.badge) == ("failed", "refused: trapped-air")
     assert dict(failed.figures)["reason"] == ("kernel: " + "x" * 200)[:80]
     assert failed.section.size == 0
+
+
+def test_the_badge_names_the_worst_finding_errors_before_warnings():
+    from soft_molds.analysis.findings import Severity, finding
+    from soft_molds.export.sheet import worst_finding
+
+    def man(*fs):
+        return SimpleNamespace(checks=fs)
+
+    warn_p = finding("pressure", Severity.WARNING, "cast", "balloons")
+    warn_u = finding("undercut", Severity.WARNING, "shell-upper", "flexes 2 mm")
+    err = finding("core-lock", Severity.ERROR, "shell-lower", "locked")
+    note = finding("overhang", Severity.INFO, "core", "12 mm2")
+    assert worst_finding(man(note)) == "ok"
+    assert worst_finding(man(note, warn_p)) == "warning: pressure"
+    assert worst_finding(man(warn_p, warn_u, warn_p)) == "warning: pressure +1"
+    assert worst_finding(man(warn_p, err)) == "error: core-lock"
+
+
+def test_a_long_badge_is_drawn_whole_in_a_smaller_size_in_the_label_column():
+    texts = _svg_texts(render_sheet(SheetData("t", "", (
+        SheetVariant("A", (), (), "warnings", _square(10.0), ("x", "z"),
+                     "warning: core-extraction +2"),)))[1])
+    assert "warning: core-extraction +2" in texts
+
+
+def test_header_gives_description_and_version_and_no_date():
+    data = SheetData("seedling-finger", "soft-molds 0.1.0", (_variant("A"),),
+                     "Bending finger of the gripper")
+    png, svg = render_sheet(data)
+    texts = _svg_texts(svg)
+    assert "Bending finger of the gripper  \u2014  soft-molds 0.1.0" in texts
+    assert not any(re.search(r"\b20\d\d-\d\d-\d\d\b", t) for t in texts)
+    assert render_sheet(data) == (png, svg)

@@ -1,0 +1,103 @@
+"""What to do about each finding, one short paragraph per name a registered check emits.
+
+The casting card prints the paragraph beside a finding, and the README's section "What to
+do about a finding" is generated from the same table (``.venv/bin/soft-molds reference
+--update README.md`` rewrites it; a test keeps the two identical and fails when a
+registered check emits a name without advice). The remedies are the usual ones of the trade (common
+practice) and the recipe fields that move each measured figure.
+"""
+
+from __future__ import annotations
+
+import re
+
+from ..analysis.registry import registered_checks
+
+ADVICE: dict[str, str] = {
+    "draft": (
+        "A note only: silicone flexes off walls without draft. If a shell sticks when you "
+        "open the mold, round the body's edges (`edge_radius_mm`, `round_mm`) or use more "
+        "release agent."),
+    "undercut": (
+        "The silicone must flex by the stated depth to leave that shell. Up to a few mm is "
+        "usually fine for soft grades; otherwise move the parting plane through the widest "
+        "section (`parting.offset_mm`, or `parting.axis: auto`) or round the edge that "
+        "hooks."),
+    "core-lock": (
+        "The rigid core print cannot leave a shell: the mold cannot be opened. Move the "
+        "parting plane through the core's axis (`parting.offset_mm`, `inlet.center_mm`) or "
+        "let the build choose it (`parting.axis: auto`)."),
+    "core-draft": (
+        "A note only: the void faces that face against the core's pull are released by "
+        "stretching the silicone; `core-extraction` says whether it can stretch that far."),
+    "core-extraction": (
+        "Pulling the core out through the inlet would stretch the silicone past its "
+        "elongation at break: the inlet would tear. Make the tube socket wider "
+        "(`inlet.socket_diameter_mm`), the chambers narrower, or use a stretchier grade "
+        "(`material.grade`, or your measured `material.elongation_pct`)."),
+    "core-slenderness": (
+        "The core print is long and thin between supports and may bend or break when cast "
+        "or pulled. Make the void wider or shorter, or accept the risk after a trial "
+        "print; the limit is `checks.core_slenderness_max`."),
+    "silicone-wall": (
+        "A silicone wall is thinner than `checks.min_wall_mm`: it may tear or balloon. Move "
+        "the void away from the outer surface (`center_mm`), make it smaller or the body "
+        "bigger."),
+    "trapped-air": (
+        "Air stays caught at a high point the vents do not reach, leaving a bubble in the "
+        "cast. Change the pour orientation (`parting.axis`), raise the body's ceiling "
+        "toward the sprue, or drill a vent through the upper shell at the stated point "
+        "after printing."),
+    "build-volume": (
+        "A part fits the printer in no orientation. Check `printer.bed_mm` and "
+        "`printer.height_mm`, or make the mold smaller (`mold.wall_mm`, `mold.flange_mm`)."),
+    "flat-face": (
+        "The part has no flat face big enough to stand on: print it with a brim or "
+        "supports, or add a flat by changing the mold settings."),
+    "print-wall": (
+        "A mold wall is thinner than `printer.perimeters` x `printer.nozzle_mm`: it may "
+        "leak or crack. Raise `mold.wall_mm`, or print with more perimeters if your "
+        "slicer allows."),
+    "overhang": (
+        "A note only: that area needs supports or bridging in the slicer; clean any "
+        "support off the cavity before casting."),
+    "pressure": (
+        "At the working pressure that wall is estimated to balloon (an estimate, not a "
+        "rating). Thicken the wall, make the chamber's span smaller, use a harder grade, "
+        "or lower `inflate.working_pressure_kpa`; test behind a relief valve."),
+}
+
+
+def finding_names() -> tuple[str, ...]:
+    """Every ``Finding.check`` name the registered checks emit, in review order."""
+    return tuple(n for c in registered_checks() for n in c.names)
+
+
+def advice_for(name: str) -> str:
+    """The paragraph for finding ``name`` (a generic one for a name without advice)."""
+    return ADVICE.get(name, "See the message and the README's section on the checks.")
+
+
+def advice_markdown() -> str:
+    """The README section's body: one paragraph per registered finding name."""
+    return "\n\n".join(f"`{n}`: {advice_for(n)}" for n in finding_names()) + "\n"
+
+
+_MARKERS = re.compile(r"(<!-- finding-advice:start[^>]*-->)(.*?)(<!-- finding-advice:end -->)",
+                      re.S)
+
+
+def advice_section(document: str) -> str | None:
+    """The generated text between the advice markers of ``document`` (None without them),
+    as :func:`splice_advice` writes it."""
+    m = _MARKERS.search(document)
+    return None if m is None else m.group(2).removeprefix("\n\n").removesuffix("\n")
+
+
+def splice_advice(document: str) -> str:
+    """``document`` with the text between the advice markers replaced by
+    :func:`advice_markdown`; ValueError when the markers are missing."""
+    if not _MARKERS.search(document):
+        raise ValueError("finding-advice markers not found")
+    return _MARKERS.sub(lambda m: f"{m.group(1)}\n\n{advice_markdown()}\n{m.group(3)}",
+                        document, count=1)
