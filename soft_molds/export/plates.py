@@ -38,9 +38,9 @@ _RC: dict[RcKeyType, object] = {
 }
 
 
-def plate_name(plate: int, suffix: str) -> str:
+def plate_name(plate: int, suffix: str, stem: str = "plate") -> str:
     """File name of plate ``plate`` (0-based) with ``suffix`` (``3mf``, ``png``)."""
-    return f"plate-{plate + 1}.{suffix}"
+    return f"{stem}-{plate + 1}.{suffix}"
 
 
 def variant_items(man: Manifest, meshes: Mapping[str, TriMesh]) -> list[PlateItem]:
@@ -58,10 +58,11 @@ def variant_items(man: Manifest, meshes: Mapping[str, TriMesh]) -> list[PlateIte
 
 
 def plate_files(groups: Sequence[Sequence[PlateItem]], faces: Mapping[tuple[str, str],
-                np.ndarray], bed_mm: tuple[float, float], title: str
+                np.ndarray], bed_mm: tuple[float, float], title: str, stem: str = "plate"
                 ) -> tuple[PlateSet, dict[str, bytes]]:
-    """Pack ``groups`` onto beds of ``bed_mm`` and encode every plate as 3MF and PNG.
-    ``faces`` maps (group, part) to the part's triangle indices into its vertices."""
+    """Pack ``groups`` onto beds of ``bed_mm`` and encode every plate as 3MF and PNG, named
+    ``<stem>-<n>``. ``faces`` maps (group, part) to the part's triangle indices into its
+    vertices."""
     plates = pack_plates(groups, bed_mm)
     items = {(it.group, it.part): it for g in groups for it in g}
     files: dict[str, bytes] = {}
@@ -72,8 +73,8 @@ def plate_files(groups: Sequence[Sequence[PlateItem]], faces: Mapping[tuple[str,
             placed.append(PlacedMesh(f"{p.part} {p.group}", placed_vertices(items[key], p),
                                      faces[key]))
         head = f"{title} plate {k + 1} of {plates.plate_count}"
-        files[plate_name(k, "3mf")] = encode_3mf(placed, head)
-        files[plate_name(k, "png")] = plate_picture(placed, plates.bed_mm, head)
+        files[plate_name(k, "3mf", stem)] = encode_3mf(placed, head)
+        files[plate_name(k, "png", stem)] = plate_picture(placed, plates.bed_mm, head)
     return plates, files
 
 
@@ -84,6 +85,32 @@ def variant_plate_files(man: Manifest, meshes: Mapping[str, TriMesh],
     faces = {(man.label, it.part): meshes[it.part].faces for it in items}
     _, files = plate_files([items], faces, bed_mm, f"{man.recipe} {man.label}")
     return files
+
+
+def family_plate_files(members: Sequence[tuple[Manifest, Mapping[str, TriMesh]]],
+                       title: str, stem: str) -> tuple[PlateSet | None, dict[str, bytes]]:
+    """The plates of a family: every member's (manifest, part meshes) printable parts,
+    members in the order given and each on one bed where it fits. Members are packed on
+    the first member's bed; a family whose members name different beds gets no plates
+    (None), as does one with no member."""
+    if not members:
+        return None, {}
+    beds = {m.params.bed_mm for m, _ in members}
+    if len(beds) != 1:
+        return None, {}
+    groups = [variant_items(m, meshes) for m, meshes in members]
+    faces = {(m.label, it.part): meshes[it.part].faces
+             for (m, meshes), g in zip(members, groups) for it in g}
+    return plate_files(groups, faces, beds.pop(), title, stem)
+
+
+def indexed_mesh(soup: TriMesh) -> TriMesh:
+    """A triangle soup (as read from STL) with equal corners joined into shared vertices
+    (sorted), so each 3MF object is one connected mesh; corners are compared exactly.
+    A facet whose corners join into fewer than three vertices has no area and is kept
+    (its count must stay the STL's)."""
+    verts, inverse = np.unique(soup.vertices, axis=0, return_inverse=True)
+    return TriMesh(verts, inverse.reshape(-1)[soup.faces])
 
 
 def plate_picture(meshes: Sequence[PlacedMesh], bed_mm: tuple[float, float],

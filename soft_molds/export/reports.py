@@ -1,7 +1,10 @@
 """The morning report of a sweep: ``summary.json`` and ``summary.csv`` in the output root
 (one row per variant), and per family, in the recipe's folder, a sheet
-(``family-sheet[-F<n>].png`` / ``.svg``) and a casting card (``casting-card[-F<n>].md``
-/ ``.html``) made from the manifests of the variants that were built or are up to date.
+(``family-sheet[-F<n>].png`` / ``.svg``), a casting card (``casting-card[-F<n>].md``
+/ ``.html``) and the family's print plates (``family-plate[-F<n>]-<k>.3mf`` / ``.png``:
+every variant's printed parts, each variant on one bed where it fits, see
+:mod:`soft_molds.export.plates`) made from the manifests and STL files of the variants
+that were built or are up to date.
 
 A row is anything with the attributes of :class:`ReportedVariant` (the sweep's outcome).
 """
@@ -16,11 +19,15 @@ from pathlib import Path
 from typing import Protocol
 
 from ..analysis.findings import Verdict
+from ..meshdata import TriMesh
 from ..version import __version__
 from .card import card_files
 from .files import json_bytes, write_atomic
 from .manifest import Manifest, ManifestError, read_manifest
+from .plates import family_plate_files, indexed_mesh
 from .sheet import SheetData, SheetVariant, manifest_row, render_sheet, unbuilt_row
+from .stl import read_binary_stl
+from .typedjson import ShapeError
 
 
 class ReportedVariant(Protocol):
@@ -112,12 +119,15 @@ def write_reports(variants: Sequence[ReportedVariant], out_root: str | os.PathLi
 def _family_files(folder: Path, recipe: str, fam: str, members: Sequence[ReportedVariant]
                   ) -> list[Path]:
     suffix = f"-{fam}" if fam else ""
-    mans, rows = [], []
+    mans, rows, printed = [], [], []
     for v in members:
         man = _manifest(Path(v.out_dir)) if v.ok else None
         rows.append(_sheet_row(v, man))
         if man is not None:
             mans.append(man)
+            meshes = _printed_meshes(man, Path(v.out_dir))
+            if meshes is not None:
+                printed.append((man, meshes))
     title = f"{recipe}" + (f" family {fam}" if fam else "")
     written = []
     png, svg = render_sheet(SheetData(title, f"soft-molds {__version__}", tuple(rows)))
@@ -129,7 +139,22 @@ def _family_files(folder: Path, recipe: str, fam: str, members: Sequence[Reporte
         for name, data in card_files(mans, title, f"casting-card{suffix}").items():
             write_atomic(folder / name, data)
             written.append(folder / name)
+    _, plates = family_plate_files(printed, title, f"family-plate{suffix}")
+    for name, data in plates.items():
+        write_atomic(folder / name, data)
+        written.append(folder / name)
     return written
+
+
+def _printed_meshes(man: Manifest, folder: Path) -> dict[str, TriMesh] | None:
+    """The printed parts' meshes of one variant, read from its STL files; None when one is
+    missing or damaged, or the manifest names no bed (the variant is left off the plates)."""
+    try:
+        _ = man.params.bed_mm  # raises ShapeError when the echo names no bed
+        return {rec.name: indexed_mesh(read_binary_stl(folder / rec.file))
+                for rec in man.parts if rec.printable}
+    except (OSError, ValueError, ShapeError):
+        return None
 
 
 def _manifest(folder: Path) -> Manifest | None:

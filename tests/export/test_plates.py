@@ -107,3 +107,45 @@ def test_the_plates_are_byte_identical_from_run_to_run(finger, plate_set):
     assert [i.filename for i in infos] == sorted(i.filename for i in infos) == [
         "3D/3dmodel.model", "[Content_Types].xml", "_rels/.rels"]
     assert {i.date_time for i in infos} == {(1980, 1, 1, 0, 0, 0)}
+
+
+def test_a_family_report_packs_every_variant_together_on_the_plates(finger, tmp_path):
+    import json
+    import shutil
+    from types import SimpleNamespace
+
+    from soft_molds.analysis.findings import Verdict
+    from soft_molds.export.reports import write_reports
+    from soft_molds.export.writer import write_mold_set
+
+    # The finger written once as variant A and copied as variant B: two variants whose
+    # three printed parts each should share a bed.
+    a = write_mold_set(finger, tmp_path / "out").directory
+    b = a.parent / "B"
+    shutil.copytree(a, b)
+    man = json.loads((b / "manifest.json").read_text())
+    man["label"] = "B"
+    (b / "manifest.json").write_text(json.dumps(man))
+    rows = [SimpleNamespace(recipe="seedling-finger", label=x, family="", status="built",
+                            reason="", verdict=Verdict.OK, errors=0, warnings=0, seconds=1.0,
+                            silicone_cm3=1.0, mix_g=1.0, changed={}, out_dir=str(d), ok=True)
+            for x, d in (("A", a), ("B", b))]
+    written = write_reports(rows, tmp_path / "out")
+    plates = sorted(p for p in written if p.name.startswith("family-plate"))
+    models = [p for p in plates if p.suffix == ".3mf"]
+    assert len(plates) == 2 * len(models) and 1 <= len(models) <= 2
+    printed = [p.name for p in finger.manifest().parts if p.printable]
+    seen: dict[str, set[int]] = {"A": set(), "B": set()}
+    for k, path in enumerate(models):
+        _, objects = read_3mf(path.read_bytes(), tmp_path, f"fam-{k}.3mf")
+        for name, (v, t) in objects.items():
+            part, label = name.split()
+            seen[label].add(k)
+            assert len(t) == finger.part(part).mesh.triangle_count
+            # the STL's float32 corners, joined again into shared vertices
+            assert volume(v, t) == pytest.approx(finger.part(part).mesh.volume_mm3(),
+                                                 rel=1e-5)
+    assert all(len(s) == 1 for s in seen.values())  # each variant on one bed
+    names = {n for path in models
+             for n in read_3mf(path.read_bytes(), tmp_path, "again.3mf")[1]}
+    assert names == {f"{p} {x}" for p in printed for x in "AB"}
