@@ -11,7 +11,8 @@ placed part lies with its lowest point on z = 0 and its footprint box inside
 Packing. Each part is taken as its footprint box in the pose, grown by ``gap_mm`` on one
 x side and one y side (so two boxes packed edge to edge keep ``gap_mm`` between the parts),
 in a bin the bed's size grown the same way. The maximal-rectangles packer of the
-``rectpack`` library places the boxes, a box may be turned a quarter turn (the part stays on
+``rectpack`` library places the boxes (a few placement rules and orders are tried, the
+first that places every box kept), a box may be turned a quarter turn (the part stays on
 the same face); sizes are handed to it in whole hundredths of a millimetre (boxes rounded
 up, the bed down), so its arithmetic is exact and no rounding lets a part over the edge.
 
@@ -110,22 +111,47 @@ def _steps_down(mm: float) -> int:
     return int(math.floor(round(mm * _STEPS_PER_MM, 6)))
 
 
-def _pack(items: Sequence[tuple[int, int, int]], bin_wh: tuple[int, int],
-          bins: int) -> list[tuple[int, int, int, int, int, int]] | None:
-    """(bin, x, y, w, h, id) of every item (id, w, h) packed into at most ``bins`` bins, or
-    None when some item is left out."""
+def _strategies() -> list[tuple[object, object]]:
+    """(placement rule, order) pairs the packer tries, in this order: maximal rectangles
+    (best short side, bottom-left, best area) over largest-area-first and longest-side-first
+    orders, then skyline bottom-left. No rule is best for every set (a plate of two shells
+    and a long thin core packs fuller by one order than the other), so the first that
+    places everything is kept."""
     import rectpack
 
-    packer = rectpack.newPacker(mode=rectpack.PackingMode.Offline,
-                                bin_algo=rectpack.PackingBin.BFF,
-                                pack_algo=rectpack.MaxRectsBssf,
-                                sort_algo=rectpack.SORT_AREA, rotation=True)
-    for rid, w, h in items:
-        packer.add_rect(w, h, rid)
-    packer.add_bin(bin_wh[0], bin_wh[1], count=bins)
-    packer.pack()
-    got = [tuple(int(x) for x in r) for r in packer.rect_list()]
-    return got if len(got) == len(items) else None  # type: ignore[return-value]
+    return [(rule, order)
+            for rule in (rectpack.MaxRectsBssf, rectpack.MaxRectsBl, rectpack.MaxRectsBaf,
+                         rectpack.SkylineBl)
+            for order in (rectpack.SORT_AREA, rectpack.SORT_LSIDE, rectpack.SORT_SSIDE)]
+
+
+def _pack(items: Sequence[tuple[int, int, int]], bin_wh: tuple[int, int],
+          bins: int) -> list[tuple[int, int, int, int, int, int]] | None:
+    """(bin, x, y, w, h, id) of every item (id, w, h) packed into as few of at most
+    ``bins`` bins as the strategies manage (the first strategy on a tie), or None when
+    every strategy leaves an item out."""
+    import rectpack
+
+    best: list[tuple[int, int, int, int, int, int]] | None = None
+    for rule, order in _strategies():
+        packer = rectpack.newPacker(mode=rectpack.PackingMode.Offline,
+                                    bin_algo=rectpack.PackingBin.BFF, pack_algo=rule,
+                                    sort_algo=order, rotation=True)
+        for rid, w, h in items:
+            packer.add_rect(w, h, rid)
+        packer.add_bin(bin_wh[0], bin_wh[1], count=bins)
+        packer.pack()
+        got: list[tuple[int, int, int, int, int, int]] = [
+            (int(b), int(x), int(y), int(w), int(h), int(rid))
+            for b, x, y, w, h, rid in packer.rect_list()]
+        if len(got) != len(items):
+            continue
+        used = len({r[0] for r in got})
+        if best is None or used < len({r[0] for r in best}):
+            best = got
+        if used == 1:
+            break
+    return best
 
 
 def pack_plates(groups: Sequence[Sequence[PlateItem]], bed_mm: tuple[float, float],

@@ -14,6 +14,7 @@ from __future__ import annotations
 import csv
 import io
 import os
+import re
 from collections.abc import Mapping, Sequence
 from pathlib import Path
 from typing import Protocol
@@ -139,11 +140,22 @@ def _family_files(folder: Path, recipe: str, fam: str, members: Sequence[Reporte
         for name, data in card_files(mans, title, f"casting-card{suffix}").items():
             write_atomic(folder / name, data)
             written.append(folder / name)
-    _, plates = family_plate_files(printed, title, f"family-plate{suffix}")
+    stem = f"family-plate{suffix}"
+    _, plates = family_plate_files(printed, title, stem)
     for name, data in plates.items():
         write_atomic(folder / name, data)
         written.append(folder / name)
+    _remove_stale_plates(folder, stem, set(plates))
     return written
+
+
+def _remove_stale_plates(folder: Path, stem: str, keep: set[str]) -> None:
+    """Remove this family's plate files that an earlier report wrote and this one did not
+    (the family now fits fewer beds): a stale plate would be printed twice."""
+    own = re.compile(re.escape(stem) + r"-\d+\.(3mf|png)")
+    for path in sorted(folder.glob(f"{stem}-*")):
+        if own.fullmatch(path.name) and path.name not in keep:
+            path.unlink(missing_ok=True)
 
 
 def _printed_meshes(man: Manifest, folder: Path) -> dict[str, TriMesh] | None:

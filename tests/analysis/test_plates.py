@@ -130,3 +130,15 @@ def test_packing_is_the_same_every_time():
     area = sum((it.footprint_mm[0] + PLATE_GAP_MM) * (it.footprint_mm[1] + PLATE_GAP_MM)
                for g in groups for it in g)
     assert first.plate_count >= math.ceil(area / ((BED[0] + PLATE_GAP_MM) ** 2))
+
+
+def test_three_two_shell_variants_with_long_cores_share_one_bed():
+    # The finger family's footprints: two 104 x 50 shells and a 111.233 x 7 (or 8) core.
+    # Grown by the 5 mm gap, two shells fill a 218 mm row 55 deep; three rows take 165 mm
+    # of the 225 mm grown bed and the three cores, 116.233 x 12 or 13 each, stack in the
+    # 60 mm left (37 mm): one bed (arithmetic). The first placement rule alone needs two.
+    groups = [[item(g, "shell-lower", 104, 50), item(g, "shell-upper", 104, 50),
+               item(g, "core", 111.233, w)] for g, w in zip("ABC", (7, 7, 8))]
+    plates = pack_plates(groups, BED)
+    assert plates.plate_count == 1
+    assert_on_beds_apart(groups, plates)

@@ -130,7 +130,13 @@ def test_a_family_report_packs_every_variant_together_on_the_plates(finger, tmp_
                             reason="", verdict=Verdict.OK, errors=0, warnings=0, seconds=1.0,
                             silicone_cm3=1.0, mix_g=1.0, changed={}, out_dir=str(d), ok=True)
             for x, d in (("A", a), ("B", b))]
+    # an earlier report's plate beyond today's count, and another family's plate
+    folder = tmp_path / "out" / "seedling-finger"
+    (folder / "family-plate-7.3mf").write_bytes(b"stale")
+    (folder / "family-plate-F2-1.3mf").write_bytes(b"other family")
     written = write_reports(rows, tmp_path / "out")
+    assert not (folder / "family-plate-7.3mf").exists()
+    assert (folder / "family-plate-F2-1.3mf").read_bytes() == b"other family"
     plates = sorted(p for p in written if p.name.startswith("family-plate"))
     models = [p for p in plates if p.suffix == ".3mf"]
     assert len(plates) == 2 * len(models) and 1 <= len(models) <= 2
