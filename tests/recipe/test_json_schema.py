@@ -104,3 +104,33 @@ def test_a_bound_reads_as_the_field_declares_it():
     # mold.wall_mm: 4 <= value <= 50 mm, default 5 (soft_molds/recipe/schema.py)
     assert (wall["minimum"], wall["maximum"], wall["default"]) == (4.0, 50.0, 5.0)
     assert props["printer"]["properties"]["bed_mm"]["default"] == [220.0, 220.0]
+
+
+BELLOWS_TEXT = (ROOT / "recipes" / "plug-bellows.yaml").read_text()
+# (old, new, what is wrong) on the bundled bellows: the list-valued fields of a profile
+PROFILE_REFUSED = [
+    ("round_mm: 2 ", "round_mm: [2, 0.01] ", "a rounding between 0 and the smallest length"),
+    ("round_mm: 2 ", "round_mm: [] ", "an empty list of roundings"),
+    ("round_mm: 2 ", "round_mm: [2, x] ", "text among the roundings"),
+    ("  pleats: 5\n", "  pleats: 5\n  profile_mm: [[0, 7]]\n", "a profile of one point"),
+    ("  pleats: 5\n", "  pleats: 5\n  profile_mm: [[0, 7, 1], [10, 7]]\n",
+     "a point of three numbers"),
+    ("  pleats: 5\n", "  pleats: 5\n  profile_mm: [[0, 7], [1001, 7]]\n",
+     "a point beyond the largest size"),
+]
+
+
+def test_the_bundled_bellows_as_given_meets_the_schema(validator):
+    recipe_from_text(BELLOWS_TEXT, "bellows.yaml", "plug-bellows")
+    assert list(validator.iter_errors(as_data(BELLOWS_TEXT))) == []
+
+
+@pytest.mark.parametrize("old, new, why", PROFILE_REFUSED, ids=[r[2] for r in PROFILE_REFUSED])
+def test_a_profile_value_the_loader_refuses_the_schema_refuses(validator, old, new, why):
+    text = edit(BELLOWS_TEXT, old, new)
+    with pytest.raises(RecipeError) as exc:
+        recipe_from_text(text, "bellows.yaml", "plug-bellows")
+    # refused for the value itself (the bellows fields beside it are not reached)
+    field = "body.round_mm" if "round_mm" in new else "body.profile_mm"
+    assert [p.path.split("[")[0] for p in exc.value.problems] == [field]
+    assert list(validator.iter_errors(as_data(text))), why
