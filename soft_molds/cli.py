@@ -326,6 +326,13 @@ def cmd_sweep(args: argparse.Namespace) -> int:
     return 1 if bad or len(outcomes) < len(tasks) else 0
 
 
+def cmd_schema(args: argparse.Namespace) -> int:
+    from .recipe.json_schema import schema_text
+
+    print(schema_text(), end="")
+    return 0
+
+
 def cmd_reference(args: argparse.Namespace) -> int:
     from .recipe.reference import reference_markdown
 
@@ -419,6 +426,12 @@ def make_parser() -> argparse.ArgumentParser:
                                      "markers in FILE.")
     ref.add_argument("--update", metavar="FILE", help="rewrite the reference inside FILE")
     ref.set_defaults(func=cmd_reference)
+    sch = sub.add_parser("schema", help="print the JSON Schema of a recipe (for editors)",
+                         description="Print the JSON Schema (draft 2020-12) of a recipe file, "
+                                     "generated from the same field declarations as the "
+                                     "validator; an editor that checks YAML against a schema "
+                                     "flags a typo or a value out of range as you type.")
+    sch.set_defaults(func=cmd_schema)
     return ap
 
 

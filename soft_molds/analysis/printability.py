@@ -234,6 +234,16 @@ def _down_to_minus_z(down: np.ndarray) -> np.ndarray:
     return rot @ pre
 
 
+def print_rotation(down, turn_deg: float) -> np.ndarray:
+    """The rotation matrix (3, 3) from the world frame to the print frame of a pose: ``down``
+    (world unit vector, normalised here) brought to -z, then turned ``turn_deg``
+    counter-clockwise about +z (see the module docstring). Apply as ``vertices @ R.T``."""
+    t = math.radians(float(turn_deg))
+    c, s = math.cos(t), math.sin(t)
+    turn = np.array([[c, -s, 0.0], [s, c, 0.0], [0.0, 0.0, 1.0]])
+    return turn @ _down_to_minus_z(np.asarray(down, dtype=np.float64))
+
+
 def _hull_planes(hull) -> list[tuple[np.ndarray, float]]:
     """(unit outward normal, area mm2) of each plane of a convex hull, largest first."""
     from scipy.sparse import coo_matrix

@@ -248,6 +248,13 @@ class RecipeEcho:
         """Centre of the tube socket on the inlet face (y, z), mm."""
         return _inlet_center(self.data, "params")
 
+    @property
+    def bed_mm(self) -> Vec2:
+        """The printer's bed (x, y), mm."""
+        printer = self.data.get("printer")
+        bed = printer.get("bed_mm") if isinstance(printer, dict) else None
+        return typing.cast(Vec2, convert(Vec2, bed, "params.printer.bed_mm"))
+
     def json_value(self) -> JsonValue:
         return dict(self.data)
 

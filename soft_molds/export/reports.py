@@ -1,7 +1,10 @@
 """The morning report of a sweep: ``summary.json`` and ``summary.csv`` in the output root
 (one row per variant), and per family, in the recipe's folder, a sheet
-(``family-sheet[-F<n>].png`` / ``.svg``) and a casting card (``casting-card[-F<n>].md``
-/ ``.html``) made from the manifests of the variants that were built or are up to date.
+(``family-sheet[-F<n>].png`` / ``.svg``), a casting card (``casting-card[-F<n>].md``
+/ ``.html``) and the family's print plates (``family-plate[-F<n>]-<k>.3mf`` / ``.png``:
+every variant's printed parts, each variant on one bed where it fits, see
+:mod:`soft_molds.export.plates`) made from the manifests and STL files of the variants
+that were built or are up to date.
 
 A row is anything with the attributes of :class:`ReportedVariant` (the sweep's outcome).
 """
@@ -11,17 +14,22 @@ from __future__ import annotations
 import csv
 import io
 import os
+import re
 from collections.abc import Mapping, Sequence
 from pathlib import Path
 from typing import Protocol
 
 from ..analysis.findings import Severity, Verdict
+from ..meshdata import TriMesh
 from ..version import __version__
 from .card import card_files
 from .fieldwords import field_words
 from .files import json_bytes, write_atomic
 from .manifest import Manifest, ManifestError, read_manifest
+from .plates import family_plate_files, indexed_mesh
 from .sheet import SheetData, SheetVariant, manifest_row, render_sheet, unbuilt_row
+from .stl import read_binary_stl
+from .typedjson import ShapeError
 
 
 class ReportedVariant(Protocol):
@@ -147,6 +155,11 @@ def _family_files(folder: Path, recipe: str, fam: str, members: Sequence[Reporte
     # built borrows them from a sibling (a variant changes values, not kinds).
     params = mans[0].params.data if mans else {}
     rows = [_sheet_row(v, m, params) for v, m in zip(members, manifests)]
+    printed = []
+    for v, man in zip(members, manifests):
+        meshes = _printed_meshes(man, Path(v.out_dir)) if man is not None else None
+        if man is not None and meshes is not None:
+            printed.append((man, meshes))
     title = f"{recipe}" + (f" family {fam}" if fam else "")
     written = []
     # No date on the sheet: the same recipe and version give the same bytes; the version
@@ -161,7 +174,33 @@ def _family_files(folder: Path, recipe: str, fam: str, members: Sequence[Reporte
         for name, data in card_files(mans, title, f"casting-card{suffix}").items():
             write_atomic(folder / name, data)
             written.append(folder / name)
+    stem = f"family-plate{suffix}"
+    _, plates = family_plate_files(printed, title, stem)
+    for name, data in plates.items():
+        write_atomic(folder / name, data)
+        written.append(folder / name)
+    _remove_stale_plates(folder, stem, set(plates))
     return written
+
+
+def _remove_stale_plates(folder: Path, stem: str, keep: set[str]) -> None:
+    """Remove this family's plate files that an earlier report wrote and this one did not
+    (the family now fits fewer beds): a stale plate would be printed twice."""
+    own = re.compile(re.escape(stem) + r"-\d+\.(3mf|png)")
+    for path in sorted(folder.glob(f"{stem}-*")):
+        if own.fullmatch(path.name) and path.name not in keep:
+            path.unlink(missing_ok=True)
+
+
+def _printed_meshes(man: Manifest, folder: Path) -> dict[str, TriMesh] | None:
+    """The printed parts' meshes of one variant, read from its STL files; None when one is
+    missing or damaged, or the manifest names no bed (the variant is left off the plates)."""
+    try:
+        _ = man.params.bed_mm  # raises ShapeError when the echo names no bed
+        return {rec.name: indexed_mesh(read_binary_stl(folder / rec.file))
+                for rec in man.parts if rec.printable}
+    except (OSError, ValueError, ShapeError):
+        return None
 
 
 def _manifest(folder: Path) -> Manifest | None:

@@ -50,7 +50,7 @@ FAMILY_SIZE = len(LETTERS)
 DEFAULT_MAX_VARIANTS = 10_000
 HARD_MAX_VARIANTS = 1_000_000
 LABEL_RE = re.compile(r"^[A-Z0-9][A-Z0-9-]{0,11}$")
-_PATH_RE = re.compile(r"^[a-z_][a-z0-9_]*(\[\d+\])?(\.[a-z_][a-z0-9_]*(\[\d+\])?)*$")
+PATH_RE = re.compile(r"^[a-z_][a-z0-9_]*(\[\d+\])?(\.[a-z_][a-z0-9_]*(\[\d+\])?)*$")
 
 
 @dataclass(frozen=True)
@@ -251,7 +251,7 @@ def expand(root: Node) -> tuple[list[VariantSpec], list[Problem]]:
 
 
 def _check_path(path: object, where: str, line: int, problems: list[Problem]) -> bool:
-    if not isinstance(path, str) or not _PATH_RE.match(path):
+    if not isinstance(path, str) or not PATH_RE.match(path):
         problems.append(Problem(where, "is not a field path", line, path,
                                 "dotted names with list indexes, e.g. voids[0].height_mm"))
         return False
