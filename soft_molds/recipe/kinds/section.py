@@ -148,14 +148,14 @@ def per_point(pts: tuple[tuple[float, float], ...], round_mm: float | tuple[floa
 def _polygon_problems(pts: tuple[tuple[float, float], ...],
                       round_mm: float | tuple[float, ...] | None, path: str,
                       line: int | None) -> list[Problem]:
+    if len(pts) < 3:
+        return [Problem(f"{path}.points_mm", "has fewer than three points", line, len(pts),
+                        "at least three points [y, z]")]
     if isinstance(round_mm, tuple) and len(round_mm) != len(pts):
         return [Problem(f"{path}.round_mm", "does not give one rounding per point", line,
                         len(round_mm), f"one number, or a list of {len(pts)} (one per point "
                         "of points_mm)")]
     found = polygon_problems(pts, per_point(pts, round_mm), MIN_SIZE_MM)
-    if len(pts) < 3:
-        return [Problem(f"{path}.points_mm", "has fewer than three points", line, len(pts),
-                        "at least three points [y, z]")]
     return [Problem(f"{path}.points_mm[{i}]", what, line, list(pts[i]), allowed)
             for i, what, allowed in found]
 
