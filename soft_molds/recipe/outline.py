@@ -137,7 +137,50 @@ def polygon_problems(points: tuple[tuple[float, float], ...], rounds: tuple[floa
                         f"{min(oi, oj)} to point {max(oi, oj)}: the two roundings need "
                         f"{need:.3f} mm of it, it is {edge:.3f} mm long",
                         "smaller roundings (each takes radius x tan(turn/2) of both edges)"))
+    if out:
+        return out
+    crossing = _rounded_crossing(RoundedPolygon(points, rounds))
+    if crossing is not None:
+        near = int(np.argmin(np.linalg.norm(v - crossing, axis=1)))
+        return [(near, "has a rounding that makes the outline cross itself near "
+                 f"({crossing[0]:.2f}, {crossing[1]:.2f}) mm",
+                 "smaller roundings there, or points farther apart")]
     return out
+
+
+#: Angle (rad) between the points an arc is traced by when looking for crossings.
+TRACE_STEP_RAD = np.pi / 36.0
+
+
+def _rounded_crossing(poly: RoundedPolygon) -> np.ndarray | None:
+    """A point where the rounded outline, traced as a polyline (arcs by their chords every
+    TRACE_STEP_RAD), crosses itself, or None. The sharp polygon is known not to cross;
+    a concave rounding can still bulge across another edge."""
+    pts: list[tuple[float, float]] = []
+    for p in poly.pieces():
+        if isinstance(p, Line2):
+            pts.append(p.start)
+        else:
+            k = max(2, int(np.ceil(abs(p.sweep_rad) / TRACE_STEP_RAD)))
+            pts += [p.point(i / k) for i in range(k)]
+    a = np.asarray(pts)
+    b = np.roll(a, -1, axis=0)
+    n = len(a)
+    i, j = np.triu_indices(n, 2)
+    keep = ~((i == 0) & (j == n - 1))
+    i, j = i[keep], j[keep]
+
+    def orient(p: np.ndarray, q: np.ndarray, r: np.ndarray) -> np.ndarray:
+        return (q[:, 0] - p[:, 0]) * (r[:, 1] - p[:, 1]) - (q[:, 1] - p[:, 1]) * (r[:, 0] - p[:, 0])
+
+    d1, d2 = orient(a[j], b[j], a[i]), orient(a[j], b[j], b[i])
+    d3, d4 = orient(a[i], b[i], a[j]), orient(a[i], b[i], b[j])
+    hit = (d1 * d2 < 0.0) & (d3 * d4 < 0.0)
+    if not hit.any():
+        return None
+    k = int(np.flatnonzero(hit)[0])
+    f = d1[k] / (d1[k] - d2[k])
+    return a[i[k]] + f * (b[i[k]] - a[i[k]])
 
 
 @functools.lru_cache(maxsize=256)

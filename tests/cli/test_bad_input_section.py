@@ -119,6 +119,12 @@ _flat = edit(_flat, "round_mm: [1, 1, 3, 3, 3, 3]", "round_mm: 0")
 _sliver = edit(edit(POLYGON, "    - [-9, 0]\n    - [9, 0]\n    - [9, 8]\n    - [4, 14]\n"
                     "    - [-4, 14]\n    - [-9, 8]\n", "    - [0, 0]\n    - [0.06, 0]\n"
                     "    - [0, 0.06]\n"), "round_mm: [1, 1, 3, 3, 3, 3]", "round_mm: 0")
+# Point 3's rounding (3 mm on a spike) sweeps its arc across the edge from point 4 back to
+# point 0: found by tracing the rounded outline (the sharp polygon itself is simple).
+_bulge = edit(edit(POLYGON, "    - [-9, 0]\n    - [9, 0]\n    - [9, 8]\n    - [4, 14]\n"
+                   "    - [-4, 14]\n    - [-9, 8]\n", "    - [0, 3]\n    - [1, 0]\n"
+                   "    - [9, 6]\n    - [1, 7]\n    - [2, 1]\n"),
+              "round_mm: [1, 1, 3, 3, 3, 3]", "round_mm: [0, 2, 0, 3, 0]")
 _not_pair = edit(POLYGON, "    - [9, 8]", "    - [9, 8, 1]")
 _tip_low = edit(TAPER, "tip_scale: 0.7", "tip_scale: 0.2")
 _tip_high = edit(TAPER, "tip_scale: 0.7", "tip_scale: 1.5")
@@ -159,6 +165,9 @@ CASES = [
     Case("polygon-encloses-almost-nothing", _sliver, (
         _e("body.points_mm[0]", _at(_sliver, "[0, 0]"), "encloses no area", "[0.0, 0.0]",
            "points that enclose an area"),)),
+    Case("rounding-makes-the-outline-cross-itself", _bulge, (
+        _e("body.points_mm[4]", _at(_bulge, "[2, 1]"), "has a rounding that makes the "
+           "outline cross itself near (1.71, 1.29) mm", "[2.0, 1.0]", "smaller roundings"),)),
     Case("point-of-three-numbers", _not_pair, (
         _e("body.points_mm[2]", _at(_not_pair, "[9, 8, 1]"),
            "must be a point [y, z] of two numbers", "[9, 8, 1]", POINTS),)),

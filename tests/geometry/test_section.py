@@ -204,6 +204,35 @@ def test_the_plan_finds_the_tapered_ds_widest_upright_section_on_its_axis():
     assert offset == 0.0 and width == pytest.approx(15.0, abs=1e-9)  # the flat side
 
 
+def _valid_polygons(n: int, seed: int = 1):
+    """Polygons of 5 to 8 corners on a 1 mm grid with random roundings, kept when the
+    kind's checks pass (most random point lists cross themselves)."""
+    from soft_molds.recipe.outline import polygon_problems
+
+    rng = np.random.default_rng(seed)
+    out = []
+    while len(out) < n:
+        k = int(rng.integers(5, 9))
+        pts = tuple((float(rng.integers(0, 12)), float(rng.integers(0, 12))) for _ in range(k))
+        rr = tuple(float(x) for x in rng.choice([0.0, 1.0, 2.0, 3.0, 5.0], k))
+        if not polygon_problems(pts, rr, 0.05):
+            out.append((pts, rr))
+    return out
+
+
+@pytest.mark.parametrize("poly", _valid_polygons(24))
+def test_every_polygon_the_checks_pass_builds_to_its_closed_form_volume(kernel, poly):
+    from soft_molds.recipe.outline import RoundedPolygon
+    from soft_molds.recipe.primitives import Extruded
+
+    k, _ = kernel
+    pts, rr = poly
+    for s in (1.0, 0.5):
+        want = frustum(polygon_area(pts, rr), s, 10.0)
+        solid = k.build_primitive(Extruded(RoundedPolygon(pts, rr), 10.0, s), "body")
+        assert close(solid.Volume(), want, 1e-3), (solid.Volume(), want)
+
+
 # ---- the demo --------------------------------------------------------------------------
 
 R_DEMO, L_DEMO, S_DEMO = 11.0, 80.0, 0.7
