@@ -238,9 +238,12 @@ def test_every_polygon_the_checks_pass_builds_to_its_closed_form_volume(kernel, 
 R_DEMO, L_DEMO, S_DEMO = 11.0, 80.0, 0.7
 
 
-def test_the_demo_body_is_a_frustum_of_half_discs(bundled):
-    ms = bundled("seedling-taper-finger")
-    want = frustum(PI * R_DEMO ** 2 / 2.0, S_DEMO, L_DEMO)
+@pytest.mark.parametrize(("stem", "radius", "length", "tip"),
+                         [("seedling-taper-finger", R_DEMO, L_DEMO, S_DEMO),
+                          ("stem-d-finger", 9.0, 54.0, 1.0)])
+def test_the_demo_bodies_are_frustums_of_half_discs(bundled, stem, radius, length, tip):
+    ms = bundled(stem)
+    want = frustum(PI * radius ** 2 / 2.0, tip, length)  # tip 1: the prism L pi r^2 / 2
     assert close(ms.volumes_mm3["body"], want, 1e-3), (ms.volumes_mm3["body"], want)
     # the cast is the body less the voids (measured by the kernel), on the mesh
     got = ms.part("cast").mesh.to_trimesh().volume
