@@ -45,7 +45,9 @@ class Section:
     strain-limiting side), centred on y = 0, rising to z = diameter/2; ``polygon`` lies
     where its points say. With ``tip_scale`` below 1 the section shrinks linearly along x
     about ``scale_center_mm`` (default: the middle of the outline's lowest extent, so a
-    tapered D keeps its flat side on z = 0) to that fraction at the far end."""
+    tapered D keeps its flat side on z = 0) to that fraction at the far end. A
+    half-round's widest section is its flat side, so its mold parts upright through its
+    middle (``parting`` axis y, offset 0; ``axis: auto`` finds that plane)."""
 
     FIELDS: ClassVar[tuple[Field, ...]] = (
         number("length_mm", "length along x, from the inlet face"),
