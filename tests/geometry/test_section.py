@@ -69,6 +69,7 @@ def outlines():
         ("half-round", RoundedPolygon(((-r, 0.0), (r, 0.0), (r, r), (-r, r)),
                                       (0.0, 0.0, r, r)), PI * r * r / 2.0),
         ("ellipse", Ellipse((0.0, 0.0), 9.0, 5.0), PI * 9.0 * 5.0),
+        ("tall-ellipse", Ellipse((0.0, 0.0), 4.0, 9.0), PI * 4.0 * 9.0),
         ("polygon", RoundedPolygon(NOTCHED, NOTCHED_ROUNDS),
          polygon_area(NOTCHED, NOTCHED_ROUNDS)),
     ]
@@ -174,7 +175,7 @@ def test_the_half_round_sections_are_circle_chords_shrinking_along_x():
     assert e.section_extent(0, 2, 7.6) is None and e.section_extent(1, 0, -0.1) is None
 
 
-@pytest.mark.parametrize(("name", "s"), [("polygon", 0.6), ("ellipse", 0.6),
+@pytest.mark.parametrize(("name", "s"), [("polygon", 0.6), ("ellipse", 0.6), ("tall-ellipse", 0.6),
                                          ("polygon", 1.0), ("half-round", 0.6)])
 def test_cross_sections_match_trimesh_sections_of_the_mesh(meshes, name, s):
     e, _ = _case(name, s)
