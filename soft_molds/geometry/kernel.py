@@ -8,16 +8,29 @@ step here checks validity, solid count and, where known, the volume (kernel-note
 from __future__ import annotations
 
 import functools
+import math
 import weakref
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 
 import cadquery as cq
 from OCP.Bnd import Bnd_Box
 from OCP.BRepAlgoAPI import BRepAlgoAPI_Cut, BRepAlgoAPI_Fuse, BRepAlgoAPI_Splitter
 from OCP.BRepBndLib import BRepBndLib
+from OCP.BRepBuilderAPI import BRepBuilderAPI_MakeEdge
+from OCP.GC import GC_MakeArcOfEllipse
+from OCP.gp import gp_Ax2, gp_Dir, gp_Elips, gp_Pnt
 
 from ..errors import GeometryError
-from ..recipe.primitives import AXES, Primitive, ProfileLine, Revolved, RoundedBox, RoundedRod
+from ..recipe.outline import Arc2, Ellipse, Line2
+from ..recipe.primitives import (
+    AXES,
+    Extruded,
+    Primitive,
+    ProfileLine,
+    Revolved,
+    RoundedBox,
+    RoundedRod,
+)
 
 Shape = cq.Shape
 _DIRS = {0: cq.Vector(1, 0, 0), 1: cq.Vector(0, 1, 0), 2: cq.Vector(0, 0, 1)}
@@ -188,6 +201,85 @@ def _revolved(p: Revolved, part: str) -> cq.Shape:
     return checked(made, part, "revolve profile", volume_mm3=p.volume_mm3(), rel_tol=1e-6)
 
 
+#: Angle (rad) from the y axis where a closed round outline's edges meet: off both cross
+#: planes through its centre, where a parting plane may run (as SEAM_TURN_DEG does for
+#: revolved bodies).
+SEAM_ANGLE_RAD = math.pi / 4.0
+
+
+def _section_wire(e: Extruded, x: float, scale: float) -> cq.Wire:
+    """The outline of ``e`` scaled about its scale centre by ``scale``, in the plane at
+    ``x``: lines and three-point arcs; a circle or an ellipse as two halves that meet at
+    SEAM_ANGLE_RAD and opposite it."""
+    cy, cz = e.scale_center_mm
+
+    def at(y: float, z: float) -> cq.Vector:
+        return cq.Vector(x, cy + scale * (y - cy), cz + scale * (z - cz))
+
+    o = e.outline
+    if isinstance(o, Ellipse):
+        return cq.Wire.assembleEdges([_half_ellipse(at, o, k) for k in (0, 1)])
+    pieces = o.pieces()
+    if _one_circle(pieces):
+        assert isinstance(pieces[0], Arc2)
+        (ay, az), r = pieces[0].center, pieces[0].radius
+        pts = [at(ay + r * math.cos(SEAM_ANGLE_RAD + k * math.pi / 2),
+                  az + r * math.sin(SEAM_ANGLE_RAD + k * math.pi / 2)) for k in range(4)]
+        return cq.Wire.assembleEdges([cq.Edge.makeThreePointArc(pts[0], pts[1], pts[2]),
+                                      cq.Edge.makeThreePointArc(pts[2], pts[3], pts[0])])
+    edges = []
+    for piece in pieces:
+        if isinstance(piece, Line2):
+            edges.append(cq.Edge.makeLine(at(*piece.start), at(*piece.end)))
+        else:
+            edges.append(cq.Edge.makeThreePointArc(at(*piece.start), at(*piece.point(0.5)),
+                                                   at(*piece.end)))
+    return cq.Wire.assembleEdges(edges)
+
+
+def _one_circle(pieces: tuple[Line2 | Arc2, ...]) -> bool:
+    """Whether the outline is arcs of one circle only (a circle)."""
+    first = pieces[0]
+    return isinstance(first, Arc2) and all(
+        isinstance(p, Arc2) and abs(p.radius - first.radius) < 1e-9 and
+        math.dist(p.center, first.center) < 1e-9 for p in pieces)
+
+
+def _half_ellipse(at: Callable[[float, float], cq.Vector], o: Ellipse, k: int) -> cq.Edge:
+    """Half (``k`` = 0 or 1) of the ellipse, from the angle SEAM_ANGLE_RAD + k pi on, in
+    the section plane that ``at`` maps (y, z) into."""
+    (ey, ez), a, b = o.center, o.semi_y_mm, o.semi_z_mm
+    c = at(ey, ez)
+    p_y, p_z = at(ey + a, ez), at(ey, ez + b)
+    major, minor = (p_y, p_z) if a >= b else (p_z, p_y)
+    xdir = (major - c).normalized()
+    ydir = cq.Vector(1, 0, 0).cross(xdir)
+    ax = gp_Ax2(gp_Pnt(c.x, c.y, c.z), gp_Dir(1, 0, 0), gp_Dir(xdir.x, xdir.y, xdir.z))
+    elips = gp_Elips(ax, (major - c).Length, (minor - c).Length)
+    # The angle from y, as a parameter of a curve whose own first axis may be z.
+    t0 = SEAM_ANGLE_RAD + k * math.pi
+    start = at(ey + a * math.cos(t0), ez + b * math.sin(t0)) - c
+    u0 = math.atan2(start.dot(ydir) / (minor - c).Length, start.dot(xdir) / (major - c).Length)
+    curve = GC_MakeArcOfEllipse(elips, u0, u0 + math.pi, True).Value()
+    return cq.Edge(BRepBuilderAPI_MakeEdge(curve).Edge())
+
+
+def _extruded(p: Extruded, part: str) -> cq.Shape:
+    """A prism (the outline's face pushed along x), or a ruled loft between the start
+    section and the scaled tip section; checked against the closed-form volume."""
+    x0, x1 = p.start_mm, p.start_mm + p.length_mm
+    start = _section_wire(p, x0, 1.0)
+    try:
+        if p.tip_scale == 1.0:
+            face = cq.Face.makeFromWires(start)
+            made: cq.Shape = cq.Solid.extrudeLinear(face, cq.Vector(p.length_mm, 0, 0))
+        else:
+            made = cq.Solid.makeLoft([start, _section_wire(p, x1, p.tip_scale)], ruled=True)
+    except Exception as exc:  # OCCT raises bare Standard_Failure subclasses
+        raise GeometryError("sweep section", f"the kernel failed: {exc}", part) from exc
+    return checked(made, part, "sweep section", volume_mm3=p.volume_mm3(), rel_tol=1e-6)
+
+
 def build_primitive(p: Primitive, part: str) -> cq.Shape:
     if isinstance(p, RoundedBox):
         return _rounded_box(p, part)
@@ -195,6 +287,8 @@ def build_primitive(p: Primitive, part: str) -> cq.Shape:
         return _rounded_rod(p, part)
     if isinstance(p, Revolved):
         return _revolved(p, part)
+    if isinstance(p, Extruded):
+        return _extruded(p, part)
     raise GeometryError("build primitive", f"unknown primitive {type(p).__name__}", part)
 
 

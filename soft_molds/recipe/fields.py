@@ -59,6 +59,8 @@ class Field:
     choices: tuple[str, ...] = ()
     gap_below: float = 0.0
     item: str = ""  # what a ``graded`` field gives one value to ("chamber")
+    #: What the two numbers of each point of a ``points`` field are.
+    coords: tuple[str, str] = ("x", "radius")
 
     @property
     def required(self) -> bool:
@@ -99,8 +101,13 @@ def _list_allowed(f: Field) -> str:
         each = f"{_fmt(f.lo or 0.0)} <= value <= {_fmt(f.hi or MAX_SIZE_MM)} {f.unit}"
         return (f"a number, a list of numbers (one per {f.item}), or a linear grade "
                 f"{{from: first, to: last}}, each {each}")
+    if f.lo is not None and f.lo < 0.0:
+        top = _fmt(f.hi or MAX_SIZE_MM)
+        each = (f"-{top} <= value <= {top} {f.unit}, 0 or at least {_fmt(f.gap_below)} "
+                f"{f.unit} from 0")
     if f.kind == "points":
-        return (f"a list of 2 to {MAX_POINTS} points [x, radius], each value {each}")
+        return (f"a list of 2 to {MAX_POINTS} points [{', '.join(f.coords)}], each value "
+                f"{each}")
     return f"a number, or a list of numbers (one per point), each {each}"
 
 
@@ -134,11 +141,13 @@ def pair(name: str, doc: str, default: object = REQUIRED, *, unit: str = "mm",
     return Field(name, "pair", doc, default, unit, lo, hi, False)
 
 
-def points(name: str, doc: str, default: object = None) -> Field:
-    """A list of (x, radius) points in mm, each coordinate 0 or at least ``MIN_SIZE_MM``
-    (the order and shape of the points are the kind's to check)."""
-    return Field(name, "points", doc, default, "mm", 0.0, MAX_SIZE_MM, False,
-                 gap_below=MIN_SIZE_MM)
+def points(name: str, doc: str, default: object = None, *,
+           coords: tuple[str, str] = ("x", "radius"), signed: bool = False) -> Field:
+    """A list of points in mm (``coords`` names their two numbers), each coordinate 0 or
+    at least ``MIN_SIZE_MM`` in size, and not below 0 unless ``signed`` (the order and
+    shape of the points are the kind's to check)."""
+    return Field(name, "points", doc, default, "mm", -MAX_SIZE_MM if signed else 0.0,
+                 MAX_SIZE_MM, False, gap_below=MIN_SIZE_MM, coords=coords)
 
 
 def rounds(name: str, doc: str, default: object = 0.0) -> Field:
@@ -303,7 +312,8 @@ class MapReader:
                 continue
             pair_ = item.value if isinstance(item.value, list) else None
             if pair_ is None or len(pair_) != 2 or not all(_is_number(c.value) for c in pair_):
-                self.problem(ipath, "must be a point [x, radius] of two numbers", iline,
+                self.problem(ipath, f"must be a point [{', '.join(f.coords)}] of two numbers",
+                             iline,
                              item.plain(), f.allowed())
                 out.append(None)
                 continue

@@ -15,6 +15,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .outline import Outline
+
 AXES = {"x": 0, "y": 1, "z": 2}
 
 
@@ -487,7 +489,165 @@ def _wrap(a: float) -> float:
     return float((a + np.pi) % (2 * np.pi) - np.pi)
 
 
-Primitive = RoundedBox | RoundedRod | Revolved
+# ---- Extruded: a plane outline in (y, z) swept along x, optionally scaled down -----------
+
+#: Sections the tapered chord search tries per pass, and how many passes narrow it.
+TAPER_SAMPLES = 129
+TAPER_PASSES = 3
+
+
+@dataclass(frozen=True)
+class Extruded:
+    """The ``outline`` (in the y-z plane, mm) swept along x from ``start_mm`` for
+    ``length_mm``, scaled about the point ``scale_center_mm`` (y, z) by a factor that runs
+    linearly from 1 at the start to ``tip_scale`` at the far end (1: a straight prism;
+    below 1: a loft between two similar sections, every section in between similar too).
+    The solid is part of a cone with its apex on the line through the scale centre."""
+
+    outline: Outline
+    length_mm: float
+    tip_scale: float = 1.0
+    scale_center_mm: tuple[float, float] = (0.0, 0.0)
+    start_mm: float = 0.0
+
+    def scale_at(self, x: np.ndarray) -> np.ndarray:
+        """The section's scale at each x (held at the end values beyond the ends)."""
+        f = np.clip((np.asarray(x, dtype=np.float64) - self.start_mm) / self.length_mm, 0.0, 1.0)
+        return 1.0 + (self.tip_scale - 1.0) * f
+
+    def _reach_mm(self) -> float:
+        """An upper bound of the distance from the scale centre to the outline (mm): the
+        farthest corner of its bounds."""
+        (y0, z0), (y1, z1) = self.outline.bounds()
+        cy, cz = self.scale_center_mm
+        return max(float(np.hypot(y - cy, z - cz)) for y in (y0, y1) for z in (z0, z1))
+
+    def slope_factor(self) -> float:
+        """1 / sqrt(1 + k^2), k = |d scale / dx| x reach: the in-plane distance to the side
+        surface times this is a lower bound of the 3-D distance (1 for a straight prism)."""
+        k = abs(self.tip_scale - 1.0) / self.length_mm * self._reach_mm()
+        return 1.0 / float(np.sqrt(1.0 + k * k))
+
+    def sdf(self, p: np.ndarray) -> np.ndarray:
+        """Signed distance (mm): exact for a straight prism (the plane outline's exact
+        distance combined with the end planes'), and a bound never above the true distance
+        when tapered. Between sections at x and x', homothetic about the scale centre, no
+        point lies farther than |s(x) - s(x')| x reach from its image (the Hausdorff
+        distance), so a surface point dx away along x is at least in-plane distance -
+        k dx away across it; the least of sqrt(dx^2 + (d - k dx)^2) is d / sqrt(1 + k^2)."""
+        p = np.asarray(p, dtype=np.float64).reshape(-1, 3)
+        s = self.scale_at(p[:, 0])
+        c = np.asarray(self.scale_center_mm)
+        q = (p[:, 1:] - c) / s[:, None] + c
+        lateral = s * self.outline.sdf(q) * self.slope_factor()
+        axial = np.abs(p[:, 0] - (self.start_mm + self.length_mm / 2.0)) - self.length_mm / 2.0
+        w = np.stack([lateral, axial], axis=1)
+        outside = np.linalg.norm(np.maximum(w, 0.0), axis=1)
+        inside = np.minimum(w.max(axis=1), 0.0)
+        return outside + inside
+
+    def bounds(self) -> tuple[np.ndarray, np.ndarray]:
+        """Exact: the start section's bounds and the tip's (scaled about the centre)."""
+        (y0, z0), (y1, z1) = self.outline.bounds()
+        cy, cz = self.scale_center_mm
+        s = self.tip_scale
+        ys = (y0, y1, cy + s * (y0 - cy), cy + s * (y1 - cy))
+        zs = (z0, z1, cz + s * (z0 - cz), cz + s * (z1 - cz))
+        return (np.array([self.start_mm, min(ys), min(zs)]),
+                np.array([self.start_mm + self.length_mm, max(ys), max(zs)]))
+
+    def volume_mm3(self) -> float:
+        """Closed form: the area A0 times the length for a prism; a frustum of similar
+        sections (area A0 s(x)^2, s linear in x) holds L A0 (1 + s + s^2) / 3."""
+        s = self.tip_scale
+        return self.length_mm * self.outline.area_mm2() * (1.0 + s + s * s) / 3.0
+
+    def surface_samples(self, spacing_mm: float) -> np.ndarray:
+        """Points on the surface: the outline at stations along x at most ``spacing_mm``
+        apart, scaled as there, and both end faces filled on a grid."""
+        ring = self.outline.boundary(spacing_mm)
+        c = np.asarray(self.scale_center_mm)
+        k = max(1, int(np.ceil(self.length_mm / spacing_mm)))
+        xs = self.start_mm + np.linspace(0.0, self.length_mm, k + 1)
+        out = []
+        for x in xs:
+            s = float(self.scale_at(np.array([x]))[0])
+            out.append(np.column_stack([np.full(len(ring), x), c + s * (ring - c)]))
+        (y0, z0), (y1, z1) = self.outline.bounds()
+        gy = np.linspace(y0, y1, max(2, int(np.ceil((y1 - y0) / spacing_mm)) + 1))
+        gz = np.linspace(z0, z1, max(2, int(np.ceil((z1 - z0) / spacing_mm)) + 1))
+        grid = np.stack(np.meshgrid(gy, gz, indexing="ij"), axis=-1).reshape(-1, 2)
+        face = grid[self.outline.sdf(grid) < 0.0]
+        for x, s in ((xs[0], 1.0), (xs[-1], self.tip_scale)):
+            out.append(np.column_stack([np.full(len(face), x), c + s * (face - c)]))
+        return np.concatenate(out)
+
+    def section_extent(self, v: int, w: int, t: float) -> tuple[float, float] | None:
+        """Extent (lo, hi) along ``v`` of the section by ``coord[w] = t`` (None: the plane
+        misses). Across x: the scaled outline's bounds. Along x at a cross plane: the x
+        where the scaled outline reaches t, an interval (the bounds scale linearly).
+        Between the cross axes: the outline's chord at t for a prism (exact); tapered, the
+        extremes over the sections of the scaled chords, searched on a grid of sections
+        narrowed TAPER_PASSES times (the chord ends move smoothly with the scale)."""
+        c = self.scale_center_mm
+        x0, x1 = self.start_mm, self.start_mm + self.length_mm
+        lo2, hi2 = self.outline.bounds()
+        if w == 0:
+            if t < x0 or t > x1:
+                return None
+            s = float(self.scale_at(np.array([t]))[0])
+            return (c[v - 1] + s * (lo2[v - 1] - c[v - 1]), c[v - 1] + s * (hi2[v - 1] - c[v - 1]))
+        k = w - 1
+        if v == 0:
+            return _scale_interval(self, lo2[k] - c[k], hi2[k] - c[k], t - c[k])
+        j = v - 1
+        if self.tip_scale == 1.0:
+            a, b = self.outline.chords(j, np.array([t]))
+            return None if np.isnan(a[0]) else (float(a[0]), float(b[0]))
+        best_lo, best_hi = np.inf, -np.inf
+        for pick in (0, 1):
+            s_lo, s_hi = self.tip_scale, 1.0
+            for _ in range(TAPER_PASSES):
+                ss = np.linspace(s_lo, s_hi, TAPER_SAMPLES)
+                a, b = self.outline.chords(j, c[k] + (t - c[k]) / ss)
+                vals = c[j] + ss * ((a if pick == 0 else b) - c[j])
+                if np.all(np.isnan(vals)):
+                    return None
+                vals = np.where(np.isnan(vals), np.inf if pick == 0 else -np.inf, vals)
+                i = int(np.argmin(vals) if pick == 0 else np.argmax(vals))
+                if pick == 0:
+                    best_lo = min(best_lo, float(vals[i]))
+                else:
+                    best_hi = max(best_hi, float(vals[i]))
+                step = (s_hi - s_lo) / (TAPER_SAMPLES - 1)
+                s_lo, s_hi = max(self.tip_scale, ss[i] - step), min(1.0, ss[i] + step)
+        return (best_lo, best_hi)
+
+
+def _scale_interval(e: Extruded, lo: float, hi: float, u: float) -> tuple[float, float] | None:
+    """The x interval over which u (relative to the scale centre) lies in [s lo, s hi]:
+    s runs linearly along x, so each bound is one linear inequality in x."""
+    s0, s1 = 1.0, e.tip_scale
+    f_lo, f_hi = 0.0, 1.0
+    for bound, sign in ((lo, 1.0), (hi, -1.0)):
+        # sign * (s(f) * bound - u) <= 0, s(f) = s0 + (s1 - s0) f
+        a0 = sign * (s0 * bound - u)
+        slope = sign * (s1 - s0) * bound
+        if slope == 0.0:
+            if a0 > 1e-12:
+                return None
+            continue
+        f = -a0 / slope
+        if slope > 0.0:
+            f_hi = min(f_hi, f)
+        else:
+            f_lo = max(f_lo, f)
+    if f_lo > f_hi:
+        return None
+    return (e.start_mm + f_lo * e.length_mm, e.start_mm + f_hi * e.length_mm)
+
+
+Primitive = RoundedBox | RoundedRod | Revolved | Extruded
 
 
 def union_sdf(prims: tuple[Primitive, ...], p: np.ndarray) -> np.ndarray:

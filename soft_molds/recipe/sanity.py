@@ -74,10 +74,12 @@ def sanity_problems(r: Recipe, lines: dict[str, int]) -> list[Problem]:
                            "its rim"))
 
     sock_samples = socket.surface_samples(_spacing((socket,)))
-    # The mouth is meant to be open, and the rim check above already bounds the wall
-    # around the socket's side (the body only widens away from x = 0); what is left to
-    # check is the socket's floor.
-    sock_samples = sock_samples[sock_samples[:, 0] > r.inlet.socket_depth_mm - EPS]
+    # The mouth is meant to be open: within min_wall of the inlet face the face itself is
+    # nearer than min_wall, and the rim check above bounds the wall there. Beyond it the
+    # socket's side is checked as well as its floor, since a body may narrow away from
+    # x = 0 (a tapered section).
+    sock_samples = sock_samples[sock_samples[:, 0] >= min(min_wall,
+                                                          r.inlet.socket_depth_mm) - EPS]
     _wall_problems(out, "inlet", line("inlet") or line(""), body, sock_samples, min_wall)
 
     for i, (void, prims) in enumerate(zip(r.voids, r.void_primitives())):
