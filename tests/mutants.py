@@ -47,7 +47,7 @@ class Mutant:
     why: str                    # what kind of mutation (for counts and failure messages)
     outcome: str                # "refused" or "accepted"
     basis: str                  # "declared" (from the field declarations) or "recorded"
-    names: tuple[str, ...] = () # field paths a refusal must name ("" = the document)
+    names: tuple[str, ...] = ()  # field paths a refusal must name ("" = the document)
     allowed: str | None = None  # what the refusal must say is allowed (declared cases)
     extra: dict = field(default_factory=dict)
 
