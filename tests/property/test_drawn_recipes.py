@@ -231,3 +231,13 @@ def test_drawn_recipe_is_refused_by_a_field_line_or_builds_to_a_verdict(text):
     event(f"built {v}")
     assert all(p.report.ok for p in molds.parts)
     assert molds.silicone_volume_mm3 > 0.0
+
+
+def test_every_registered_kind_is_drawn():
+    """A new body or void kind registers itself (recipe/registry.py); it must get a
+    strategy here too, or the property above would never reach it."""
+    assert {b for b, _ in PAIRS} == set(body_kinds()) == set(BODY_WINDOWS)
+    assert {v for _, v in PAIRS} == set(void_kinds())
+    for kind, window in BODY_WINDOWS.items():
+        names = {f.name for f in body_kinds()[kind].FIELDS}
+        assert set(window) <= names, kind
