@@ -67,6 +67,8 @@ IN_RANGE_PER_FIELD = 1
 SLOW_TO_VALIDATE = {("body.pleats", "at the top"), ("body.pleats", "underscores"),
                     ("body.pleats", "middle")}
 BUILD_SAMPLE = 6
+BOUNDS = {"at the top", "at the bottom", "just above an open bottom", "gap edge", "zero",
+          "both at the bottom"}
 CLI_SAMPLE = 10
 
 
@@ -345,7 +347,10 @@ def settle(mutants: list[Mutant]) -> list[Mutant]:
              in ("body", "voids", "inlet", "mold", "marking", "parting")]
     picked: list[Mutant] = []
     for base in BASES:
-        mine = [m for m in build if m.base == base]
+        # Values at a bound of their declaration stress the kernel most; any other when a
+        # recipe has none accepted.
+        mine = [m for m in build if m.base == base and m.why in BOUNDS] or \
+            [m for m in build if m.base == base]
         if mine and len(picked) < BUILD_SAMPLE:
             picked.append(rng.choice(mine))
     refused = [m for m in out if m.outcome == "refused"]
