@@ -26,3 +26,10 @@ CORE_PULL = (-1.0, 0.0, 0.0)
 """The direction the core leaves the cured part: out through the inlet opening at x = 0,
 along -x (unit vector, world frame). The review pulls the core's draft and extraction along
 it; the build records it as the core part's pull."""
+
+MESH_VOLUME_REL_TOL = 0.005
+"""A part's mesh volume must agree with its exact (BRep) volume to this relative tolerance
+(0.5 %). The integrity check (:func:`soft_molds.analysis.integrity.check_mesh`) holds every
+mesh to it, and the tessellator (:func:`soft_molds.geometry.tessellate.tessellate_within`)
+refines a mesh that misses it, so a coarse ``mesh.chord_mm`` on a small curved part yields
+a finer mesh instead of a failed build."""

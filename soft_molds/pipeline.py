@@ -53,7 +53,7 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     from .analysis.highpoints import plan_openings
     from .analysis.review import run_checks
     from .geometry import mold
-    from .geometry.tessellate import tessellate
+    from .geometry.tessellate import tessellate_within
 
     say = progress or (lambda _msg: None)
     timings: dict[str, float] = {}
@@ -68,11 +68,12 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     with _stage(timings, "core", label):
         cs = mold.build_cast(recipe, plan.step, body)
     with _stage(timings, "tessellate", label):
-        cast_mesh = tessellate(cs.cast, chord, angle, "cast")
+        cast_mesh = tessellate_within(cs.cast, chord, angle, "cast", cs.volumes_mm3["cast"])
     if plan.step.parting is None:
         say("parting plane")
         with _stage(timings, "tessellate", label):
-            bare_core = tessellate(cs.core, chord, angle, "core")
+            bare_core = tessellate_within(cs.core, chord, angle, "core",
+                                          cs.volumes_mm3["core"])
         with _stage(timings, "analysis", label):
             plan = with_parting(plan, _ranked_planes(plan, cast_mesh, bare_core))
     recipe, step = plan.recipe, plan.step
@@ -98,9 +99,9 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     for spec in step.parts:
         solid = solids[spec.name]
         with _stage(timings, "tessellate", label):
-            mesh = cast_mesh if spec.role is Role.CAST else tessellate(solid, chord, angle,
-                                                                       spec.name)
             vol = cs.volumes_mm3.get(spec.name) or float(solid.Volume())
+            mesh = cast_mesh if spec.role is Role.CAST else tessellate_within(
+                solid, chord, angle, spec.name, vol)
             report = check_mesh(mesh, spec.name, vol)
         require_ok(report, label)
         parts.append(Part(spec.name, str(spec.role), solid, mesh, vol, spec.pull_dir, report))

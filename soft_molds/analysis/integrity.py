@@ -16,6 +16,7 @@ from dataclasses import dataclass
 import numpy as np
 import trimesh
 
+from soft_molds.constants import MESH_VOLUME_REL_TOL
 from soft_molds.errors import MeshIntegrityError
 from soft_molds.meshdata import TriMesh
 
@@ -81,7 +82,7 @@ def check_mesh(
     mesh: TriMesh,
     part: str,
     brep_volume_mm3: float | None = None,
-    rel_tol: float = 0.005,
+    rel_tol: float = MESH_VOLUME_REL_TOL,
     expected_bodies: int | None = 1,
 ) -> MeshReport:
     """Check closure, winding, sign of volume and body count of ``mesh`` (mm).

@@ -22,6 +22,7 @@ from OCP.TopLoc import TopLoc_Location
 from OCP.TopoDS import TopoDS, TopoDS_Compound, TopoDS_Face, TopoDS_Shape
 from scipy.spatial import cKDTree
 
+from ..constants import MESH_VOLUME_REL_TOL
 from ..errors import GeometryError
 from ..meshdata import TriMesh
 from .kernel import Shape
@@ -61,6 +62,32 @@ def tessellate(shape: Shape, chord_mm: float, angle_deg: float, part: str) -> Tr
         tris.append((idx[:, ::-1] if reversed_ else idx) + base)
         base += len(pts)
     return merge_vertices(np.concatenate(verts), np.concatenate(tris))
+
+
+#: How many times a mesh that misses the volume tolerance is refined (chord and angle halved
+#: each time): four halvings take the coarsest allowed chord, 0.5 mm, to 0.03 mm.
+MAX_REFINEMENTS = 4
+#: Refine until the mesh is inside this share of the tolerance, leaving the rest as margin
+#: for the integrity check's own arithmetic.
+TOLERANCE_SHARE = 0.8
+
+
+def tessellate_within(shape: Shape, chord_mm: float, angle_deg: float, part: str,
+                      volume_mm3: float) -> TriMesh:
+    """:func:`tessellate`, refined until the mesh's volume is within the integrity
+    tolerance of ``volume_mm3`` (the exact solid's, mm3). An inscribed mesh loses volume
+    with its chord error, most on small, strongly curved parts; a recipe's chord that is
+    too coarse for its part gets a finer mesh (the same inputs always take the same
+    steps, so the bytes stay repeatable). Parts that pass at the recipe's chord are meshed
+    exactly as before."""
+    mesh = tessellate(shape, chord_mm, angle_deg, part)
+    for _ in range(MAX_REFINEMENTS):
+        if abs(mesh.volume_mm3() - volume_mm3) <= \
+                TOLERANCE_SHARE * MESH_VOLUME_REL_TOL * abs(volume_mm3):
+            break
+        chord_mm, angle_deg = chord_mm / 2.0, max(angle_deg / 2.0, 1.0)
+        mesh = tessellate(shape, chord_mm, angle_deg, part)
+    return mesh
 
 
 def _face_triangulations(wrapped: TopoDS_Shape, part: str

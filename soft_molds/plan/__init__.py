@@ -11,7 +11,7 @@ from dataclasses import replace
 from ..errors import Problem, RecipeError
 from ..recipe.model import Recipe
 from .layout import Layout, plan_layout
-from .lines import line_finder
+from .lines import LineOf, line_finder
 from .model import (
     CastingStep,
     ChosenBy,
@@ -26,7 +26,7 @@ from .model import (
     Role,
 )
 from .processes import steps_of
-from .rules import frame_problems, parting_problems, printer_problems
+from .rules import first_rule_broken, frame_problems, parting_problems, printer_problems
 
 __all__ = ["CastingStep", "ChosenBy", "CoreSupport", "Inlet", "Layout", "MoldPlan", "Opening",
            "OpeningKind", "PartPlan", "PartingPlane", "PlaneScore", "Role", "plan_mold",
@@ -50,7 +50,27 @@ def plan_problems(r: Recipe) -> list[Problem]:
     cy, cz = r.inlet.center_mm
     misfits = [printer_problems(r, plan_layout(r, ax, off), line)
                for ax, off in (("y", cy), ("z", cz))]
-    return misfits[0] if all(misfits) else []
+    if all(misfits):
+        return misfits[0]
+    return auto_parting_problems(r, line)
+
+
+def auto_parting_problems(r: Recipe, line: LineOf) -> list[Problem]:
+    """``parting: auto`` can only choose among the candidate planes that keep the rules of
+    the mold (these are numbers, known before anything is built): when none does, the
+    recipe is refused now, with the rules the plane through the socket breaks."""
+    from .parting import candidate_planes
+
+    planes = candidate_planes(r)
+    if any(first_rule_broken(r, ax, off) is None for ax, off in planes):
+        return []
+    ax, off = planes[0]
+    head = Problem("parting.axis", f"auto finds no candidate plane that keeps the rules of "
+                   f"the mold ({len(planes)} tried); the plane through the socket, {ax} = "
+                   f"{off:g} mm, breaks those below", line("parting.axis"), "auto",
+                   "a recipe with room for the mold's features on some plane, or a "
+                   "parting axis and offset of your own")
+    return [head, *parting_problems(r, ax, off, line)]
 
 
 def plan_mold(r: Recipe) -> MoldPlan:

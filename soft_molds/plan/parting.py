@@ -51,9 +51,13 @@ def rank(scores: Sequence[PlaneScore]) -> list[PlaneScore]:
 
 
 def choose(r: Recipe, ranked: Sequence[PlaneScore]) -> Recipe:
-    """The recipe with the best ranked plane filled in; GeometryError when none is usable."""
-    best = ranked[0]
-    if not best.usable:
+    """The recipe with the best ranked plane filled in. When every plane locks the core
+    print, the best of those that keep the rules of the mold is taken anyway: the review
+    then reports the lock as an error finding (a verdict the person can act on), not a
+    kernel failure. GeometryError only when no plane keeps the rules, which validation
+    (:func:`soft_molds.plan.plan_problems`) has already refused."""
+    best = next((s for s in ranked if s.rule is None), ranked[0])
+    if best.rule is not None:
         raise GeometryError("choose the parting plane", "no candidate plane releases the "
                             f"cast: best {best.axis} = {best.offset_mm:g} mm {best.rule}")
     return replace(r, parting=Parting(best.axis, best.offset_mm))

@@ -9,7 +9,6 @@ opposite sides of the other's line)."""
 from __future__ import annotations
 
 import re
-import time
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -199,12 +198,11 @@ CASES = [
 
 @pytest.mark.parametrize("case", CASES, ids=[c.name for c in CASES])
 def test_bad_section_input_exits_2_with_one_located_line_per_problem_and_writes_nothing(
-        case, tmp_path, capsys, monkeypatch):
+        case, tmp_path, capsys, monkeypatch, no_cad_work):
     monkeypatch.chdir(tmp_path)
     path = tmp_path / "recipe.yaml"
     path.write_text(case.text, encoding="utf-8")
     out = tmp_path / "out"
-    t = time.perf_counter()
     status = main(["build", str(path), "--out", str(out)])
     cap = capsys.readouterr()
     assert status == 2, cap.err
@@ -212,7 +210,6 @@ def test_bad_section_input_exits_2_with_one_located_line_per_problem_and_writes_
     assert_reported(cap.err, str(path), case.expect)
     assert not out.exists()
     assert sorted(p.name for p in tmp_path.iterdir()) == ["recipe.yaml"]
-    assert time.perf_counter() - t < 3.0  # refused before any CAD work
 
 
 def test_every_section_field_has_a_bad_input_case():

@@ -90,3 +90,28 @@ def test_default_parting_plane_follows_an_off_centre_socket_in_a_bar():
                          "b.yaml", "b")
     # The bar's straight sides span z in [-5, 5] (7 - edge radius 2): z = 1.5 is inside.
     assert r.parting.axis == "z" and r.parting.offset_mm == pytest.approx(1.5)
+
+
+# ---- parting: auto -----------------------------------------------------------------------
+def test_auto_parting_with_no_plane_keeping_the_rules_is_refused_before_the_kernel():
+    # flange 10 leaves a key at most 6.4 mm wide (as worked out above) on every candidate
+    # plane, the block being the same along both cross axes' flanges: no plane keeps the
+    # rules, so validation says so instead of the kernel failing to choose.
+    got = problems("parting: {axis: auto}\nmold: {flange_mm: 10, key_diameter_mm: 7.8}\n")
+    assert "auto finds no candidate plane that keeps the rules" in got["parting.axis"]
+    assert "at most 6.4 mm" in got["mold.key_diameter_mm"]
+
+
+def test_auto_parting_with_a_plane_keeping_the_rules_passes():
+    assert problems("parting: {axis: auto}\n") == {}
+
+
+def test_a_locked_core_print_is_left_to_the_review_when_a_plane_keeps_the_rules():
+    from soft_molds.plan import PlaneScore
+    from soft_molds.plan.parting import choose
+
+    r = recipe_from_text(BASE + "parting: {axis: auto}\n", "rules.yaml")
+    broken = PlaneScore("z", 3.0, 0.0, 0.0, 5.0, rule="leaves too little wall")
+    locked = PlaneScore("y", 0.0, 2.0, 12.5, 4.0)  # keeps the rules, locks the core print
+    chosen = choose(r, [broken, locked])
+    assert (chosen.parting.axis, chosen.parting.offset_mm) == ("y", 0.0)
