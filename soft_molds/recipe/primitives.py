@@ -132,6 +132,12 @@ class RoundedRod:
 #: Lengths below this are float noise in a profile (mm): a segment that short between two
 #: roundings is left out, and two roundings may meet on an edge within it.
 PROFILE_EPS_MM = 1e-9
+#: A rounding that would stand off its corner by less than this is left out (mm): at a
+#: point on, or nearly on, the straight line through its neighbours the rounding arc
+#: degenerates (the kernel finds no arc through three collinear points, and the closed-form
+#: volume of an arc turning by a few arc seconds loses its digits), and a thousandth of a
+#: millimetre is far below what a printer reproduces.
+PROFILE_FLAT_MM = 1e-3
 
 
 @dataclass(frozen=True)
@@ -174,6 +180,16 @@ def corner_tangent_mm(prev: np.ndarray, at: np.ndarray, nxt: np.ndarray, radius:
     return radius * float(np.tan(turn / 2.0))
 
 
+def _rounding_standoff_mm(prev: np.ndarray, at: np.ndarray, nxt: np.ndarray,
+                          radius: float) -> float:
+    """How far a rounding of ``radius`` passes from the corner ``at`` (mm): the corner lies
+    radius / cos(turn / 2) from the arc's centre, the arc radius from it."""
+    a, b = at - prev, nxt - at
+    a, b = a / np.linalg.norm(a), b / np.linalg.norm(b)
+    half_cos = float(np.sqrt(max(0.0, (1.0 + float(a @ b)) / 2.0)))  # cos(turn / 2)
+    return radius * (1.0 / half_cos - 1.0) if half_cos > 0.0 else float("inf")
+
+
 def profile_vertices(points: tuple[tuple[float, float], ...]) -> np.ndarray:
     """The closed profile's corners, clockwise in (x, rho): the axis point under the near
     face, the points, and the axis point under the far end (left out when the last point
@@ -197,7 +213,7 @@ def profile_pieces(points: tuple[tuple[float, float], ...], rounds: tuple[float,
     for j in range(1, len(v) - 1):
         prev, at, nxt = v[j - 1], v[j], v[j + 1]
         rho = radius[j]
-        if rho <= 0.0:
+        if rho <= 0.0 or _rounding_standoff_mm(prev, at, nxt, rho) < PROFILE_FLAT_MM:
             _line(out, cursor, at)
             cursor = at
             continue

@@ -306,3 +306,20 @@ def test_one_random_profile_builds_to_its_pappus_volume(kernel):
     pts, rr = _random_profiles(1, seed=5)[0]
     solid = k.build_primitive(Revolved(pts, rr), "body")
     assert close(solid.Volume(), pappus(pts, rr)[0], 1e-3)
+
+
+@pytest.mark.parametrize("rise", [0.0, 1e-7])
+def test_a_rounded_point_on_a_straight_edge_is_a_plain_point(kernel, rise):
+    # The kernel finds no arc through three collinear points ("GC_MakeArcOfCircle: no
+    # result"); the rounding of a corner that turns by nothing (or by 1.3e-8 rad) would
+    # pass within 1e-3 mm of it, so the point is kept sharp and the solid is the one
+    # without it: a cylinder with rounded rims, by Pappus with spandrels.
+    from soft_molds.recipe.primitives import PROFILE_FLAT_MM, Revolved, _rounding_standoff_mm
+
+    k, _ = kernel
+    points = ((0.0, 10.0), (15.0, 10.0 + rise), (30.0, 10.0))
+    middle = np.array(points)
+    assert _rounding_standoff_mm(middle[0], middle[1], middle[2], 1.0) < PROFILE_FLAT_MM
+    solid = k.build_primitive(Revolved(points, (1.0, 1.0, 1.0)), "body")
+    want = pappus(((0.0, 10.0), (30.0, 10.0)), (1.0, 1.0))[0]
+    assert close(solid.Volume(), want, 1e-6)
