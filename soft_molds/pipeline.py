@@ -15,7 +15,7 @@ from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from dataclasses import replace
 
-from .analysis.integrity import check_mesh, require_ok
+from .analysis.integrity import check_mesh, require_ok, volume_rel_tol
 from .errors import GeometryError, SoftMoldsError
 from .meshdata import TriMesh
 from .moldset import MoldSet, Part
@@ -101,7 +101,7 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
             mesh = cast_mesh if spec.role is Role.CAST else tessellate(solid, chord, angle,
                                                                        spec.name)
             vol = cs.volumes_mm3.get(spec.name) or float(solid.Volume())
-            report = check_mesh(mesh, spec.name, vol)
+            report = check_mesh(mesh, spec.name, vol, rel_tol=volume_rel_tol(angle))
         require_ok(report, label)
         parts.append(Part(spec.name, str(spec.role), solid, mesh, vol, spec.pull_dir, report))
     say("manufacturability checks")
