@@ -46,7 +46,8 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     Raises :class:`RecipeError` when the recipe breaks a rule of the mold (nothing is built),
     :class:`GeometryError` naming the variant and step when the kernel fails, and
     :class:`MeshIntegrityError` when a part's mesh is not a closed, consistent volume within
-    0.5 % of its BRep volume.
+    ``analysis.integrity.volume_rel_tol(mesh.angle_deg)`` of its BRep volume (0.5 % or
+    more).
     """
     from .analysis.casting import plan_casting
     from .analysis.context import CheckContext
