@@ -133,11 +133,12 @@ class RoundedRod:
 #: roundings is left out, and two roundings may meet on an edge within it.
 PROFILE_EPS_MM = 1e-9
 #: A rounding that would stand off its corner by less than this is left out (mm): at a
-#: point on, or nearly on, the straight line through its neighbours the rounding arc
-#: degenerates (the kernel finds no arc through three collinear points, and the closed-form
-#: volume of an arc turning by a few arc seconds loses its digits), and a thousandth of a
-#: millimetre is far below what a printer reproduces.
-PROFILE_FLAT_MM = 1e-3
+#: point on, or all but on, the straight line through its neighbours the rounding arc
+#: rises that little over its chord (its rise is about its standoff), and the kernel
+#: cannot tell its three points from a line ("GC_MakeArcOfCircle: no result" for
+#: collinear points). Ten times the kernel's confusion distance (1e-7 mm), far below what
+#: a printer reproduces.
+PROFILE_FLAT_MM = 1e-6
 
 
 def least_radius_change_mm(dx_mm: float) -> float:

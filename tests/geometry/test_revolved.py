@@ -312,7 +312,7 @@ def test_one_random_profile_builds_to_its_pappus_volume(kernel):
 def test_a_rounded_point_on_a_straight_edge_is_a_plain_point(kernel, rise):
     # The kernel finds no arc through three collinear points ("GC_MakeArcOfCircle: no
     # result"); the rounding of a corner that turns by nothing (or by 1.3e-8 rad) would
-    # pass within 1e-3 mm of it, so the point is kept sharp and the solid is the one
+    # pass within 1e-6 mm of it, so the point is kept sharp and the solid is the one
     # without it: a cylinder with rounded rims, by Pappus with spandrels.
     from soft_molds.recipe.primitives import PROFILE_FLAT_MM, Revolved, _rounding_standoff_mm
 

@@ -49,7 +49,7 @@ class RevolvedBody:
     neck, ``pleats`` V pleats between the inner and outer radius, and a tip. Neighbouring
     points keep one radius or differ by at least 1e-3 x sqrt(their x distance) mm (the
     kernel turns a slighter cone into a cylinder); a rounding that would pass within
-    0.001 mm of its corner, at a point on a straight edge, is left out."""
+    1e-6 mm of its corner, at a point on a straight edge, is left out."""
 
     FIELDS: ClassVar[tuple[Field, ...]] = (
         points("profile_mm", "points [x, radius] from the inlet face (x = 0) to the far end, "
