@@ -35,6 +35,9 @@ OVERSHOOT_MM = 0.2
 #: Stroke distances closer than this to exact tangency (mm) are refused: two tools that
 #: merely touch make a boolean the kernel may get wrong.
 _TANGENT_MM = 1e-4
+#: Most a stroke is widened to make touching pieces overlap (mm): a hundredth of a stroke
+#: of the smallest allowed width, invisible in print.
+_WIDEN_MAX_MM = 0.005
 
 
 def _unit(v: Sequence[float], name: str) -> np.ndarray:
@@ -66,8 +69,10 @@ def _segment_distance(p: np.ndarray, q: np.ndarray, r: np.ndarray, s: np.ndarray
     return min(point_seg(p, r, s), point_seg(q, r, s), point_seg(r, p, q), point_seg(s, p, q))
 
 
-def _stroke_groups(segs: np.ndarray, stroke_mm: float, part: str) -> list[list[int]]:
-    """Segments whose stadiums overlap, grouped into connected pieces (one solid each)."""
+def _stroke_groups(segs: np.ndarray, stroke_mm: float
+                   ) -> tuple[list[list[int]], list[float]]:
+    """Segments whose stadiums overlap, grouped into connected pieces (one solid each), and
+    the distances (mm) of the pairs from different pieces that nearly touch."""
     n = len(segs)
     parent = list(range(n))
 
@@ -92,16 +97,33 @@ def _stroke_groups(segs: np.ndarray, stroke_mm: float, part: str) -> list[list[i
                 near.append((i, j, d))
     # Tangency inside one piece is harmless (every bar is tangent to its joint cylinders);
     # between two pieces it leaves the kernel to decide whether they are one solid or two.
-    for i, j, d in near:
-        if find(i) != find(j):
-            raise GeometryError(
-                "label strokes",
-                f"two strokes touch without overlapping ({d:.6f} mm apart at a "
-                f"{stroke_mm} mm stroke); change the stroke or the height", part)
+    touching = [d for i, j, d in near if find(i) != find(j)]
     groups: dict[int, list[int]] = {}
     for i in range(n):
         groups.setdefault(find(i), []).append(i)
-    return sorted(groups.values(), key=lambda g: (float(segs[g, :, 0].min()), g[0]))
+    return sorted(groups.values(), key=lambda g: (float(segs[g, :, 0].min()), g[0])), touching
+
+
+def settled_stroke(segs: np.ndarray, stroke_mm: float, part: str = "label"
+                   ) -> tuple[float, list[list[int]]]:
+    """The stroke width (mm) the tool is built with, and its connected pieces.
+
+    ``stroke_mm`` itself unless two pieces would touch without overlapping (their strokes'
+    distance within ``_TANGENT_MM`` of the width, e.g. neighbouring glyphs at a 3 mm cap
+    height and a 1 mm stroke: the glyph gap is then exactly one stroke). Then the stroke is
+    widened just enough that each such pair overlaps by at least ``_TANGENT_MM``, repeated
+    until no pair touches; the pieces join into one. The widening is a few tenths of a
+    micrometre, far below what a printer resolves, and never exceeds ``_WIDEN_MAX_MM``."""
+    s = float(stroke_mm)
+    while True:
+        groups, touching = _stroke_groups(segs, s)
+        if not touching:
+            return s, groups
+        s = max(touching) + 2.0 * _TANGENT_MM
+        if s - stroke_mm > _WIDEN_MAX_MM:  # pragma: no cover - needs pathological strokes
+            raise GeometryError(
+                "label strokes", f"strokes touch without overlapping at every width from "
+                f"{stroke_mm} to {s:.4f} mm; change the stroke or the height", part)
 
 
 def label_solid(text: str, origin: Sequence[float], right: Sequence[float],
@@ -142,34 +164,50 @@ def _pieces(text: str, height_mm: float, depth_mm: float, stroke_mm: float,
             part: str) -> tuple[cq.Shape, ...]:
     """The tool's connected pieces in the text frame (x right, y up, z out of the face).
 
-    Glyphs are built once per character and size (:func:`_glyph_pieces`) and moved to
-    their place: a sweep's labels share most of their characters, and a mold set cuts the
-    same text into three parts. Neighbouring glyphs stay apart (the font's gap exceeds
-    the stroke width, checked when the text is grouped)."""
-    if len(text_segments(text, height_mm)) == 0:
+    Pieces are built once per run of characters and size (:func:`_run_pieces`) and moved
+    to their place: a sweep's labels share most of their characters, and a mold set cuts
+    the same text into three parts. A run is one glyph while the font's gap between
+    glyphs (2 grid units, a third of the cap height) exceeds the stroke; a stroke as wide
+    as the gap joins neighbouring glyphs, and glyphs joined by a piece are built as one
+    run, so that no two pieces of the tool overlap or touch."""
+    segs = text_segments(text, height_mm)
+    if len(segs) == 0:
         raise ValueError(f"label {text!r} has no strokes to cut")
-    _stroke_groups(text_segments(text, height_mm), stroke_mm, part)  # refuses touching
+    stroke, groups = settled_stroke(segs, stroke_mm, part)
+    chars = text.upper()
+    owner = np.repeat(np.arange(len(chars)), [len(text_segments(c, height_mm)) for c in chars])
+    runs: list[list[int]] = []  # [first, last] character of each run, in reading order
+    for first, last in sorted((int(owner[g].min()), int(owner[g].max())) for g in groups):
+        if runs and first <= runs[-1][1]:
+            runs[-1][1] = max(runs[-1][1], last)
+        else:
+            runs.append([first, last])
     step = ADVANCE * height_mm / GLYPH_HEIGHT
     out: list[cq.Shape] = []
-    for i, ch in enumerate(text.upper()):
-        for piece in _glyph_pieces(ch, height_mm, depth_mm, stroke_mm, part):
-            out.append(piece.translate(cq.Vector(i * step, 0.0, 0.0)) if i else piece)
+    for first, last in runs:
+        for piece in _run_pieces(chars[first:last + 1], height_mm, depth_mm, stroke, part):
+            out.append(piece.translate(cq.Vector(first * step, 0.0, 0.0)) if first else piece)
     return tuple(out)
 
 
 @functools.lru_cache(maxsize=256)
-def _glyph_pieces(char: str, height_mm: float, depth_mm: float, stroke_mm: float,
-                  part: str) -> tuple[cq.Shape, ...]:
-    """One character's connected pieces at the text origin (empty for a space)."""
-    segs = text_segments(char, height_mm)
+def _run_pieces(chars: str, height_mm: float, depth_mm: float, stroke_mm: float,
+                part: str) -> tuple[cq.Shape, ...]:
+    """The connected pieces of a run of characters placed at the text origin (empty for
+    spaces only); ``stroke_mm`` as settled for the whole text (:func:`settled_stroke`)."""
+    segs = text_segments(chars, height_mm)
     if len(segs) == 0:
         return ()
+    groups, touching = _stroke_groups(segs, stroke_mm)
+    if touching:  # settled_stroke rules this out for the whole text, so for its runs
+        raise GeometryError("label strokes", f"two strokes touch without overlapping "
+                            f"({touching[0]:.6f} mm apart at a {stroke_mm} mm stroke)", part)
 
     half = stroke_mm / 2.0
     length = depth_mm + OVERSHOOT_MM
     pieces: list[cq.Shape] = []
     # Built in the text frame (x right, y up, z out of the face) and placed once at the end.
-    for group in _stroke_groups(segs, stroke_mm, part):
+    for group in groups:
         tools: list[cq.Shape] = []
         joints: dict[tuple[float, float], np.ndarray] = {}
         for (a, b) in segs[group]:

@@ -134,6 +134,22 @@ class RoundedRod:
 #: Lengths below this are float noise in a profile (mm): a segment that short between two
 #: roundings is left out, and two roundings may meet on an edge within it.
 PROFILE_EPS_MM = 1e-9
+#: A rounding that would stand off its corner by less than this is left out (mm): at a
+#: point on, or all but on, the straight line through its neighbours the rounding arc
+#: rises that little over its chord (its rise is about its standoff), and the kernel
+#: cannot tell its three points from a line ("GC_MakeArcOfCircle: no result" for
+#: collinear points). Ten times the kernel's confusion distance (1e-7 mm), far below what
+#: a printer reproduces.
+PROFILE_FLAT_MM = 1e-6
+
+
+def least_radius_change_mm(dx_mm: float) -> float:
+    """Least change of radius (mm) along an edge ``dx_mm`` long that the kernel still
+    turns into a cone. Revolving an edge whose radius changes by less than about
+    4.5e-4 * sqrt(dx) mm (measured with OCP 7.9 for edges 1 to 300 mm long) gives a
+    cylinder instead, and the solid misses the profile's volume by up to 1.5e-4 of it;
+    1e-3 * sqrt(dx) keeps twice that clear. Below it, give both points one radius."""
+    return 1e-3 * float(np.sqrt(dx_mm))
 
 
 @dataclass(frozen=True)
@@ -176,6 +192,16 @@ def corner_tangent_mm(prev: np.ndarray, at: np.ndarray, nxt: np.ndarray, radius:
     return radius * float(np.tan(turn / 2.0))
 
 
+def _rounding_standoff_mm(prev: np.ndarray, at: np.ndarray, nxt: np.ndarray,
+                          radius: float) -> float:
+    """How far a rounding of ``radius`` passes from the corner ``at`` (mm): the corner lies
+    radius / cos(turn / 2) from the arc's centre, the arc radius from it."""
+    a, b = at - prev, nxt - at
+    a, b = a / np.linalg.norm(a), b / np.linalg.norm(b)
+    half_cos = float(np.sqrt(max(0.0, (1.0 + float(a @ b)) / 2.0)))  # cos(turn / 2)
+    return radius * (1.0 / half_cos - 1.0) if half_cos > 0.0 else float("inf")
+
+
 def profile_vertices(points: tuple[tuple[float, float], ...]) -> np.ndarray:
     """The closed profile's corners, clockwise in (x, rho): the axis point under the near
     face, the points, and the axis point under the far end (left out when the last point
@@ -199,7 +225,7 @@ def profile_pieces(points: tuple[tuple[float, float], ...], rounds: tuple[float,
     for j in range(1, len(v) - 1):
         prev, at, nxt = v[j - 1], v[j], v[j + 1]
         rho = radius[j]
-        if rho <= 0.0:
+        if rho <= 0.0 or _rounding_standoff_mm(prev, at, nxt, rho) < PROFILE_FLAT_MM:
             _line(out, cursor, at)
             cursor = at
             continue
@@ -250,6 +276,14 @@ def profile_problems(points: tuple[tuple[float, float], ...], rounds: tuple[floa
             out.append((i, f"does not lie beyond point {i - 1} along x",
                         f"x > {points[i - 1][0]:g} mm: x rises strictly (no overhanging "
                         "profile for now)"))
+    for i in range(1, len(points)) if not out else ():
+        (x0, r0), (x1, r1) = points[i - 1], points[i]
+        least = least_radius_change_mm(x1 - x0)
+        if r0 > 0.0 and r1 > 0.0 and 0.0 < abs(r1 - r0) < least:
+            out.append((i, f"changes the radius of point {i - 1} by only {abs(r1 - r0):.3g} "
+                        f"mm over {x1 - x0:g} mm (so slight a cone comes out a cylinder)",
+                        f"the same radius as point {i - 1} ({r0:g} mm) or one that differs "
+                        f"by at least {least:.3g} mm"))
     if points[-1][1] == 0.0 and rounds[-1] > 0.0:
         out.append((len(points) - 1, "rounds a tip on the axis",
                     "rounding 0 where the profile closes on the axis"))

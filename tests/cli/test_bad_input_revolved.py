@@ -98,6 +98,7 @@ _count = edit(PROFILE, "round_mm: [1, 2, 2, 6]", "round_mm: [1, 2, 2]")
 _neg_round = edit(PROFILE, "round_mm: [1, 2, 2, 6]", "round_mm: [1, -2, 2, 6]")
 _tip = edit(edit(PROFILE, "    - [40, 12]", "    - [40, 0]"), "round_mm: [1, 2, 2, 6]",
             "round_mm: [1, 2, 2, 1]")
+_slight = edit(PROFILE, "    - [40, 12]", "    - [40, 12.001]")
 _both = edit(PROFILE, "  round_mm: [1, 2, 2, 6]", "  round_mm: [1, 2, 2, 6]\n  pleats: 3")
 _neither = edit(PROFILE, "  profile_mm:\n    - [0, 8]\n    - [12, 8]\n    - [20, 12]\n"
                 "    - [40, 12]\n  round_mm: [1, 2, 2, 6]\n", "")
@@ -152,6 +153,12 @@ CASES = [
     Case("round-tip-on-the-axis", _tip, (
         _e("body.profile_mm[3]", _at(_tip, "[40, 0]"), "rounds a tip on the axis",
            "[40.0, 0.0]", "rounding 0 where the profile closes on the axis"),)),
+    # The edge from point 2 to point 3 rises 0.001 mm over 20 mm; the kernel keeps a cone
+    # only from 1e-3 * sqrt(20) = 0.00447 mm on.
+    Case("profile-cone-too-slight", _slight, (
+        _e("body.profile_mm[3]", _at(_slight, "[40, 12.001]"),
+           "changes the radius of point 2 by only 0.001 mm over 20 mm", "[40.0, 12.001]",
+           "the same radius as point 2 (12 mm) or one that differs by at least 0.00447 mm"),)),
     Case("profile-and-pleats", _both, (
         _e("body.pleats", _at(_both, "pleats: 3"), "is given with profile_mm", "3",
            "either profile_mm or the bellows fields"),)),

@@ -14,7 +14,7 @@ from manifold3d import CrossSection, OpType
 
 from soft_molds.analysis.integrity import check_mesh
 from soft_molds.geometry import kernel
-from soft_molds.geometry.labels import OVERSHOOT_MM, deboss, label_solid
+from soft_molds.geometry.labels import OVERSHOOT_MM, deboss, label_solid, settled_stroke
 from soft_molds.geometry.tessellate import tessellate
 from soft_molds.recipe.strokefont import GLYPHS, text_segments, text_width_mm
 
@@ -262,3 +262,51 @@ def test_a_label_over_the_edge_of_the_face_is_refused():
                        H, DEPTH, STROKE, "block")
     with pytest.raises(kernel.GeometryError, match="volume"):
         deboss(block, tool, "block", "label", depth_mm=DEPTH)
+
+
+# ---- the ends of the documented ranges (marking.height_mm 3-20, stroke_mm 0.5-3) -----------
+
+def _tool_and_cut(text: str, height: float, stroke: float):
+    tool = label_solid(text, (0.0, 0.0, 5.0), (1.0, 0.0, 0.0), (0.0, 0.0, 1.0),
+                       height, DEPTH, stroke, "range")
+    width = text_width_mm(text, height)
+    block = kernel.box((-10.0, 0.0, 0.0), (width + 10.0, 20.0, height + 10.0))
+    out, removed = deboss(block, tool, "range", "label", depth_mm=DEPTH)
+    return tool, out, removed
+
+
+def test_glyphs_whose_gap_equals_the_stroke_are_joined_with_a_real_overlap():
+    # At a 3 mm cap height the glyph gap is 2 units = 1 mm (hand arithmetic), exactly the
+    # default stroke: the S's right side (x = 4 units) and the F's stem (x = 6 units) touch.
+    segs = text_segments("SF-A", 3.0)
+    stroke, groups = settled_stroke(segs, 1.0)
+    assert 1.0 < stroke <= 1.0 + 1e-3
+    # S and F become one piece; the dash stays 2.5 units = 1.25 mm from both neighbours.
+    assert len(groups) == 3
+    tool, out, removed = _tool_and_cut("SF-A", 3.0, 1.0)
+    assert tool.isValid() and len(tool.Solids()) == 3
+    # Prism volume = stroke area (manifold3d) x length, at the width actually cut.
+    area = stroke_section("SF-A", 3.0, stroke).area()
+    assert kernel.volume(tool) == pytest.approx(area * (DEPTH + OVERSHOOT_MM), rel=0.005)
+    assert removed == pytest.approx(area * DEPTH, rel=0.005)
+    assert out.isValid() and len(out.Solids()) == 1
+
+
+@pytest.mark.parametrize("text,height,stroke", [
+    ("SF-A", 5.0, 2.0),   # stroke above the 5/3 mm glyph gap: neighbours overlap
+    ("SF-A", 6.0, 2.0),   # stroke exactly the 2 mm glyph gap: neighbours touch
+    ("SF", 3.0, 3.0),     # widest stroke at the lowest height: the text is one blob
+    ("SF-A", 20.0, 0.5),  # tallest, thinnest: every glyph apart
+])
+def test_every_stroke_in_range_cuts_one_part_removing_the_union_of_strokes(text, height,
+                                                                          stroke):
+    tool, out, removed = _tool_and_cut(text, height, stroke)
+    used, groups = settled_stroke(text_segments(text, height), stroke)
+    section = stroke_section(text, height, used)
+    # Overlapping glyphs make one piece each: as many solids as manifold3d's union has
+    # connected pieces, and the volume of the union, not the sum of the glyphs.
+    assert len(tool.Solids()) == len(groups) == len(section.decompose())
+    assert kernel.volume(tool) == pytest.approx(section.area() * (DEPTH + OVERSHOOT_MM),
+                                                rel=0.005)
+    assert out.isValid() and len(out.Solids()) == 1
+    assert removed == pytest.approx(section.area() * DEPTH, rel=0.005)

@@ -86,3 +86,43 @@ def test_labels_stay_clear_of_the_cavity_and_the_meshes_stay_closed(pair):
         mesh = m3.Mesh(vert_properties=np.asarray(p.mesh.vertices, dtype=np.float32),
                        tri_verts=np.asarray(p.mesh.faces, dtype=np.uint32))
         assert m3.Manifold(mesh).status() == m3.Error.NoError  # independent closure check
+
+
+def _union_area(text: str, height: float, stroke: float) -> float:
+    """Area of the 2-D union of the strokes at ``stroke`` width (manifold3d, mm2)."""
+    segs = text_segments(text, height)
+    parts = []
+    for a, b in segs:
+        d = b - a
+        parts.append(m3.CrossSection.square((float(np.hypot(d[0], d[1])), stroke))
+                     .translate((0.0, -stroke / 2))
+                     .rotate(float(np.degrees(np.arctan2(d[1], d[0]))))
+                     .translate((float(a[0]), float(a[1]))))
+    for p in {(round(float(x), 9), round(float(y), 9)) for x, y in segs.reshape(-1, 2)}:
+        parts.append(m3.CrossSection.circle(stroke / 2, 512).translate(p))
+    return m3.CrossSection.batch_boolean(parts, m3.OpType.Add).area()
+
+
+@pytest.mark.parametrize("height,stroke", [
+    (3.0, 1.0),   # the lowest height: the glyph gap (1 mm) equals the stroke
+    (5.0, 1.69),  # a stroke just over the 5/3 mm glyph gap: neighbours overlap
+    (5.0, 3.0),   # the widest stroke
+])
+def test_the_core_takes_labels_at_the_ends_of_the_marking_ranges(height, stroke):
+    from soft_molds.geometry import mold
+    from soft_molds.plan import plan_mold
+
+    text = edit(FINGER_TEXT, "checks:\n",
+                f"marking:\n  height_mm: {height}\n  stroke_mm: {stroke}\nchecks:\n")
+    r = recipe_from_text(text, "finger-test.yaml", "finger-test")
+    step = plan_mold(r).step
+    bare = mold.build_cast(r, step).core
+    core, lab = mold.label_core(r, step, bare)
+    assert lab is not None and lab.height_mm == pytest.approx(height, abs=1e-9)
+    assert core.isValid() and len(core.Solids()) == 1
+    lo, hi = mold.core_tag(r, step.core_supports[0], step.settled_parting)
+    tab = float(np.prod(np.subtract(hi, lo)))
+    used, _ = labels.settled_stroke(text_segments(lab.text, lab.height_mm), stroke)
+    # bare core + tab (a box, closed form) - glyph prism (union area x depth, manifold3d)
+    want = kernel.volume(bare) + tab - _union_area(lab.text, lab.height_mm, used) * 0.6
+    assert kernel.volume(core) == pytest.approx(want, rel=1e-3)

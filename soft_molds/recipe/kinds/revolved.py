@@ -46,7 +46,10 @@ class RevolvedBody:
     axis without undercut); a flat face closes the far end unless its radius is 0 (a tip on
     the axis). ``round_mm`` rounds every point's corner (the inlet and far rims included),
     or each by its own radius. Or leave out ``profile_mm`` and give the bellows fields: a
-    neck, ``pleats`` V pleats between the inner and outer radius, and a tip."""
+    neck, ``pleats`` V pleats between the inner and outer radius, and a tip. Neighbouring
+    points keep one radius or differ by at least 1e-3 x sqrt(their x distance) mm (the
+    kernel turns a slighter cone into a cylinder); a rounding that would pass within
+    1e-6 mm of its corner, at a point on a straight edge, is left out."""
 
     FIELDS: ClassVar[tuple[Field, ...]] = (
         points("profile_mm", "points [x, radius] from the inlet face (x = 0) to the far end, "
