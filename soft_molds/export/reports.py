@@ -26,7 +26,9 @@ from .sheet import SheetData, SheetVariant, manifest_row, render_sheet, unbuilt_
 class ReportedVariant(Protocol):
     """One variant as the report shows it. ``status``: built, up to date, refused or
     failed; ``verdict`` None when nothing was built; ``silicone_cm3`` and ``mix_g``
-    (grams weighed out in all) None unless built or up to date; ``ok``: built or up to
+    (grams weighed out in all) None unless built or up to date; ``bend_deg`` and
+    ``extension_mm``: the predicted tip angle (a bender) or extension (an extender) at the
+    working pressure, None otherwise; ``ok``: built or up to
     date; ``out_dir``: its folder (absolute)."""
 
     @property
@@ -52,6 +54,10 @@ class ReportedVariant(Protocol):
     @property
     def mix_g(self) -> float | None: ...
     @property
+    def bend_deg(self) -> float | None: ...
+    @property
+    def extension_mm(self) -> float | None: ...
+    @property
     def changed(self) -> Mapping[str, object]: ...
     @property
     def out_dir(self) -> str: ...
@@ -60,7 +66,8 @@ class ReportedVariant(Protocol):
 
 
 SUMMARY_FIELDS = ("recipe", "label", "family", "status", "verdict", "errors", "warnings",
-                  "silicone_cm3", "mix_g", "seconds", "changed", "reason", "out_dir")
+                  "silicone_cm3", "mix_g", "bend_deg", "extension_mm", "seconds", "changed",
+                  "reason", "out_dir")
 
 
 def summary_row(v: ReportedVariant) -> dict[str, object]:
@@ -68,6 +75,7 @@ def summary_row(v: ReportedVariant) -> dict[str, object]:
     return {"recipe": v.recipe, "label": v.label, "family": v.family, "status": str(v.status),
             "verdict": "" if v.verdict is None else str(v.verdict), "errors": v.errors,
             "warnings": v.warnings, "silicone_cm3": v.silicone_cm3, "mix_g": v.mix_g,
+            "bend_deg": v.bend_deg, "extension_mm": v.extension_mm,
             "seconds": round(v.seconds, 3), "changed": dict(v.changed), "reason": v.reason,
             "out_dir": v.out_dir}
 

@@ -1,0 +1,181 @@
+"""The motion model against beam theory and the neo-Hookean law, on meshes built with an
+independent library (manifold3d), so every section has a closed form.
+
+Reference: Euler-Bernoulli beam theory, curvature k = M / (E I) with M = P A_p e (the
+pressure's resultant on the void's cut, at lever arm e from the neutral axis: the centroid
+of the silicone), and the parallel-axis theorem for the section's I (any strength-of-
+materials text, e.g. Gere & Timoshenko, Mechanics of Materials); the bar in tension
+N = E A (l - 1); the incompressible neo-Hookean uniaxial nominal stress
+(E/3)(l - 1/l^2) (Treloar, The Physics of Rubber Elasticity, 1975).
+"""
+
+from __future__ import annotations
+
+import math
+
+import manifold3d as m3
+import numpy as np
+import pytest
+
+from soft_molds.analysis.motion import MotionKind, StopReason, motion_curve, profile_of
+from soft_molds.analysis.motion.beam import nominal_stress, tangent_modulus
+from soft_molds.analysis.motion.registry import registered_models
+from tests.meshes import box, from_manifold
+
+E_MPA = 0.413          # Shore A10 by Gent's relation (casting-facts.md worked values)
+B, H = 16.0, 14.0      # bar width (y) and height (z), mm
+LENGTH = 60.0
+
+
+def _void_mask(mesh):
+    """Facets strictly inside the bar's outer box: the void's walls."""
+    c = mesh.triangles().mean(axis=1)
+    tol = 1e-3
+    return ((c[:, 0] > tol) & (c[:, 0] < LENGTH - tol) & (np.abs(c[:, 1]) < B / 2 - tol)
+            & (np.abs(c[:, 2]) < H / 2 - tol))
+
+
+# --- a bar with a row of rectangular chambers ---------------------------------------------
+
+CH_B, CH_H, CH_Z = 12.0, 8.0, 1.0     # chamber width, height, raised centre (mm)
+PITCH, DEPTH, COUNT, FIRST = 6.0, 4.0, 6, 12.0
+
+
+@pytest.fixture(scope="module")
+def chambered():
+    body = box((0, -B / 2, -H / 2), (LENGTH, B / 2, H / 2))
+    for i in range(COUNT):
+        xa = FIRST + i * PITCH
+        body = body - box((xa, -CH_B / 2, CH_Z - CH_H / 2), (xa + DEPTH, CH_B / 2, CH_Z + CH_H / 2))
+    mesh = from_manifold(body)
+    return profile_of(mesh, _void_mask(mesh), FIRST, FIRST + (COUNT - 1) * PITCH + DEPTH,
+                      ["chambers"])
+
+
+def _chamber_section():
+    """Closed form of the section through a chamber: a B x H rectangle less a b x h one
+    raised by c (parallel-axis theorem). Returns (A_silicone, I, A_p, e)."""
+    a_s = B * H - CH_B * CH_H
+    zc = -CH_Z * CH_B * CH_H / a_s                       # the centroid drops below the middle
+    i = (B * H ** 3 / 12 + B * H * zc ** 2
+         - (CH_B * CH_H ** 3 / 12 + CH_B * CH_H * (CH_Z - zc) ** 2))
+    return a_s, i, CH_B * CH_H, CH_Z - zc
+
+
+def test_chamber_section_figures_are_the_closed_form(chambered):
+    a_s, i, a_p, e = _chamber_section()
+    cur = motion_curve(chambered, E_MPA, 1.0, None)
+    assert cur is not None and cur.kind is MotionKind.BENDING
+    got = cur.inputs
+    assert got.silicone_area_mm2 == pytest.approx(a_s, rel=1e-9)
+    assert got.second_moment_mm4 == pytest.approx(i, rel=1e-9)
+    assert got.pressure_area_mm2 == pytest.approx(a_p, rel=1e-9)
+    assert got.lever_arm_mm == pytest.approx(e, rel=1e-9)
+    assert got.bend_dir == pytest.approx((0.0, 1.0), abs=1e-9)
+
+
+def test_row_of_chambers_small_pressure_curvature_is_beam_theory(chambered):
+    # Beam theory (Euler-Bernoulli): k = P A_p e / (E I) in each chamber section, zero in
+    # the solid walls between (no void there), so theta = k * COUNT * DEPTH.
+    _, i, a_p, e = _chamber_section()
+    p_kpa = 0.01
+    k = p_kpa / 1000.0 * a_p * e / (E_MPA * i)
+    cur = motion_curve(chambered, E_MPA, p_kpa, None, steps=1)
+    theta = math.radians(cur.points[-1].angle_deg)
+    assert theta / (COUNT * DEPTH) == pytest.approx(k, rel=0.02)
+    assert math.radians(cur.linear_deg_per_kpa) * p_kpa == pytest.approx(theta, rel=0.02)
+
+
+def test_row_of_chambers_curve_rises_and_stops_at_the_balloon_limit(chambered):
+    cur = motion_curve(chambered, E_MPA, 45.0, 30.0)
+    ang = np.array([p.angle_deg for p in cur.points])
+    ext = np.array([p.extension_mm for p in cur.points])
+    lam = np.array([p.max_stretch for p in cur.points])
+    assert (np.diff(ang) > 0).all() and (np.diff(ext) > 0).all() and (np.diff(lam) > 0).all()
+    assert cur.points[-1].pressure_kpa == 45.0 and cur.valid_to_kpa == 45.0
+    assert cur.stop is StopReason.BALLOON_LIMIT
+    assert cur.at_working is not None and cur.at_working.pressure_kpa == 30.0
+    # Working pressure beyond the limit: no figure at it.
+    beyond = motion_curve(chambered, E_MPA, 20.0, 30.0)
+    assert beyond.at_working is None and beyond.valid_to_kpa == 20.0
+
+
+def test_row_of_chambers_stops_where_a_fibre_would_break(chambered):
+    cur = motion_curve(chambered, E_MPA, 45.0, 30.0, break_stretch=1.05)
+    assert cur.stop is StopReason.BREAK_STRETCH
+    assert max(p.max_stretch for p in cur.points) <= 1.05
+    assert cur.valid_to_kpa < 45.0
+
+
+def test_large_pressure_departs_from_the_linear_beam(chambered):
+    # The neo-Hookean fibres soften in tension (slope (E/3)(1 + 2/l^3) < E for l > 1) and
+    # stiffen in compression, so at large stretch the angle leaves the straight line.
+    cur = motion_curve(chambered, E_MPA, 80.0, None, steps=8)
+    last = cur.points[-1]
+    linear = cur.linear_deg_per_kpa * last.pressure_kpa
+    assert last.max_stretch > 1.2
+    assert abs(last.angle_deg / linear - 1.0) > 0.02
+
+
+# --- an eccentric round bore --------------------------------------------------------------
+
+R, ZB, X0, X1 = 3.0, 2.0, 8.0, 52.0
+
+
+@pytest.fixture(scope="module")
+def bored():
+    bore = (m3.Manifold.cylinder(X1 - X0, R, R, 512).rotate((0.0, 90.0, 0.0))
+            .translate((X0, 0.0, ZB)))
+    mesh = from_manifold(box((0, -B / 2, -H / 2), (LENGTH, B / 2, H / 2)) - bore)
+    return mesh
+
+
+def _bore_section(r_eff):
+    a_p = math.pi * r_eff ** 2
+    a_s = B * H - a_p
+    zc = -ZB * a_p / a_s
+    i = B * H ** 3 / 12 + B * H * zc ** 2 - (a_p * r_eff ** 2 / 4 + a_p * (ZB - zc) ** 2)
+    return a_s, i, a_p, ZB - zc
+
+
+def test_eccentric_bore_small_pressure_curvature_is_beam_theory(bored):
+    prof = profile_of(bored, _void_mask(bored), X0 + 0.5, X1 - 0.5, ["bore"])
+    # A 512-gon's area is pi r^2 (1 - 2.5e-5): the circle's closed form to far below 2 %.
+    _, i, a_p, e = _bore_section(R)
+    p_kpa = 0.01
+    k = p_kpa / 1000.0 * a_p * e / (E_MPA * i)
+    cur = motion_curve(prof, E_MPA, p_kpa, None, steps=1)
+    assert cur.kind is MotionKind.BENDING and cur.model == "beam-bending"
+    theta = math.radians(cur.points[-1].angle_deg)
+    assert theta / (X1 - X0 - 1.0) == pytest.approx(k, rel=0.02)
+
+
+def test_centred_bore_extends_as_a_bar_in_tension():
+    bore = (m3.Manifold.cylinder(X1 - X0, R, R, 512).rotate((0.0, 90.0, 0.0))
+            .translate((X0, 0.0, 0.0)))
+    mesh = from_manifold(box((0, -B / 2, -H / 2), (LENGTH, B / 2, H / 2)) - bore)
+    prof = profile_of(mesh, _void_mask(mesh), X0 + 0.5, X1 - 0.5, ["bore"])
+    cur = motion_curve(prof, E_MPA, 0.01, None, steps=1)
+    assert cur.kind is MotionKind.EXTENDING and cur.model == "axial-extending"
+    # Bar in tension: l - 1 = N / (E A) with N = P A_p.
+    a_p = math.pi * R ** 2
+    expect = 0.01 / 1000.0 * a_p / (E_MPA * (B * H - a_p)) * (X1 - X0 - 1.0)
+    assert cur.points[-1].extension_mm == pytest.approx(expect, rel=0.02)
+    assert cur.points[-1].angle_deg == 0.0
+
+
+# --- the fibre law --------------------------------------------------------------------------
+
+def test_neo_hookean_fibre_is_hookes_law_near_unit_stretch():
+    # Treloar: sigma = (E/3)(l - l^-2); sigma(1) = 0, slope E at l = 1.
+    assert float(nominal_stress(1.0, E_MPA)) == 0.0
+    assert float(tangent_modulus(1.0, E_MPA)) == pytest.approx(E_MPA, rel=1e-12)
+    for d in (1e-3, -1e-3):
+        assert float(nominal_stress(1.0 + d, E_MPA)) / (E_MPA * d) == pytest.approx(1.0, abs=2e-3)
+    # ... and not at large stretch: sigma(2) = (E/3)(2 - 1/4) = 0.5833 E.
+    assert float(nominal_stress(2.0, E_MPA)) == pytest.approx(E_MPA * 1.75 / 3.0, rel=1e-12)
+
+
+def test_models_are_registered_bender_first():
+    names = [m.name for m in registered_models()]
+    assert names == ["beam-bending", "axial-extending"]
