@@ -20,7 +20,14 @@ from ..version import __version__
 from .card import card_files
 from .files import json_bytes, write_atomic
 from .manifest import Manifest, ManifestError, read_manifest
-from .sheet import SheetData, SheetVariant, manifest_row, render_sheet, unbuilt_row
+from .sheet import (
+    SheetData,
+    SheetVariant,
+    manifest_row,
+    motion_curve,
+    render_sheet,
+    unbuilt_row,
+)
 
 
 class ReportedVariant(Protocol):
@@ -128,7 +135,10 @@ def _family_files(folder: Path, recipe: str, fam: str, members: Sequence[Reporte
             mans.append(man)
     title = f"{recipe}" + (f" family {fam}" if fam else "")
     written = []
-    png, svg = render_sheet(SheetData(title, f"soft-molds {__version__}", tuple(rows)))
+    curves = tuple(c for c in (motion_curve(m) for m in mans) if c is not None)
+    works = {m.motion.working_pressure_kpa for m in mans if m.motion is not None}
+    png, svg = render_sheet(SheetData(title, f"soft-molds {__version__}", tuple(rows), curves,
+                                      works.pop() if len(works) == 1 else None))
     for ext, data in (("png", png), ("svg", svg)):
         p = folder / f"family-sheet{suffix}.{ext}"
         write_atomic(p, data)
