@@ -179,3 +179,49 @@ def test_neo_hookean_fibre_is_hookes_law_near_unit_stretch():
 def test_models_are_registered_bender_first():
     names = [m.name for m in registered_models()]
     assert names == ["beam-bending", "axial-extending"]
+
+
+# --- on a built cast ----------------------------------------------------------------------
+
+def _rounded_rect(w: float, h: float, r: float) -> tuple[float, float]:
+    """Area and second moment about the horizontal centre line of a w x h rectangle with
+    corners rounded at r: the rectangle less four r x r corner squares plus four quarter
+    discs (quarter disc: area pi r^2/4, centroid 4r/(3 pi) from its corner's centre,
+    own second moment (pi/16 - 4/(9 pi)) r^4; parallel-axis theorem)."""
+    area = w * h - (4.0 - math.pi) * r * r
+    square = r ** 4 / 12.0 + r * r * (h / 2 - r / 2) ** 2
+    quarter = ((math.pi / 16 - 4 / (9 * math.pi)) * r ** 4
+               + math.pi * r * r / 4 * (h / 2 - r + 4 * r / (3 * math.pi)) ** 2)
+    return area, w * h ** 3 / 12.0 - 4 * square + 4 * quarter
+
+
+def test_the_finger_cast_section_through_a_chamber_is_the_closed_form(finger):
+    from soft_molds.analysis.motion import void_facet_mask
+
+    r = finger.recipe
+    cast = finger.part("cast").mesh
+    # Chamber 4 of 7 (pitch 8, depth 5, row centred on the 70 mm bar) spans x 32.5..37.5.
+    prof = profile_of(cast, void_facet_mask(r, cast), 34.9, 35.1, ["chambers"])
+    (sec,) = prof.sections
+    a_out, i_out = _rounded_rect(16.0, 14.0, 2.0)   # the bar: 16 x 14, edges r 2
+    a_in, i_in = _rounded_rect(12.0, 8.0, 1.0)      # the chamber: 12 x 8, corners r 1, z 1
+    a_s = a_out - a_in
+    zc = -1.0 * a_in / a_s
+    i = i_out + a_out * zc ** 2 - (i_in + a_in * (1.0 - zc) ** 2)
+    # The mesh's chords cut the arcs short (chord tolerance of the recipe's mesh): 0.5 %.
+    assert sec.void_area_mm2 == pytest.approx(a_in, rel=5e-3)
+    assert sec.silicone_area_mm2 == pytest.approx(a_s, rel=5e-3)
+    assert sec.centroid_mm[1] == pytest.approx(zc, abs=0.01)
+    assert sec.void_centroid_mm[1] == pytest.approx(1.0, abs=0.01)
+    assert sec.second_moment_mm4((0.0, 1.0)) == pytest.approx(i, rel=5e-3)
+
+
+def test_the_built_finger_bends_away_from_its_chambers(finger):
+    mo = finger.motion
+    assert mo is not None and mo.model == "beam-bending"
+    assert mo.inputs.bend_dir == pytest.approx((0.0, 1.0), abs=1e-4)
+    assert mo.stop is StopReason.BALLOON_LIMIT
+    assert mo.valid_to_kpa == pytest.approx(min(w.limit_kpa for w in finger.pressures
+                                                 if w.limit_kpa is not None))
+    assert mo.at_working is not None and mo.at_working.angle_deg > 0.0
+    assert mo.inputs.active_from_mm == finger.recipe.inlet.socket_depth_mm
