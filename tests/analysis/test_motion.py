@@ -225,3 +225,20 @@ def test_the_built_finger_bends_away_from_its_chambers(finger):
                                                  if w.limit_kpa is not None))
     assert mo.at_working is not None and mo.at_working.angle_deg > 0.0
     assert mo.inputs.active_from_mm == finger.recipe.inlet.socket_depth_mm
+
+
+def test_a_section_with_no_equilibrium_ends_the_curve_there(chambered, monkeypatch):
+    from soft_molds.analysis.motion import bending
+
+    real = bending.solve_sections
+
+    def gives_up_above_20_kpa(s, b, ds, n, m, e_mpa, **kw):
+        if n.max() > 21.0 / 1000.0 * CH_B * CH_H:
+            raise ArithmeticError("no equilibrium")
+        return real(s, b, ds, n, m, e_mpa, **kw)
+
+    monkeypatch.setattr(bending, "solve_sections", gives_up_above_20_kpa)
+    cur = motion_curve(chambered, E_MPA, 40.0, 30.0, steps=8)
+    assert cur.stop is StopReason.NO_EQUILIBRIUM
+    assert [p.pressure_kpa for p in cur.points] == [0.0, 5.0, 10.0, 15.0, 20.0]
+    assert cur.valid_to_kpa == 20.0 and cur.at_working is None

@@ -99,8 +99,10 @@ def motion_curve(prof: Profile, e_mpa: float, limit_kpa: float | None,
     if working_kpa is not None and 0.0 < working_kpa < end:
         ps = np.unique(np.append(ps, working_kpa))
     sol = model.solve(prof, e_mpa, ps)
-    keep = len(ps)
-    if break_stretch is not None and (sol.max_stretch > break_stretch).any():
+    keep = len(sol.angle_deg)
+    if keep < len(ps):
+        stop = StopReason.NO_EQUILIBRIUM
+    if break_stretch is not None and (sol.max_stretch[:keep] > break_stretch).any():
         keep = int(np.argmax(sol.max_stretch > break_stretch))
         stop = StopReason.BREAK_STRETCH
     pts = tuple(MotionPoint(float(p), float(a), float(x), float(m)) for p, a, x, m in

@@ -69,7 +69,9 @@ class BeamBending:
 def solve_beam(profile: Profile, e_mpa: float, pressures_kpa: np.ndarray, bending: bool
                ) -> Solved:
     """Angle, extension and largest stretch per pressure (see the module docstring);
-    ``bending`` False holds every curvature at zero (a bar in pure tension)."""
+    ``bending`` False holds every curvature at zero (a bar in pure tension). Should a
+    section's equilibrium not be found at some pressure, the arrays stop at the pressure
+    before (the caller marks the curve there)."""
     d, _ = profile.load_direction()
     secs = profile.sections
     s, b, ds = profile.strips(d, STRIPS)
@@ -82,7 +84,10 @@ def solve_beam(profile: Profile, e_mpa: float, pressures_kpa: np.ndarray, bendin
     ang, ext, top = [], [], []
     for p in pressures_kpa:
         n = p / 1000.0 * area_p                              # N (MPa * mm2)
-        x = solve_sections(s, b, ds, n, n * lever, e_mpa, start=x, bending=bending)
+        try:
+            x = solve_sections(s, b, ds, n, n * lever, e_mpa, start=x, bending=bending)
+        except ArithmeticError:
+            break
         lam = 1.0 + x[:, :1] + x[:, 1:] * s
         ang.append(float(np.degrees(x[:, 1].sum() * profile.dx_mm)))
         ext.append(float(x[:, 0].sum() * profile.dx_mm))

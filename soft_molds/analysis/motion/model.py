@@ -22,6 +22,7 @@ class StopReason(StrEnum):
     BALLOON_LIMIT = "balloon limit"     # the lowest limit pressure of the pressure check
     BREAK_STRETCH = "elongation at break"  # a fibre reached the grade's elongation at break
     RANGE_END = "range end"             # no limit known: twice the working pressure
+    NO_EQUILIBRIUM = "no beam equilibrium"  # a section's equilibrium could not be solved
 
 
 @dataclass(frozen=True)
