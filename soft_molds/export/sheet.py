@@ -170,7 +170,7 @@ def manifest_figures(man: Manifest) -> tuple[Pair, ...]:
     if mo is not None and mo.working_pressure_kpa is not None:
         w = mo.at_working
         verb = "bends" if mo.kind == "bending" else "extends"
-        name = f"{verb} at {mo.working_pressure_kpa:g} kPa"
+        name = f"{verb} at {mo.working_pressure_kpa:.0f} kPa"
         figs.append((name, f"beyond the {mo.stop}" if w is None else
                      f"about {w.angle_deg:.0f} deg" if mo.kind == "bending" else
                      f"about {w.extension_mm:.1f} mm"))

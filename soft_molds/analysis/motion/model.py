@@ -90,5 +90,5 @@ class MotionCurve:
                 return "no working pressure"
             return f"beyond the {self.stop} ({self.valid_to_kpa:.0f} kPa)"
         if self.kind is MotionKind.BENDING:
-            return f"bends {w.angle_deg:.0f} deg at {w.pressure_kpa:g} kPa"
-        return f"extends {w.extension_mm:.1f} mm at {w.pressure_kpa:g} kPa"
+            return f"bends {w.angle_deg:.0f} deg at {w.pressure_kpa:.0f} kPa"
+        return f"extends {w.extension_mm:.1f} mm at {w.pressure_kpa:.0f} kPa"
