@@ -232,13 +232,71 @@ def test_a_section_with_no_equilibrium_ends_the_curve_there(chambered, monkeypat
 
     real = bending.solve_sections
 
-    def gives_up_above_20_kpa(s, b, ds, n, m, e_mpa, **kw):
+    def gives_up_above_20_kpa(s, w, n, m, e_mpa, **kw):
         if n.max() > 21.0 / 1000.0 * CH_B * CH_H:
             raise ArithmeticError("no equilibrium")
-        return real(s, b, ds, n, m, e_mpa, **kw)
+        return real(s, w, n, m, e_mpa, **kw)
 
     monkeypatch.setattr(bending, "solve_sections", gives_up_above_20_kpa)
     cur = motion_curve(chambered, E_MPA, 40.0, 30.0, steps=8)
     assert cur.stop is StopReason.NO_EQUILIBRIUM
     assert [p.pressure_kpa for p in cur.points] == [0.0, 5.0, 10.0, 15.0, 20.0]
     assert cur.valid_to_kpa == 20.0 and cur.at_working is None
+
+
+# --- large stretch: the section's equilibrium in closed form ------------------------------
+
+def _rect_resultants(a: float, k: float, w: float, s1: float, s2: float) -> tuple[float, float]:
+    """Force and moment (about s = 0) of neo-Hookean fibres (E/3)(l - 1/l^2) with
+    l = 1 + a + k s over a rectangle of width w from s1 to s2, integrated exactly:
+    with q = 1 + a and ds = dl/k, the integrals of (l - l^-2) and (l - l^-2)(l - q)/k are
+    l^2/2 + 1/l and l^3/3 - q l^2/2 - ln l - q/l (elementary antiderivatives)."""
+    q = 1.0 + a
+    l1, l2 = q + k * s1, q + k * s2
+
+    def f(lam):
+        return lam * lam / 2 + 1 / lam
+
+    def g(lam):
+        return lam ** 3 / 3 - q * lam * lam / 2 - math.log(lam) - q / lam
+
+    c = E_MPA / 3.0 * w
+    return c * (f(l2) - f(l1)) / k, c * (g(l2) - g(l1)) / k ** 2
+
+
+def test_large_pressure_solves_the_exact_neo_hookean_section(chambered_long):
+    # A prismatic stretch of one long chamber: every section is the same, so the angle is
+    # k * length and the extension a * length. The exact section equilibrium (closed-form
+    # integrals above, solved by scipy's fsolve, independent of the model's strips and
+    # Newton steps) must give the same a and k; the strips' midpoint rule is good to
+    # about (1/240)^2 of the depth, so 0.1 %.
+    from scipy.optimize import fsolve
+
+    prof, span = chambered_long
+    p_kpa = 60.0
+    cur = motion_curve(prof, E_MPA, p_kpa, None, steps=6)
+    last = cur.points[-1]
+    assert last.max_stretch > 1.2                     # well past the linear range
+    a_s, _, a_p, e = _chamber_section()
+    zc = -CH_Z * CH_B * CH_H / a_s                    # s measured up from the centroid
+    n = p_kpa / 1000.0 * a_p
+
+    def residual(x):
+        a, k = x
+        fo, mo = _rect_resultants(a, k, B, -H / 2 - zc, H / 2 - zc)
+        fi, mi = _rect_resultants(a, k, CH_B, CH_Z - CH_H / 2 - zc, CH_Z + CH_H / 2 - zc)
+        return [fo - fi - n, mo - mi - n * e]
+
+    k_lin = n * e / (E_MPA * _chamber_section()[1])
+    a, k = fsolve(residual, [n / (E_MPA * a_s), k_lin], xtol=1e-13)
+    assert math.radians(last.angle_deg) / span == pytest.approx(k, rel=1e-3)
+    assert last.extension_mm / span == pytest.approx(a, rel=1e-3)
+    assert abs(k / k_lin - 1.0) > 0.02                # and it is not the linear answer
+
+
+@pytest.fixture(scope="module")
+def chambered_long():
+    body = box((0, -B / 2, -H / 2), (LENGTH, B / 2, H / 2)) - box(
+        (5.0, -CH_B / 2, CH_Z - CH_H / 2), (55.0, CH_B / 2, CH_Z + CH_H / 2))
+    mesh = from_manifold(body)
+    return profile_of(mesh, _void_mask(mesh), 15.0, 45.0, ["chambers"]), 30.0

@@ -74,18 +74,18 @@ def solve_beam(profile: Profile, e_mpa: float, pressures_kpa: np.ndarray, bendin
     before (the caller marks the curve there)."""
     d, _ = profile.load_direction()
     secs = profile.sections
-    s, b, ds = profile.strips(d, STRIPS)
+    s, w = profile.strips(d, STRIPS)
     area_p = np.array([x.void_area_mm2 for x in secs])
     lever = np.array([x.lever_arm_mm(d) for x in secs]) if bending else np.zeros(len(secs))
     inertia = np.array([x.second_moment_mm4(d) for x in secs])
     area_s = np.array([x.silicone_area_mm2 for x in secs])
-    spans = b > 0.0
+    spans = w > 0.0
     x = np.zeros((len(secs), 2))
     ang, ext, top = [], [], []
     for p in pressures_kpa:
         n = p / 1000.0 * area_p                              # N (MPa * mm2)
         try:
-            x = solve_sections(s, b, ds, n, n * lever, e_mpa, start=x, bending=bending)
+            x = solve_sections(s, w, n, n * lever, e_mpa, start=x, bending=bending)
         except ArithmeticError:
             break
         lam = 1.0 + x[:, :1] + x[:, 1:] * s

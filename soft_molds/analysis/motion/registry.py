@@ -19,7 +19,7 @@ from typing import Protocol
 import numpy as np
 
 from .model import MotionKind
-from .sections import Section, strip_widths
+from .sections import Section, strip_moments
 
 _NAME = re.compile(r"^[a-z][a-z0-9]*(-[a-z0-9]+)*$")
 _SHARED = frozenset({"registry", "model", "sections", "beam"})
@@ -56,21 +56,24 @@ class Profile:
         a = np.mean([s.silicone_area_mm2 for s in self.sections])
         return float(np.sqrt(i / a)) if a > 0 else 0.0
 
-    def strips(self, d: tuple[float, float], count: int
-               ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-        """Strip midpoints s (sections, count) along ``d`` from each silicone centroid,
-        their widths b (sections, count) and thicknesses ds (sections,), mm."""
-        s_all, b_all, ds_all = [], [], []
+    def strips(self, d: tuple[float, float], count: int) -> tuple[np.ndarray, np.ndarray]:
+        """``count`` equal strips across each section along ``d``: the centroid s of each
+        strip's silicone (from the section's centroid, mm) and its area (mm2), both
+        exact (:func:`.sections.strip_moments`), as (sections, count) arrays. A one-point
+        rule at those centroids integrates any law linear in s exactly over the section
+        (so the linear beam's A, the neutral axis and N, M are exact); I is short by the
+        strips' own spread, about (depth / count)^2 / 12 per unit area."""
+        s_all, w_all = [], []
         for sec in self.sections:
             p = sec.segments.reshape(-1, 2) - np.asarray(sec.centroid_mm)
             proj = p @ np.asarray(d)
-            lo, hi = float(proj.min()), float(proj.max())
-            ds = (hi - lo) / count
-            s = lo + ds * (np.arange(count) + 0.5)
-            s_all.append(s)
-            b_all.append(np.maximum(strip_widths(sec.segments, sec.centroid_mm, d, s), 0.0))
-            ds_all.append(ds)
-        return np.array(s_all), np.array(b_all), np.array(ds_all)
+            edges = np.linspace(float(proj.min()), float(proj.max()), count + 1)
+            area, first = strip_moments(sec.segments, sec.centroid_mm, d, edges)
+            mid = 0.5 * (edges[:-1] + edges[1:])
+            ok = area > 1e-12 * max(float(area.max()), 1e-300)
+            s_all.append(np.where(ok, first / np.where(ok, area, 1.0), mid))
+            w_all.append(np.where(ok, area, 0.0))
+        return np.array(s_all), np.array(w_all)
 
 
 @dataclass(frozen=True)

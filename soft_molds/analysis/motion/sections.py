@@ -126,34 +126,57 @@ def cut_sections(mesh: TriMesh, xs_mm: np.ndarray, void_facets: np.ndarray
     return tuple(out)
 
 
-def strip_widths(seg: np.ndarray, centroid: tuple[float, float], d: tuple[float, float],
-                 s_mm: np.ndarray) -> np.ndarray:
-    """Width (mm) of the silicone along the line s = ``s_mm`` (ascending, evenly spaced),
-    where s = (p - centroid) . d: the sum over segments crossing that line of the
-    crossing's coordinate t = p . (d_z, -d_y), signed by the direction the segment crosses
-    it (the integral of t ds round the boundary is the area, so this is the chord length).
+def strip_moments(seg: np.ndarray, centroid: tuple[float, float], d: tuple[float, float],
+                  edges_mm: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Area (mm2) and first moment (mm3) of the silicone in each strip between consecutive
+    ``edges_mm`` (ascending) of s = (p - centroid) . d, exactly.
 
-    A segment's crossing is linear in s, t = alpha + beta s, over the run of lines it
-    spans; the runs are added as differences and summed once (linear in segments plus
-    lines)."""
+    The chord length at s is the sum over segments crossing that line of the crossing's
+    coordinate t = p . (d_z, -d_y), signed by the direction the segment crosses it (the
+    integral of t ds round the boundary is the area). Along one segment t = alpha + beta s,
+    so its share of F(q) = integral of the chord up to q, and of G(q) = integral of chord * s,
+    is a polynomial in q over the segment's span and a constant past it; the polynomials
+    are added as differences over the edges each segment spans and summed once (linear in
+    segments plus edges). Strip j holds F(q_j+1) - F(q_j) and G(q_j+1) - G(q_j)."""
     dy, dz = d
     p = seg - np.asarray(centroid)
     s = p[..., 0] * dy + p[..., 1] * dz
     t = p[..., 0] * dz - p[..., 1] * dy
     s0, s1, t0, t1 = s[:, 0], s[:, 1], t[:, 0], t[:, 1]
-    q = np.asarray(s_mm, dtype=np.float64)
+    q = np.asarray(edges_mm, dtype=np.float64)
     keep = s1 != s0
     s0, s1, t0, t1 = s0[keep], s1[keep], t0[keep], t1[keep]
     sign = np.sign(s1 - s0)
     beta = (t1 - t0) / (s1 - s0)
     alpha = t0 - beta * s0
-    # Lines q with min(s0, s1) <= q < max(s0, s1).
-    lo = np.searchsorted(q, np.minimum(s0, s1), side="left")
-    hi = np.searchsorted(q, np.maximum(s0, s1), side="left")
-    da = np.zeros(len(q) + 1)
-    db = np.zeros(len(q) + 1)
-    np.add.at(da, lo, sign * alpha)
-    np.add.at(da, hi, -sign * alpha)
-    np.add.at(db, lo, sign * beta)
-    np.add.at(db, hi, -sign * beta)
-    return np.cumsum(da)[:-1] + q * np.cumsum(db)[:-1]
+    lo_s, hi_s = np.minimum(s0, s1), np.maximum(s0, s1)
+    lo = np.searchsorted(q, lo_s, side="left")   # first edge inside the span
+    hi = np.searchsorted(q, hi_s, side="left")   # first edge at or past its end
+
+    def add(acc: np.ndarray, at: np.ndarray, v: np.ndarray) -> None:
+        np.add.at(acc, at, v)
+
+    def prim_f(x):   # integral of alpha + beta s
+        return alpha * x + beta * x * x / 2.0
+
+    def prim_g(x):   # integral of (alpha + beta s) s
+        return alpha * x * x / 2.0 + beta * x ** 3 / 3.0
+
+    out = []
+    for prim, deg in ((prim_f, 2), (prim_g, 3)):
+        # Inside the span: sign * (prim(q) - prim(lo_s)), a polynomial in q of degree deg.
+        coef = np.zeros((deg + 1, len(q) + 1))
+        base = -sign * prim(lo_s)
+        if deg == 2:
+            terms = [base, sign * alpha, sign * beta / 2.0]
+        else:
+            terms = [base, np.zeros_like(alpha), sign * alpha / 2.0, sign * beta / 3.0]
+        for k, c in enumerate(terms):
+            add(coef[k], lo, c)
+            add(coef[k], hi, -c)
+        const = np.zeros(len(q) + 1)
+        add(const, hi, sign * (prim(hi_s) - prim(lo_s)))   # past the span: the whole share
+        coef = np.cumsum(coef, axis=1)[:, :-1]
+        total = np.cumsum(const)[:-1] + sum(coef[k] * q ** k for k in range(deg + 1))
+        out.append(np.diff(total))
+    return out[0], out[1]
