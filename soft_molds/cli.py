@@ -199,6 +199,9 @@ def cmd_build(args: argparse.Namespace) -> int:
             print(_fmt_part(p))
         print(f"  silicone {mm3_to_cm3(molds.silicone_volume_mm3):.2f} cm3; sprue and vents: "
               + ", ".join(o.kind for o in molds.openings))
+        if molds.motion is not None:
+            print(f"  predicted motion ({molds.motion.model}, an estimate): "
+                  f"{molds.motion.headline}")
         if molds.parting_candidates:
             pa = molds.recipe.parting
             print(f"  parting plane chosen: {pa.axis} = {pa.offset_mm:g} mm "
@@ -308,13 +311,15 @@ def cmd_sweep(args: argparse.Namespace) -> int:
               file=sys.stderr)
         return 1
     print(f"{'recipe':<18} {'label':<6} {'status':<11} {'checks':<8} {'silicone':>9} "
-          f"{'mix g':>7} {'s':>6}  changed / reason")
+          f"{'mix g':>7} {'motion':>9} {'s':>6}  changed / reason")
     for o in outcomes:
         vol = "-" if o.silicone_cm3 is None else f"{o.silicone_cm3:.2f} cm3"
         mix = "-" if o.mix_g is None else f"{o.mix_g:g}"
+        move = (f"{o.bend_deg:.1f} deg" if o.bend_deg is not None else
+                f"{o.extension_mm:.2f} mm" if o.extension_mm is not None else "-")
         note = o.reason or ", ".join(f"{k}={v}" for k, v in o.changed.items())
         print(f"{o.recipe:<18} {o.label:<6} {o.status:<11} {o.verdict or '-':<8} {vol:>9} "
-              f"{mix:>7} {o.seconds:>6.1f}  {note}")
+              f"{mix:>7} {move:>9} {o.seconds:>6.1f}  {note}")
     bad = [o for o in outcomes if not o.ok]
     print(f"{len(outcomes) - len(bad)} of {len(tasks)} variants built or up to date; report: "
           + ", ".join(str(p) for p in written[:2]))

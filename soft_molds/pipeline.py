@@ -51,6 +51,7 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     from .analysis.casting import plan_casting
     from .analysis.context import CheckContext
     from .analysis.highpoints import plan_openings
+    from .analysis.motion import predict_motion
     from .analysis.review import run_checks
     from .geometry import mold
     from .geometry.tessellate import tessellate_within
@@ -115,8 +116,11 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
         casting = plan_casting(recipe, volumes["cast"], volumes["fill"],
                                [(p.name, p.mesh, p.brep_volume_mm3) for p in parts
                                 if p.role != "cast"])
+    say("motion")
+    with _stage(timings, "motion", label):
+        motion = predict_motion(recipe, cast_mesh, rev.pressures)
     return MoldSet(plan, tuple(parts), volumes, shells.funnel_diameter_mm, timings, rev,
-                   casting, labels)
+                   casting, labels, motion)
 
 
 def k_volume(shape: object) -> float:

@@ -23,6 +23,7 @@ if TYPE_CHECKING:
     from ..plan.layout import Layout
     from ..plan.model import MoldPlan, Opening, PlaneScore
     from .casting import CastingPlan
+    from .motion import MotionCurve
     from .pressure import WallPressure
     from .review import Review
 
@@ -69,6 +70,7 @@ class BuiltMoldSet:
     review: Review | None = None   # every manufacturability finding
     casting: CastingPlan | None = None  # what to weigh and print
     labels: tuple[Label, ...] = ()  # per printed part that carries one
+    motion: MotionCurve | None = None  # predicted bend or extension against pressure
 
     @property
     def recipe(self) -> Recipe:

@@ -88,6 +88,7 @@ def card_blocks(family: Sequence[Manifest], title: str) -> list[Block]:
     blocks.append(("h2", "Steps"))
     blocks.append(("ol", list(STEPS)))
     blocks += _pressure_blocks([man for man, _ in cast])
+    blocks += _motion_blocks([man for man, _ in cast])
     blocks += _check_blocks([man for man, _ in cast])
     blocks += _print_blocks(cast)
     blocks.append(("h2", "Cautions"))
@@ -172,6 +173,31 @@ def _pressure_blocks(family: Sequence[Manifest]) -> list[Block]:
     blocks.append(("table", ["variant", "wall", "thickness mm", "span mm", "limit kPa",
                              "working kPa", "margin", ""], prow))
     return blocks
+
+
+def _motion_blocks(family: Sequence[Manifest]) -> list[Block]:
+    rows = []
+    for man in family:
+        mo = man.motion
+        if mo is None:
+            continue
+        w = mo.at_working
+        at = ("-" if mo.working_pressure_kpa is None else
+              f"beyond the curve ({mo.stop})" if w is None else
+              f"{w.angle_deg:.1f} deg" if mo.kind == "bending" else f"{w.extension_mm:.2f} mm")
+        rows.append([man.label, mo.model, str(mo.kind),
+                     "-" if mo.working_pressure_kpa is None else f"{mo.working_pressure_kpa:.0f}",
+                     at, f"{mo.valid_to_kpa:.0f} ({mo.stop})"])
+    if not rows:
+        return []
+    return [("h2", "Predicted motion (estimate)"),
+            ("p", "Beam model of the cast's own cross-sections with a neo-Hookean silicone: "
+             "tip bend angle of a bender, extension of an extender, at the working "
+             "pressure. The curve stops at the lowest balloon limit. Chamber walls that "
+             "bulge make a real finger bend more; use the figures to compare variants, "
+             "and measure the cast part."),
+            ("table", ["variant", "model", "motion", "working kPa", "at working", "curve to kPa"],
+             rows)]
 
 
 def _check_blocks(family: Sequence[Manifest]) -> list[Block]:

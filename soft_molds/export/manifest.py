@@ -27,6 +27,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING
 
 from ..analysis.findings import Finding, Verdict, verdict
+from ..analysis.motion.model import MotionKind, StopReason
 from ..errors import SoftMoldsError
 from ..version import __version__
 from .files import json_bytes
@@ -34,6 +35,7 @@ from .typedjson import JsonValue, ShapeError, convert, from_json, to_json
 
 if TYPE_CHECKING:
     from ..analysis.casting import CastingPlan
+    from ..analysis.motion import MotionCurve, MotionPoint
     from ..analysis.pressure import WallPressure
     from ..analysis.printability import PrintPlan
     from ..analysis.result import BuiltMoldSet, Part
@@ -235,6 +237,46 @@ class PressureRecord:
 
 
 @dataclass(frozen=True)
+class MotionPointRecord:
+    """One point of the predicted curve: pressure (kPa, 1e-3), tip angle (degrees, 1e-3),
+    extension (mm, 1e-4) and the largest fibre stretch (1e-4)."""
+
+    pressure_kpa: float
+    angle_deg: float
+    extension_mm: float
+    max_stretch: float
+
+
+@dataclass(frozen=True)
+class MotionRecord:
+    """The predicted motion (an estimate; see :mod:`soft_molds.analysis.motion`): the model
+    and what it read (active x range, the governing section's silicone area, second moment,
+    pressure area and lever arm, rounded to 1e-4), the small-pressure slopes (1e-6), where
+    the curve stops and why, the point at the working pressure and the curve."""
+
+    model: str
+    kind: MotionKind
+    youngs_modulus_mpa: float
+    active_from_mm: float
+    active_to_mm: float
+    sections: int
+    bend_dir: Vec2
+    at_x_mm: float
+    silicone_area_mm2: float
+    second_moment_mm4: float
+    pressure_area_mm2: float
+    lever_arm_mm: float
+    linear_deg_per_kpa: float
+    linear_mm_per_kpa: float
+    limit_kpa: float | None
+    valid_to_kpa: float
+    stop: StopReason
+    working_pressure_kpa: float | None
+    at_working: MotionPointRecord | None
+    points: tuple[MotionPointRecord, ...]
+
+
+@dataclass(frozen=True)
 class RecipeEcho:
     """The resolved recipe as the manifest echoes it (``Recipe.params()``, JSON-shaped).
 
@@ -298,6 +340,7 @@ class Manifest:
     prints: Mapping[str, PrintRecord] = field(metadata={"json": "print"})
     casting: CastingRecord | None
     pressure: PressureRecord
+    motion: MotionRecord | None
     params: RecipeEcho
     files: Mapping[str, str] = field(default_factory=dict)
 
@@ -437,6 +480,7 @@ def manifest_of(molds: BuiltMoldSet) -> Manifest:
             else round(review.modulus_mpa, 4),
             r.inflate.working_pressure_kpa,
             tuple(_wall(w, r.inflate.working_pressure_kpa) for w in molds.pressures)),
+        motion=None if molds.motion is None else _motion(molds.motion),
         params=RecipeEcho(json.loads(json_bytes(r.params()))),
     )
 
@@ -508,3 +552,29 @@ def _wall(w: WallPressure, working_kpa: float | None) -> WallRecord:
     return WallRecord(w.group, w.shape, round(w.thickness_mm, 3), round(2 * w.radius_mm, 3),
                       None if w.limit_kpa is None else round(w.limit_kpa, 1),
                       None if margin is None else round(margin, 3), w.thick)
+
+
+def _motion_point(p: MotionPoint) -> MotionPointRecord:
+    return MotionPointRecord(round(p.pressure_kpa, 3) + 0.0, round(p.angle_deg, 3) + 0.0,
+                             round(p.extension_mm, 4) + 0.0, round(p.max_stretch, 4))
+
+
+def _motion(m: MotionCurve) -> MotionRecord:
+    i = m.inputs
+    return MotionRecord(
+        model=m.model, kind=m.kind, youngs_modulus_mpa=round(i.youngs_modulus_mpa, 4),
+        active_from_mm=round(i.active_from_mm, 4), active_to_mm=round(i.active_to_mm, 4),
+        sections=i.sections,
+        bend_dir=(round(i.bend_dir[0], 6) + 0.0, round(i.bend_dir[1], 6) + 0.0),
+        at_x_mm=round(i.at_x_mm, 4),
+        silicone_area_mm2=round(i.silicone_area_mm2, 4),
+        second_moment_mm4=round(i.second_moment_mm4, 4),
+        pressure_area_mm2=round(i.pressure_area_mm2, 4),
+        lever_arm_mm=round(i.lever_arm_mm, 4) + 0.0,
+        linear_deg_per_kpa=round(m.linear_deg_per_kpa, 6) + 0.0,
+        linear_mm_per_kpa=round(m.linear_mm_per_kpa, 6) + 0.0,
+        limit_kpa=None if m.limit_kpa is None else round(m.limit_kpa, 3),
+        valid_to_kpa=round(m.valid_to_kpa, 3), stop=m.stop,
+        working_pressure_kpa=m.working_pressure_kpa,
+        at_working=None if m.at_working is None else _motion_point(m.at_working),
+        points=tuple(_motion_point(p) for p in m.points))

@@ -27,7 +27,14 @@ from .fieldwords import field_words
 from .files import json_bytes, write_atomic
 from .manifest import Manifest, ManifestError, read_manifest
 from .plates import family_plate_files, indexed_mesh
-from .sheet import SheetData, SheetVariant, manifest_row, render_sheet, unbuilt_row
+from .sheet import (
+    SheetData,
+    SheetVariant,
+    manifest_row,
+    motion_curve,
+    render_sheet,
+    unbuilt_row,
+)
 from .stl import read_binary_stl
 from .typedjson import ShapeError
 
@@ -35,7 +42,9 @@ from .typedjson import ShapeError
 class ReportedVariant(Protocol):
     """One variant as the report shows it. ``status``: built, up to date, refused or
     failed; ``verdict`` None when nothing was built; ``silicone_cm3`` and ``mix_g``
-    (grams weighed out in all) None unless built or up to date; ``ok``: built or up to
+    (grams weighed out in all) None unless built or up to date; ``bend_deg`` and
+    ``extension_mm``: the predicted tip angle (a bender) or extension (an extender) at the
+    working pressure, None otherwise; ``ok``: built or up to
     date; ``out_dir``: its folder (absolute)."""
 
     @property
@@ -61,6 +70,10 @@ class ReportedVariant(Protocol):
     @property
     def mix_g(self) -> float | None: ...
     @property
+    def bend_deg(self) -> float | None: ...
+    @property
+    def extension_mm(self) -> float | None: ...
+    @property
     def changed(self) -> Mapping[str, object]: ...
     @property
     def description(self) -> str: ...
@@ -71,8 +84,8 @@ class ReportedVariant(Protocol):
 
 
 SUMMARY_FIELDS = ("recipe", "label", "family", "status", "verdict", "errors", "warnings",
-                  "warning_checks", "min_pressure_margin", "silicone_cm3", "mix_g", "seconds",
-                  "changed", "reason", "out_dir")
+                  "warning_checks", "min_pressure_margin", "silicone_cm3", "mix_g", "bend_deg",
+                  "extension_mm", "seconds", "changed", "reason", "out_dir")
 
 #: The family of a recipe that makes one: family 1 of the documented numbering (its sheet
 #: and card have no suffix).
@@ -95,6 +108,7 @@ def summary_row(v: ReportedVariant, man: Manifest | None = None) -> dict[str, ob
             "status": str(v.status), "verdict": "" if v.verdict is None else str(v.verdict),
             "errors": v.errors, "warnings": v.warnings, "warning_checks": warned,
             "min_pressure_margin": margin, "silicone_cm3": v.silicone_cm3, "mix_g": v.mix_g,
+            "bend_deg": v.bend_deg, "extension_mm": v.extension_mm,
             "seconds": round(v.seconds, 3), "changed": dict(v.changed), "reason": v.reason,
             "out_dir": v.out_dir}
 
@@ -162,10 +176,13 @@ def _family_files(folder: Path, recipe: str, fam: str, members: Sequence[Reporte
             printed.append((man, meshes))
     title = f"{recipe}" + (f" family {fam}" if fam else "")
     written = []
+    curves = tuple(c for c in (motion_curve(m) for m in mans) if c is not None)
+    works = {m.motion.working_pressure_kpa for m in mans if m.motion is not None}
     # No date on the sheet: the same recipe and version give the same bytes; the version
     # here and the recipe hash on each row name the build instead.
     png, svg = render_sheet(SheetData(title, f"soft-molds {__version__}", tuple(rows),
-                                      members[0].description))
+                                      members[0].description, curves,
+                                      works.pop() if len(works) == 1 else None))
     for ext, data in (("png", png), ("svg", svg)):
         p = folder / f"family-sheet{suffix}.{ext}"
         write_atomic(p, data)

@@ -88,6 +88,9 @@ _ROW_PAD = 0.12        # top and bottom padding inside a row
 _BAR_BAND = 0.30       # height reserved at the foot of each section axes for the scale bar
 _DRAW_PAD = 0.08       # clearance around the drawing inside its axes
 
+_PLOT_BAND = 1.55     # height the motion plot takes from the rows, when there is one
+_PLOT_X = (1.05, PAGE_IN[0] - _MARGIN - 1.05)   # plot axes x from, width
+
 _TEXT_PT = 7.5
 _HEAD_PT = 6.5
 _LINE_IN = _TEXT_PT * 1.32 / 72.0
@@ -116,14 +119,30 @@ class SheetVariant:
 
 
 @dataclass(frozen=True)
+class SheetCurve:
+    """One variant's predicted motion for the sheet's plot: ``pressure_kpa`` against
+    ``value`` (degrees of tip bend, or mm of extension: ``quantity`` names which), in
+    ascending pressure; the curve ends at its last point (where the model stopped)."""
+
+    label: str
+    quantity: str
+    pressure_kpa: tuple[float, ...]
+    value: tuple[float, ...]
+
+
+@dataclass(frozen=True)
 class SheetData:
-    """A family sheet: title and subtitle (e.g. tool version), 1..5 rows, and the
-    recipe's description (drawn under the title when not empty)."""
+    """A family sheet: title and subtitle (e.g. tool version), 1..5 rows, the recipe's
+    description (drawn under the title when not empty); ``curves``: the variants'
+    predicted motion, drawn on one plot above the rows (none: no plot, the rows keep the
+    page)."""
 
     title: str
     subtitle: str
     variants: tuple[SheetVariant, ...]
     description: str = ""
+    curves: tuple[SheetCurve, ...] = ()
+    working_pressure_kpa: float | None = None
 
 
 Pair = tuple[str, str]
@@ -172,8 +191,28 @@ def manifest_figures(man: Manifest) -> tuple[Pair, ...]:
     lims = [w.limit_kpa for w in man.pressure.walls if w.limit_kpa is not None]
     if lims:
         figs.append(("balloons at", f"about {min(lims):.0f} kPa"))
+    mo = man.motion
+    if mo is not None and mo.working_pressure_kpa is not None:
+        w = mo.at_working
+        verb = "bends" if mo.kind == "bending" else "extends"
+        name = f"{verb} at {mo.working_pressure_kpa:.0f} kPa"
+        figs.append((name, f"beyond the {mo.stop}" if w is None else
+                     f"about {w.angle_deg:.0f} deg" if mo.kind == "bending" else
+                     f"about {w.extension_mm:.1f} mm"))
     figs.append(("recipe hash", man.source_params_sha256[:12]))
     return tuple(figs)
+
+
+def motion_curve(man: Manifest) -> SheetCurve | None:
+    """The plot's curve of a built variant: its predicted tip angle (a bender) or extension
+    (an extender) against pressure, from the manifest; None without a prediction."""
+    mo = man.motion
+    if mo is None or not mo.points:
+        return None
+    bending = mo.kind == "bending"
+    return SheetCurve(man.label, "angle_deg" if bending else "extension_mm",
+                      tuple(p.pressure_kpa for p in mo.points),
+                      tuple(p.angle_deg if bending else p.extension_mm for p in mo.points))
 
 
 def unbuilt_row(label: str, changed: tuple[Pair, ...], status: str,
@@ -248,7 +287,12 @@ def build_figure(data: SheetData) -> Figure:
              _fit(sub, page_w - 2 * _MARGIN, 8.5, "normal", measure), ha="left", va="top",
              fontsize=8.5, color="0.3")
 
-    row_h = (page_h - _ROWS_TOP - _ROWS_BOTTOM) / MAX_VARIANTS
+    rows_top = _ROWS_TOP + (_PLOT_BAND if data.curves else 0.0)
+    if data.curves:
+        ax = fig.add_axes((*at(_PLOT_X[0], page_h - rows_top + 0.42), _PLOT_X[1] / page_w,
+                           (_PLOT_BAND - 0.62) / page_h))
+        _draw_curves(ax, data.curves, data.working_pressure_kpa)
+    row_h = (page_h - rows_top - _ROWS_BOTTOM) / MAX_VARIANTS
     ax_w = _COL_SECTION[1]
     ax_h = row_h - 2 * _ROW_PAD
     scale = _common_scale(sections, ax_w - 2 * _DRAW_PAD, ax_h - _BAR_BAND - 2 * _DRAW_PAD)
@@ -257,7 +301,7 @@ def build_figure(data: SheetData) -> Figure:
                  va="top", fontsize=7.5, color="0.3")
 
     for i, (v, segs) in enumerate(zip(variants, sections)):
-        top = page_h - _ROWS_TOP - i * row_h
+        top = page_h - rows_top - i * row_h
         if i:
             fig.add_artist(_hline(fig, top, page_w))
         _draw_label(fig, at, v, top, measure)
@@ -267,7 +311,7 @@ def build_figure(data: SheetData) -> Figure:
         _draw_section(ax, segs, v.section_axes, scale, ax_w, ax_h, i)
 
     bottom = _ROWS_BOTTOM - 0.05
-    fig.add_artist(_hline(fig, page_h - _ROWS_TOP - MAX_VARIANTS * row_h, page_w))
+    fig.add_artist(_hline(fig, page_h - rows_top - MAX_VARIANTS * row_h, page_w))
     fig.text(*at(page_w / 2, bottom - 0.25), "Caution: " + CAUTION, ha="center", va="top",
              fontsize=8, fontweight="bold")
     return fig
@@ -485,3 +529,37 @@ def _draw_section(ax, segs: np.ndarray, names: tuple[str, str], scale: _Scale | 
     ax.add_collection(bar, autolim=False)
     ax.text(bx0 + scale.bar_mm + 0.6 * pad, by, f"{scale.bar_mm:g} mm", ha="left",
             va="center", fontsize=7)
+
+
+_QUANTITY = {"angle_deg": "tip bend, degrees", "extension_mm": "extension, mm"}
+
+
+def _draw_curves(ax, curves: Sequence[SheetCurve], working_kpa: float | None) -> None:
+    """Every variant's predicted curve on one pair of axes, each labelled at its end (where
+    the model stopped: the balloon limit, or where a fibre would break); the working
+    pressure as a dashed line. Curves of another quantity than the first are left out
+    (one y axis)."""
+    quantity = curves[0].quantity
+    shown = [c for c in curves if c.quantity == quantity and len(c.pressure_kpa)]
+    for spine in ("top", "right"):
+        ax.spines[spine].set_visible(False)
+    ax.tick_params(labelsize=6.5, length=2)
+    ax.set_xlabel("pressure, kPa", fontsize=7)
+    ax.set_ylabel(_QUANTITY.get(quantity, quantity), fontsize=7)
+    ax.set_title("Predicted motion (beam estimate; each curve stops at its limit)",
+                 fontsize=7.5, loc="left")
+    top_p = max((max(c.pressure_kpa) for c in shown), default=1.0)
+    if working_kpa is not None:
+        top_p = max(top_p, working_kpa)
+        ax.axvline(working_kpa, color="0.5", linewidth=0.6, linestyle="--")
+        ax.text(working_kpa, 1.0, " working", transform=ax.get_xaxis_transform(),
+                fontsize=6, color="0.4", va="top", ha="left")
+    for c in shown:
+        line = ax.plot(c.pressure_kpa, c.value, linewidth=1.0, gid=f"curve-{c.label}")[0]
+        ax.plot([c.pressure_kpa[-1]], [c.value[-1]], marker="o", markersize=2.5,
+                color=line.get_color())
+        ax.annotate(c.label, (c.pressure_kpa[-1], c.value[-1]), xytext=(3, 0),
+                    textcoords="offset points", fontsize=7, fontweight="bold",
+                    color=line.get_color(), va="center")
+    ax.set_xlim(0.0, top_p * 1.08)
+    ax.set_ylim(bottom=0.0)

@@ -16,7 +16,7 @@ from ..analysis.findings import Severity, counts, refuses_to_write
 from ..export.manifest import Manifest, ManifestError, read_manifest
 from ..recipe.model import Recipe
 from ..version import __version__
-from .outcome import Outcome, Status, report_figures
+from .outcome import Outcome, Status, motion_figures, report_figures
 from .plan import Task, output_dir
 
 
@@ -65,7 +65,9 @@ def earlier_outcome(t: Task, root: str | os.PathLike[str], force: bool) -> Outco
               if refused and first is not None else "")
     vol, mix = report_figures(man.silicone_volume_mm3,
                               () if man.casting is None else (p.g for p in man.casting.portions))
+    bend, ext = motion_figures(man.motion)
     return Outcome(t.recipe.name, t.recipe.label, t.spec.family,
                    Status.REFUSED if refused else Status.UP_TO_DATE, reason=reason,
                    verdict=man.verdict, errors=n.errors, warnings=n.warnings,
-                   silicone_cm3=vol, mix_g=mix, out_dir=str(output_dir(root, t.recipe)))
+                   silicone_cm3=vol, mix_g=mix, bend_deg=bend, extension_mm=ext,
+                   out_dir=str(output_dir(root, t.recipe)))

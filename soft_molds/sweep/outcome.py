@@ -7,6 +7,8 @@ from dataclasses import dataclass, field
 from enum import StrEnum
 
 from ..analysis.findings import Verdict
+from ..analysis.motion.model import MotionKind
+from ..export.manifest import MotionRecord
 from ..recipe.model import Recipe
 from ..units import mm3_to_cm3
 from .plan import Task
@@ -40,6 +42,8 @@ class Outcome:
     seconds: float = 0.0
     silicone_cm3: float | None = None
     mix_g: float | None = None
+    bend_deg: float | None = None      # predicted tip angle at the working pressure (bender)
+    extension_mm: float | None = None  # predicted extension at the working pressure (extender)
     changed: dict[str, object] = field(default_factory=dict)
     description: str = ""
     out_dir: str = ""
@@ -71,3 +75,15 @@ def report_figures(silicone_volume_mm3: float, portions_g: Iterable[float]
     """(silicone in cm3, grams weighed out in all) as the summary shows them, from the
     figures the manifest records (so a built and an up-to-date variant agree)."""
     return round(mm3_to_cm3(silicone_volume_mm3), 3), round(sum(portions_g), 3)
+
+
+def motion_figures(motion: MotionRecord | None) -> tuple[float | None, float | None]:
+    """(tip angle in degrees, extension in mm) at the working pressure as the summary shows
+    them, from the manifest's motion record: the angle for a bender, the extension for an
+    extender; None where there is no prediction at the working pressure."""
+    if motion is None or motion.at_working is None:
+        return None, None
+    w = motion.at_working
+    if motion.kind is MotionKind.BENDING:
+        return round(w.angle_deg, 1), None
+    return None, round(w.extension_mm, 2)

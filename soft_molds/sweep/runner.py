@@ -13,7 +13,7 @@ from ..errors import SoftMoldsError
 from ..export.files import remove_stale_temps
 from ..pipeline import build
 from ..recipe.model import Recipe
-from .outcome import Outcome, Status, report_figures
+from .outcome import Outcome, Status, motion_figures, report_figures
 from .plan import output_dir
 
 
@@ -26,14 +26,16 @@ def run_variant(recipe: Recipe, out_root: str, force: bool = False) -> Outcome:
     remove_stale_temps(d)  # what a killed earlier run left half-written
 
     def done(status: Status, reason: str = "", findings: tuple[Finding, ...] | None = None,
-             figures: tuple[float | None, float | None] = (None, None)) -> Outcome:
+             figures: tuple[float | None, float | None] = (None, None),
+             motion: tuple[float | None, float | None] = (None, None)) -> Outcome:
         """``findings`` None: nothing was built (no verdict)."""
         n = counts(findings or ())
         return Outcome(recipe.name, recipe.label, "", status, reason=reason,
                        verdict=None if findings is None else verdict(findings),
                        errors=n.errors, warnings=n.warnings,
                        seconds=time.perf_counter() - t, silicone_cm3=figures[0],
-                       mix_g=figures[1], out_dir=str(d), worker_pid=os.getpid(),
+                       mix_g=figures[1], bend_deg=motion[0], extension_mm=motion[1],
+                       out_dir=str(d), worker_pid=os.getpid(),
                        worker_rss_mb=_rss_mb(), worker_peak_mb=_peak_mb())
 
     try:
@@ -52,7 +54,8 @@ def run_variant(recipe: Recipe, out_root: str, force: bool = False) -> Outcome:
     # reports the same figures.
     return done(Status.BUILT, "", findings, report_figures(
         round(molds.silicone_volume_mm3, 3),
-        () if molds.casting is None else (p.grams for p in molds.casting.quantities.portions)))
+        () if molds.casting is None else (p.grams for p in molds.casting.quantities.portions)),
+        motion_figures(molds.manifest().motion))
 
 
 def _rss_mb() -> float:

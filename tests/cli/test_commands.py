@@ -40,3 +40,18 @@ def test_build_into_an_unwritable_place_is_one_line_exit_1(tmp_path, capsys):
     assert main(["build", "recipes/stem-cushion.yaml", "--out", str(blocker / "sub")]) == 1
     err = capsys.readouterr().err
     assert err.count("\n") == 1 and "cannot write" in err and "Traceback" not in err
+
+
+def test_build_prints_the_predicted_motion_at_the_working_pressure(tmp_path, capsys):
+    import json
+
+    assert main(["build", "recipes/tray-pusher.yaml", "--out", str(tmp_path)]) == 0
+    out = capsys.readouterr().out
+    (line,) = [x for x in out.splitlines() if "predicted motion" in x]
+    # The same figure the manifest records at the working pressure (12 psi, NIST SP 811:
+    # 82.74 kPa), rounded as the line prints it.
+    man = json.loads(next(tmp_path.rglob("manifest.json")).read_text())
+    ext = man["motion"]["at_working"]["extension_mm"]
+    assert man["motion"]["kind"] == "extending"
+    assert line.strip() == (f"predicted motion (axial-extending, an estimate): extends "
+                            f"{ext:.1f} mm at 83 kPa")

@@ -71,6 +71,21 @@ def test_the_shared_attributes_are_typed(finger):
     assert man.inlet_center_mm == (0.0, 1.0)
 
 
+def test_the_motion_block_reads_back_as_the_build_predicted_it(finger, tmp_path):
+    written = write_mold_set(finger, tmp_path)
+    mo = read_manifest(written.directory).motion
+    curve = finger.motion
+    assert mo is not None and curve is not None
+    assert (mo.model, mo.kind, mo.stop) == (curve.model, curve.kind, curve.stop)
+    assert len(mo.points) == len(curve.points)
+    assert [p.angle_deg for p in mo.points] == pytest.approx(
+        [p.angle_deg for p in curve.points], abs=5e-4)
+    assert mo.at_working is not None and curve.at_working is not None
+    assert mo.at_working.pressure_kpa == curve.working_pressure_kpa == 60.0
+    assert mo.at_working.angle_deg == pytest.approx(curve.at_working.angle_deg, abs=5e-4)
+    assert mo.valid_to_kpa == pytest.approx(curve.valid_to_kpa, abs=5e-4)
+
+
 # --- refusals ---------------------------------------------------------------------------
 
 
@@ -115,6 +130,7 @@ def test_the_unchanged_document_is_accepted(good, tmp_path):
 @pytest.mark.parametrize("key", ["recipe", "tool_version", "parts[1].triangles", "pour.up",
                                  "checks[0].where_mm", "casting.portions[0].g",
                                  "casting.blend", "pressure.walls[0].margin", "print",
+                                 "motion", "motion.at_working", "motion.points[3].angle_deg",
                                  "params", "files"])
 def test_a_missing_key_is_refused_naming_it(good, tmp_path, key):
     data = copy.deepcopy(good)
@@ -139,6 +155,9 @@ def test_a_missing_key_is_refused_naming_it(good, tmp_path, key):
     ("casting.portions[1].g", None, "expected a number, got None"),
     ("pressure.walls[0].limit_kpa", "high", "expected a number, got 'high'"),
     ("params.inlet.center_mm", [0.0], "expected a list of 2, got 1 items"),
+    ("motion.kind", "twisting", "expected one of 'bending', 'extending', got 'twisting'"),
+    ("motion.sections", 2.5, "expected an integer, got 2.5"),
+    ("motion.points[0].pressure_kpa", "0 kPa", "expected a number, got '0 kPa'"),
     ("units", "in", "expected 'mm', got 'in'"),
     ("params_sha256", "abc", "expected 64 lower-case hex digits (SHA-256)"),
     ("files.cast.stl", "not a digest", "expected 64 lower-case hex digits (SHA-256)"),

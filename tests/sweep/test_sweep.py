@@ -30,6 +30,7 @@ voids:
     end_round_mm: 1.5
 inlet: {socket_diameter_mm: 5, socket_depth_mm: 5}
 mold: {clamp_bolt: M3}
+inflate: {working_pressure_kpa: 20}
 variants:
   vary:
     voids[0].diameter_mm: [3, 4, 5]
@@ -95,6 +96,13 @@ def test_a_rerun_rebuilds_nothing_that_is_up_to_date(one_job, recipe_file):
     outcomes, _ = run_sweep(plan_tasks([recipe_file]), out, jobs=1, progress=Quiet())
     assert [o.status for o in outcomes] == ["up to date"] * 3
     assert {p: p.stat().st_mtime_ns for p in out.rglob("manifest.json")} == before
+    # The summary's predicted motion reads the same from the manifest as from the build
+    # (a centred bore: an extender, so an extension and no angle).
+    built = one_job[1]
+    assert [(o.bend_deg, o.extension_mm) for o in outcomes] == [
+        (o.bend_deg, o.extension_mm) for o in built]
+    assert all(o.bend_deg is None and o.extension_mm is not None and o.extension_mm > 0
+               for o in outcomes)
 
 
 def test_a_changed_or_damaged_variant_is_rebuilt(one_job, recipe_file, tmp_path):

@@ -1,0 +1,119 @@
+"""How each variant is predicted to move when inflated: bend angle or extension against
+pressure, from the cast's own cross-sections and the silicone's modulus.
+
+:func:`predict_motion` cuts the cast mesh into sections along x over the pressurised
+length (past the tube socket to the voids' far end; :mod:`.sections`), hands them to the
+first registered motion model that applies (:mod:`.registry`: ``beam-bending`` for
+chambers or a bore off the neutral axis, ``axial-extending`` otherwise; each module
+states its assumptions) and steps the pressure from zero to the lowest balloon limit the
+pressure check found (:mod:`soft_molds.analysis.pressure`), or to the pressure at which a
+fibre would reach the grade's elongation at break, whichever comes first; the curve stops
+and says so there. An estimate for comparing variants, not a rating: defer to a test on
+the cast part.
+
+Units: kPa, degrees, mm, MPa. Frame: world (x the long axis).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+import numpy as np
+
+from soft_molds.meshdata import TriMesh
+from soft_molds.recipe.contracts import bounds_of
+from soft_molds.recipe.model import Recipe
+from soft_molds.recipe.primitives import union_sdf
+
+from ..pressure import WallPressure
+from .model import MotionCurve, MotionInputs, MotionKind, MotionPoint, StopReason
+from .registry import Profile, model_for
+from .sections import cut_sections
+
+__all__ = ["MotionCurve", "MotionInputs", "MotionKind", "MotionPoint", "StopReason",
+           "motion_curve", "predict_motion", "profile_of"]
+
+SECTION_SPACING_MM = 0.25
+"""Target slice thickness along x: chamber walls of about 1 mm get several sections."""
+
+STEPS = 40
+"""Pressure steps from zero to the end of the curve (the working pressure is added)."""
+
+NO_LIMIT_FACTOR = 2.0
+"""With no balloon limit known, the curve runs to this multiple of the working pressure
+(or to DEFAULT_RANGE_KPA without one)."""
+DEFAULT_RANGE_KPA = 100.0
+
+
+def void_facet_mask(r: Recipe, mesh: TriMesh) -> np.ndarray:
+    """Facets of ``mesh`` on a void's or the tube socket's surface (the recipe primitives'
+    exact distance functions, within the tolerance the checks use)."""
+    prims = tuple(p for group in r.void_primitives() for p in group) + (r.inlet.socket(),)
+    tol = min(0.1, r.checks.min_wall_mm / 3.0)
+    return np.abs(union_sdf(prims, mesh.triangles().mean(axis=1))) <= tol
+
+
+def profile_of(mesh: TriMesh, void_facets: np.ndarray, from_mm: float, to_mm: float,
+               void_kinds: Sequence[str], spacing_mm: float = SECTION_SPACING_MM) -> Profile:
+    """Sections of ``mesh`` at the middles of equal slices of [from_mm, to_mm]."""
+    count = max(int(np.ceil((to_mm - from_mm) / spacing_mm)), 1)
+    dx = (to_mm - from_mm) / count
+    xs = from_mm + dx * (np.arange(count) + 0.5)
+    return Profile(cut_sections(mesh, xs, void_facets), dx, from_mm, to_mm,
+                   tuple(void_kinds))
+
+
+def predict_motion(r: Recipe, cast: TriMesh, walls: Sequence[WallPressure]
+                   ) -> MotionCurve | None:
+    """The motion curve of the cast ``cast`` of recipe ``r`` (None when the silicone's
+    modulus is unknown, or no model applies). ``walls``: the pressure check's weakest wall
+    per group (their lowest limit ends the curve)."""
+    e = r.material.silicone.youngs_modulus_mpa()
+    if e is None or not r.voids:
+        return None
+    lo, hi = bounds_of(tuple(p for group in r.void_primitives() for p in group))
+    start = max(float(lo[0]), r.inlet.socket_depth_mm)
+    if hi[0] <= start:
+        return None
+    prof = profile_of(cast, void_facet_mask(r, cast), start, float(hi[0]),
+                      [type(v).KIND for v in r.voids])
+    limits = [w.limit_kpa for w in walls if w.limit_kpa is not None]
+    return motion_curve(prof, e, min(limits) if limits else None,
+                        r.inflate.working_pressure_kpa,
+                        1.0 + r.material.elongation_at_break_pct / 100.0)
+
+
+def motion_curve(prof: Profile, e_mpa: float, limit_kpa: float | None,
+                 working_kpa: float | None, break_stretch: float | None = None,
+                 steps: int = STEPS) -> MotionCurve | None:
+    """The curve of the first model that applies to ``prof`` (module docstring)."""
+    model = model_for(prof)
+    if model is None:
+        return None
+    if limit_kpa is not None:
+        end, stop = limit_kpa, StopReason.BALLOON_LIMIT
+    else:
+        end = NO_LIMIT_FACTOR * working_kpa if working_kpa else DEFAULT_RANGE_KPA
+        stop = StopReason.RANGE_END
+    ps = np.linspace(0.0, end, steps + 1)
+    if working_kpa is not None and 0.0 < working_kpa < end:
+        ps = np.unique(np.append(ps, working_kpa))
+    sol = model.solve(prof, e_mpa, ps)
+    keep = len(sol.angle_deg)
+    if keep < len(ps):
+        stop = StopReason.NO_EQUILIBRIUM
+    if break_stretch is not None and (sol.max_stretch[:keep] > break_stretch).any():
+        keep = int(np.argmax(sol.max_stretch > break_stretch))
+        stop = StopReason.BREAK_STRETCH
+    pts = tuple(MotionPoint(float(p), float(a), float(x), float(m)) for p, a, x, m in
+                zip(ps[:keep], sol.angle_deg[:keep], sol.extension_mm[:keep],
+                    sol.max_stretch[:keep], strict=True))
+    valid_to = pts[-1].pressure_kpa if pts else 0.0
+    at_work = next((q for q in pts if working_kpa is not None
+                    and q.pressure_kpa == working_kpa), None)
+    g = prof.sections[sol.governing]
+    inputs = MotionInputs(e_mpa, prof.from_mm, prof.to_mm, len(prof.sections), sol.bend_dir,
+                          g.x_mm, g.silicone_area_mm2, sol.second_moment_mm4,
+                          g.void_area_mm2, sol.lever_arm_mm)
+    return MotionCurve(model.name, model.kind, inputs, pts, valid_to, stop, limit_kpa,
+                       sol.linear_deg_per_kpa, sol.linear_mm_per_kpa, working_kpa, at_work)
