@@ -129,7 +129,7 @@ def test_a_family_report_packs_every_variant_together_on_the_plates(finger, tmp_
     rows = [SimpleNamespace(recipe="seedling-finger", label=x, family="", status="built",
                             reason="", verdict=Verdict.OK, errors=0, warnings=0, seconds=1.0,
                             silicone_cm3=1.0, mix_g=1.0, changed={}, out_dir=str(d), ok=True,
-                            description="")
+                            description="", bend_deg=None, extension_mm=None)
             for x, d in (("A", a), ("B", b))]
     # an earlier report's plate beyond today's count, and another family's plate
     folder = tmp_path / "out" / "seedling-finger"
