@@ -35,9 +35,11 @@ def _value_text(f: Field | None, value: object) -> str:
         text = f"{value:g}"
     elif isinstance(value, (list, tuple)):
         text = ", ".join(f"{x:g}" if isinstance(x, float) else str(x) for x in value)
+    elif isinstance(value, dict) and set(value) == {"from", "to"}:  # a graded size
+        text = f"{value['from']:g} to {value['to']:g}"
     else:
         text = str(value)
-    if f is not None and f.unit and f.kind in ("number", "pair", "points", "rounds"):
+    if f is not None and f.unit and f.kind in ("number", "pair", "points", "rounds", "graded"):
         text += f" {f.unit}" if f.unit != "%" else " %"
     return text
 

@@ -48,3 +48,10 @@ def test_several_voids_are_numbered_and_an_unknown_path_still_reads():
     assert field_words("voids[1].diameter_mm", 3, params) == ("bore (void 2) diameter",
                                                               "3 mm")
     assert field_words("voids[0].kind", "bore", PARAMS) == ("chamber kind", "bore")
+
+
+def test_a_graded_size_reads_from_first_to_last_with_its_unit():
+    assert field_words("voids[0].width_mm", {"from": 12, "to": 8}, PARAMS) == \
+        ("chamber width", "12 to 8 mm")
+    assert field_words("voids[0].width_mm", [12.0, 10.5], PARAMS) == \
+        ("chamber width", "12, 10.5 mm")
