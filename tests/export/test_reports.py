@@ -29,6 +29,8 @@ class Row:
     seconds: float = 0.0
     silicone_cm3: float | None = None
     mix_g: float | None = None
+    bend_deg: float | None = None
+    extension_mm: float | None = None
     changed: dict[str, object] = field(default_factory=dict)
     description: str = ""
 

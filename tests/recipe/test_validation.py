@@ -297,10 +297,11 @@ def test_bore_in_rod_just_thinner_than_min_wall_is_refused_with_its_wall():
     assert wall_in(bore.message) == pytest.approx(0.98, abs=0.005)
     _, y, z = point_in(bore.message)
     assert (y * y + z * z) ** 0.5 == pytest.approx(12.04 / 2, abs=0.01)  # on the bore's side
-    # The socket is as wide as the bore, so its rim on the x = 0 face is as thin (the same
-    # (D - d)/2); nothing else is wrong.
-    assert set(by_path) == {"voids[0]", "inlet.center_mm"}
-    assert len(found) == 2
+    # The socket is as wide as the bore, so its rim on the x = 0 face and its side wall
+    # along its depth are as thin (the same (D - d)/2); nothing else is wrong.
+    assert set(by_path) == {"voids[0]", "inlet.center_mm", "inlet"}
+    assert wall_in(by_path["inlet"].message) == pytest.approx(0.98, abs=0.005)
+    assert len(found) == 3
 
 
 @pytest.mark.parametrize("length, wall", [(58.98, 1.02), (59.02, 0.98)])
