@@ -460,7 +460,9 @@ def cmd_report(args: argparse.Namespace) -> int:
         burst = mv.burst_kpa if mv is not None else None
         candidates.append(Candidate(m.label, got, measured,
                                     None if burst is None else burst / at_kpa,
-                                    len(mv.defects) if mv is not None else 0))
+                                    len(mv.defects) if mv is not None else 0,
+                                    mv is not None and mv.leak_kpa is not None
+                                    and mv.leak_kpa <= at_kpa))
     ranking = rank(candidates, margin)
     best = ranking[0]
     defects = {mv.label: tuple(d.value for d in mv.defects) for mv in res.variants}
@@ -482,8 +484,9 @@ def cmd_report(args: argparse.Namespace) -> int:
             stem = Path(recipe_path).stem
             ng = next_generation(text, label, stem, value)
             next_name = f"{stem.split('-generation-')[0]}-generation-{ng.generation}.yaml"
+            # Checked where it will be written (a file it names is looked up from there).
             variants_from_text(ng.text, str(Path(args.family_dir) / next_name), ng.name,
-                               Path(recipe_path).resolve().parent)
+                               Path(args.family_dir).resolve())
         except RecipeError as exc:
             return fail(exc.lines())
         next_text = ng.text

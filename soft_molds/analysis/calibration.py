@@ -121,13 +121,15 @@ class Candidate:
     """One variant as the ranking sees it: its ``score`` (measured value at the goal
     pressure, or the calibrated prediction there when no row reaches it; None: neither),
     whether the score was ``measured``, its burst margin (burst / goal pressure; None when
-    not taken to burst) and the number of defects."""
+    not taken to burst), the number of defects and whether it leaked at or below the goal
+    pressure."""
 
     label: str
     score: float | None
     measured: bool
     burst_margin: float | None
     defects: int
+    leaks_by_goal: bool = False
 
 
 @dataclass(frozen=True)
@@ -142,10 +144,12 @@ class Ranked:
 
 def rank(candidates: Sequence[Candidate], min_burst_margin: float) -> tuple[Ranked, ...]:
     """Order: variants that meet the goal first (a score and a burst margin of at least
-    ``min_burst_margin``; a variant never taken to burst is taken as meeting it, since it
-    held every pressure tried), then the larger score, then fewer defects, then the label.
-    Variants without a score come last."""
+    ``min_burst_margin``, a variant never taken to burst taken as meeting it since it held
+    every pressure tried, and no leak at or below the goal pressure), then the larger
+    score, then fewer defects, then the label. Variants without a score come last."""
     def why(c: Candidate) -> str:
+        if c.leaks_by_goal:
+            return "leaks at or below the goal pressure"
         if c.burst_margin is not None and c.burst_margin < min_burst_margin:
             return f"burst margin {c.burst_margin:.2f} < {min_burst_margin:g}"
         if c.score is None:

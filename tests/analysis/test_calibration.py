@@ -111,3 +111,10 @@ def test_ranking_puts_the_margin_first_then_the_score_then_fewer_defects():
     assert [r.eligible for r in ranked] == [True, True, True, False, False]
     assert ranked[3].why_not == "burst margin 1.42 < 1.5"
     assert [r.place for r in ranked] == [1, 2, 3, 4, 5]
+
+
+def test_a_leak_by_the_goal_pressure_misses_the_goal():
+    ranked = rank([Candidate("A", 30.0, True, 3.0, 1, leaks_by_goal=True),
+                   Candidate("B", 10.0, True, 3.0, 0)], 1.5)
+    assert [(r.candidate.label, r.eligible) for r in ranked] == [("B", True), ("A", False)]
+    assert ranked[1].why_not == "leaks at or below the goal pressure"
