@@ -1,4 +1,4 @@
-"""Command line: ``soft-molds build`` and ``soft-molds check``.
+"""Command line: ``soft-molds build``, ``check``, ``sweep``, ``report`` and helpers.
 
 Exit status: 0 success; 1 a mold could not be built, a mesh failed its integrity check or
 a manufacturability check failed (``check --strict``: or warned), or the output folder
@@ -331,6 +331,225 @@ def cmd_sweep(args: argparse.Namespace) -> int:
     return 1 if bad or len(outcomes) < len(tasks) else 0
 
 
+def _family_manifests(folder: str) -> tuple[list, list[str]]:
+    """(manifests of the variant folders under ``folder``, in label order; error lines)."""
+    from pathlib import Path
+
+    from .export.manifest import MANIFEST_NAME, ManifestError, read_manifest
+
+    root = Path(folder)
+    if not root.is_dir():
+        return [], [f"{folder}: not a folder; allowed: the family folder a sweep wrote "
+                    "(out/<recipe>)"]
+    mans, errors = [], []
+    for sub in sorted(p for p in root.iterdir() if (p / MANIFEST_NAME).is_file()):
+        try:
+            # Any version: the prediction compared is the one made when the parts were
+            # built and cast, whatever soft_molds reads it now.
+            mans.append(read_manifest(sub, any_version=True))
+        except ManifestError as exc:
+            errors.append(str(exc))
+    if not mans and not errors:
+        errors.append(f"{folder}: holds no built variant (no */{MANIFEST_NAME}); allowed: "
+                      "the family folder a sweep wrote (out/<recipe>)")
+    names = sorted({m.recipe for m in mans})
+    if len(names) > 1:
+        errors.append(f"{folder}: variants of several recipes ({', '.join(names)}); "
+                      "allowed: one family")
+    return sorted(mans, key=lambda m: m.label), errors
+
+
+def _curve(man) -> tuple[tuple[float, ...], tuple[float, ...]]:
+    mo = man.motion
+    if mo is None:
+        return (), ()
+    bending = mo.kind == "bending"
+    return (tuple(p.pressure_kpa for p in mo.points),
+            tuple(p.angle_deg if bending else p.extension_mm for p in mo.points))
+
+
+def cmd_report(args: argparse.Namespace) -> int:
+    """Measured against predicted for a built family: plot, factor, ranking, next recipe."""
+    from pathlib import Path
+
+    from .analysis.calibration import Candidate, fit_factor, interpolate, pair_up, rank
+    from .errors import Problem
+    from .export.results import (
+        PLOT_STEM,
+        REPORT_NAME,
+        ComparisonPlot,
+        RankRow,
+        ReportText,
+        VariantSeries,
+        render_comparison,
+        report_markdown,
+        results_name,
+        write_report,
+    )
+    from .recipe.generation import next_generation, swept_field
+    from .recipe.load import variants_from_text
+    from .recipe.results import Quantity, read_results
+    from .recipe.yamlsource import parse_recipe_text, read_text_file
+
+    def fail(lines: Sequence[str]) -> int:
+        for line in lines:
+            print(f"error: {line}", file=sys.stderr)
+        return 2
+
+    bad_args = [f"--{name.replace('_', '-')}: is out of range (got {v!r}); allowed: {rule}"
+                for name, v, ok, rule in (
+                    ("at_kpa", args.at_kpa, args.at_kpa is None or args.at_kpa > 0, "> 0 kPa"),
+                    ("min_burst_margin", args.min_burst_margin,
+                     args.min_burst_margin is None or args.min_burst_margin >= 1, ">= 1"))
+                if not ok]
+    if bad_args:
+        return fail(bad_args)
+    mans, errors = _family_manifests(args.family_dir)
+    if errors:
+        return fail(errors)
+    family = mans[0].recipe
+    labels = [m.label for m in mans]
+    results_path = args.results or str(Path(args.family_dir) / results_name())
+    try:
+        res = read_results(results_path, labels)
+    except RecipeError as exc:
+        return fail(exc.lines())
+    kinds = {m.motion.kind for m in mans if m.motion is not None}
+    quantity = Quantity.BEND_DEG if "bending" in kinds or not kinds else Quantity.EXTENSION_MM
+    problems = []
+    if res.family != family:
+        problems.append(Problem("family", "is not the family in the folder", None, res.family,
+                                family))
+    for v in res.variants:
+        if v.quantity is not None and v.quantity is not quantity:
+            problems.append(Problem(f"variants.{v.label}.rows", f"measures {v.quantity.value}"
+                                    f", the model predicts {quantity.value}", v.line,
+                                    v.quantity.value, quantity.value))
+    maximise = Quantity(args.maximise) if args.maximise else res.goal.maximise or quantity
+    if maximise is not quantity:
+        problems.append(Problem("goal.maximise", "is not what the family's model predicts",
+                                None, maximise.value, quantity.value))
+    if not any(v.points for v in res.variants):
+        problems.append(Problem("variants", "hold no measured row yet", None, None,
+                                f"rows of {{pressure_kpa: P, {quantity.value}: value}}"))
+    if problems:
+        return fail(RecipeError(problems, res.source).lines())
+    works = {m.motion.working_pressure_kpa for m in mans if m.motion is not None}
+    at_kpa = args.at_kpa or res.goal.at_kpa or (next(iter(works)) if len(works) == 1 else None)
+    if at_kpa is None:
+        return fail([f"{res.source}: goal.at_kpa: is not given and the variants have no common "
+                     "working pressure; allowed: goal.at_kpa in the file or --at-kpa"])
+    margin = args.min_burst_margin or res.goal.min_burst_margin or 1.5
+
+    curves = {m.label: _curve(m) for m in mans}
+    pairs = [pair_up(v.label, *curves[v.label], [(p.pressure_kpa, p.value) for p in v.points])
+             for v in res.variants if v.points]
+    try:
+        fit = fit_factor(pairs)
+    except ValueError as exc:
+        print(f"note: no factor fitted: {exc}", file=sys.stderr)
+        fit = None
+    factor = fit.factor if fit is not None else None
+    candidates = []
+    for m in mans:
+        mv = res.variant(m.label)
+        rows = mv.points if mv is not None else ()
+        got = interpolate([p.pressure_kpa for p in rows], [p.value for p in rows], at_kpa)
+        measured = got is not None
+        if got is None and factor is not None:
+            pred = interpolate(*curves[m.label], at_kpa)
+            got = None if pred is None else pred / factor
+        burst = mv.burst_kpa if mv is not None else None
+        candidates.append(Candidate(m.label, got, measured,
+                                    None if burst is None else burst / at_kpa,
+                                    len(mv.defects) if mv is not None else 0,
+                                    mv is not None and mv.leak_kpa is not None
+                                    and mv.leak_kpa <= at_kpa))
+    ranking = rank(candidates, margin)
+    best = ranking[0]
+    defects = {mv.label: tuple(d.value for d in mv.defects) for mv in res.variants}
+
+    next_name, next_text = "", ""
+    next_rule = ("No next generation: no family recipe named (recipe: in the results file, "
+                 "or --recipe).")
+    recipe_path = args.recipe or (str(Path(res.source).parent / res.recipe)
+                                  if res.recipe else None)
+    field = None
+    if recipe_path is not None:
+        try:
+            text, label = read_text_file(recipe_path, "recipe")
+            field = swept_field(parse_recipe_text(text, label), label)
+            value = field.value_of(best.candidate.label)
+            if value is None:
+                return fail([f"{label}: variants: has no variant {best.candidate.label}; "
+                             f"allowed: {', '.join(field.labels)}"])
+            stem = Path(recipe_path).stem
+            ng = next_generation(text, label, stem, value)
+            next_name = f"{stem.split('-generation-')[0]}-generation-{ng.generation}.yaml"
+            # Checked where it will be written (a file it names is looked up from there).
+            variants_from_text(ng.text, str(Path(args.family_dir) / next_name), ng.name,
+                               Path(args.family_dir).resolve())
+        except RecipeError as exc:
+            return fail(exc.lines())
+        next_text = ng.text
+        next_rule = (f"Rule: best {best.candidate.label} ({field.path} = {value:g}) +- half "
+                     f"the step to its nearest neighbour, five values: "
+                     f"{', '.join(f'{x:g}' for x in ng.values)}.")
+
+    unit = "deg" if quantity is Quantity.BEND_DEG else "mm"
+    axis = "tip angle, deg" if quantity is Quantity.BEND_DEG else "extension, mm"
+    series = []
+    for m in mans:
+        mv = res.variant(m.label)
+        rows = mv.points if mv is not None else ()
+        x = field.value_of(m.label) if field is not None else None
+        caption = f"{field.path} = {x:g}" if field is not None and x is not None else ""
+        series.append(VariantSeries(m.label, caption, *curves[m.label],
+                                    tuple(p.pressure_kpa for p in rows),
+                                    tuple(p.value for p in rows)))
+    png, svg = render_comparison(ComparisonPlot(family, axis, tuple(series), factor))
+    relation = ("measured(P) = predicted(P) / f, f = E_effective / E_model (the linear model "
+                "theta = k P / E; least squares through the origin, t-interval)")
+    text_md = report_markdown(ReportText(
+        family, relation, factor, fit.low if fit else None, fit.high if fit else None,
+        fit.confidence if fit else 0.95, fit.points if fit else 0,
+        sum(p.beyond_model for p in pairs), fit.residual_sd if fit else None,
+        fit.per_variant_rms if fit else (),
+        f"largest {quantity.value} at {at_kpa:g} kPa with burst margin >= {margin:g}, "
+        "then fewest defects", unit,
+        tuple(RankRow(r.place, r.candidate.label, r.candidate.score, r.candidate.measured,
+                      r.candidate.burst_margin,
+                      defects.get(r.candidate.label, ()),
+                      r.why_not) for r in ranking),
+        next_name or "-", next_rule, CAUTIONS))
+    files = {f"{PLOT_STEM}.png": png, f"{PLOT_STEM}.svg": svg, REPORT_NAME: text_md}
+    if next_text:
+        files[next_name] = next_text.encode()
+    try:
+        written = write_report(Path(args.family_dir), files)
+    except OSError as exc:
+        print(f"error: cannot write under {args.family_dir}: {exc.strerror or exc}",
+              file=sys.stderr)
+        return 1
+    if fit is not None:
+        hi = "inf" if fit.high == float("inf") else f"{fit.high:.3f}"
+        print(f"{family}: modulus factor f = {fit.factor:.3f} ({fit.confidence * 100:g} % "
+              f"interval {fit.low:.3f} to {hi}, {fit.points} rows)")
+        for lb, rms in fit.per_variant_rms:
+            print(f"  {lb}: RMS residual {rms:.2f} {unit}")
+    for r in ranking:
+        c = r.candidate
+        score = "-" if c.score is None else f"{c.score:.1f} {unit}"
+        source = "" if c.measured or c.score is None else " (prediction / f)"
+        print(f"  {r.place}. {c.label} {score}{source}"
+              f"{'; ' + r.why_not if r.why_not else ''}")
+    print(next_rule)
+    print("wrote " + ", ".join(str(p) for p in written))
+    for line in CAUTIONS:
+        print(line)
+    return 0
+
+
 def cmd_schema(args: argparse.Namespace) -> int:
     from .recipe.json_schema import schema_text
 
@@ -431,6 +650,23 @@ def make_parser() -> argparse.ArgumentParser:
                                      "markers in FILE.")
     ref.add_argument("--update", metavar="FILE", help="rewrite the reference inside FILE")
     ref.set_defaults(func=cmd_reference)
+    rp = sub.add_parser("report", help="compare a cast family's measurements with the "
+                        "predictions", description="Read the manifests of the variants under "
+                        "FAMILY_DIR and the measured results (default: FAMILY_DIR/"
+                        "measured-results.yaml); draw measured against predicted motion, fit "
+                        "one modulus factor f (measured = predicted / f), rank the variants "
+                        "against the goal and write the next generation's recipe. Exit 2 on "
+                        "bad input (nothing written).")
+    rp.add_argument("family_dir", metavar="FAMILY_DIR", help="e.g. out/finger-family")
+    rp.add_argument("--results", metavar="FILE", help="the measured-results file")
+    rp.add_argument("--recipe", metavar="FILE",
+                    help="the family recipe (default: recipe: in the results file)")
+    rp.add_argument("--at-kpa", type=float, metavar="P", help="goal pressure, kPa")
+    rp.add_argument("--min-burst-margin", type=float, metavar="M",
+                    help="least burst pressure / goal pressure (default 1.5)")
+    rp.add_argument("--maximise", choices=("bend_deg", "extension_mm"),
+                    help="the quantity ranked (default: what the model predicts)")
+    rp.set_defaults(func=cmd_report)
     sch = sub.add_parser("schema", help="print the JSON Schema of a recipe (for editors)",
                          description="Print the JSON Schema (draft 2020-12) of a recipe file, "
                                      "generated from the same field declarations as the "

@@ -115,6 +115,32 @@ def write_atomic(path: Path, data: bytes) -> None:
     _fsync_directory(path.parent)
 
 
+def write_new(path: Path, data: bytes) -> bool:
+    """Create the file at ``path`` with ``data`` unless a file of that name exists; True
+    when written. The bytes are staged and fsynced in a temporary, then hard-linked to
+    ``path``: the link fails when the name is taken, so a person's file that appears
+    meanwhile is never overwritten, and a reader never sees a half-written file."""
+    path = Path(path)
+    if path.exists():
+        return False
+    _remove_dead_temps(path.parent, path.name)
+    tmp = path.with_name(f".{path.name}.{os.getpid()}.{next(_counter)}.tmp")
+    fd = os.open(tmp, os.O_WRONLY | os.O_CREAT | os.O_EXCL | os.O_CLOEXEC, 0o666)
+    try:
+        fcntl.flock(fd, fcntl.LOCK_EX)
+        _write_all(fd, data)
+        os.fsync(fd)
+        try:
+            os.link(tmp, path)
+        except FileExistsError:
+            return False
+    finally:
+        os.close(fd)
+        _remove_quietly(tmp)
+    _fsync_directory(path.parent)
+    return True
+
+
 def _remove_dead_temps(directory: Path, name: str | None = None) -> int:
     """Remove the temporaries (of file ``name``, or of any file) in ``directory`` whose
     writer is gone; returns how many."""

@@ -27,6 +27,7 @@ from .fieldwords import field_words
 from .files import json_bytes, write_atomic
 from .manifest import Manifest, ManifestError, read_manifest
 from .plates import family_plate_files, indexed_mesh
+from .results import template_bytes, write_template
 from .sheet import (
     SheetData,
     SheetVariant,
@@ -182,7 +183,7 @@ def _family_files(folder: Path, recipe: str, fam: str, members: Sequence[Reporte
     # here and the recipe hash on each row name the build instead.
     png, svg = render_sheet(SheetData(title, f"soft-molds {__version__}", tuple(rows),
                                       members[0].description, curves,
-                                      works.pop() if len(works) == 1 else None))
+                                      next(iter(works)) if len(works) == 1 else None))
     for ext, data in (("png", png), ("svg", svg)):
         p = folder / f"family-sheet{suffix}.{ext}"
         write_atomic(p, data)
@@ -191,6 +192,16 @@ def _family_files(folder: Path, recipe: str, fam: str, members: Sequence[Reporte
         for name, data in card_files(mans, title, f"casting-card{suffix}").items():
             write_atomic(folder / name, data)
             written.append(folder / name)
+    # The lab's results file for this family, only where none is yet (measurements are
+    # never overwritten; a later sweep of the same family leaves the filled file alone).
+    bending = any(m.motion is not None and m.motion.kind == "bending" for m in mans)
+    work = sorted(w for w in works if w is not None)
+    template = template_bytes(recipe, [(v.label, v.changed) for v in members],
+                              "bend_deg" if bending or not mans else "extension_mm",
+                              work[0] if len(work) == 1 else None)
+    made = write_template(folder, fam, template)
+    if made is not None:
+        written.append(made)
     stem = f"family-plate{suffix}"
     _, plates = family_plate_files(printed, title, stem)
     for name, data in plates.items():
