@@ -61,6 +61,10 @@ class Field:
     item: str = ""  # what a ``graded`` field gives one value to ("chamber")
     #: What the two numbers of each point of a ``points`` field are.
     coords: tuple[str, str] = ("x", "radius")
+    #: False for a field added after recipes were in use: left at its default, it is left
+    #: out of the recipe's echo (``Recipe.params``), so a recipe that does not use it keeps
+    #: its hash and its manifest.
+    echo_default: bool = True
 
     @property
     def required(self) -> bool:
@@ -112,15 +116,19 @@ def _list_allowed(f: Field) -> str:
 
 
 def number(name: str, doc: str, default: object = REQUIRED, *, unit: str = "mm",
-           lo: float | None = 0.0, hi: float | None = MAX_SIZE_MM, lo_open: bool = True) -> Field:
+           lo: float | None = 0.0, hi: float | None = MAX_SIZE_MM, lo_open: bool = True,
+           echo_default: bool = True) -> Field:
     """A number field. A length (unit mm) bounded below by 0 gets the absolute floor
     ``MIN_SIZE_MM``: a size (0 excluded) must reach it, a length that may be 0 is 0 or
     reaches it."""
     if unit == "mm" and lo == 0.0:
         if lo_open:
-            return Field(name, "number", doc, default, unit, MIN_SIZE_MM, hi, False)
-        return Field(name, "number", doc, default, unit, 0.0, hi, False, gap_below=MIN_SIZE_MM)
-    return Field(name, "number", doc, default, unit, lo, hi, lo_open)
+            return Field(name, "number", doc, default, unit, MIN_SIZE_MM, hi, False,
+                         echo_default=echo_default)
+        return Field(name, "number", doc, default, unit, 0.0, hi, False, gap_below=MIN_SIZE_MM,
+                     echo_default=echo_default)
+    return Field(name, "number", doc, default, unit, lo, hi, lo_open,
+                 echo_default=echo_default)
 
 
 def integer(name: str, doc: str, default: object = REQUIRED, *, lo: int = 1,

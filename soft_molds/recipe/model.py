@@ -194,7 +194,12 @@ class Recipe:
     def params(self) -> dict[str, Any]:
         """Every value that shapes the output, as plain JSON-ready data."""
         def kind_dict(obj: BodyKind | VoidKind) -> dict[str, Any]:
-            return {"kind": obj.KIND, **asdict(obj)}  # type: ignore[call-overload]
+            values = asdict(obj)  # type: ignore[call-overload]
+            # Fields added later are echoed only when set off their default.
+            for f in obj.FIELDS:
+                if not f.echo_default and values[f.name] == f.default:
+                    del values[f.name]
+            return {"kind": obj.KIND, **values}
 
         return {
             "name": self.name,

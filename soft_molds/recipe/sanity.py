@@ -11,6 +11,7 @@ from functools import partial
 import numpy as np
 
 from ..errors import Problem
+from . import voidgraph
 from .model import Recipe
 from .primitives import Primitive, union_sdf
 
@@ -82,6 +83,11 @@ def sanity_problems(r: Recipe, lines: dict[str, int]) -> list[Problem]:
                                                           r.inlet.socket_depth_mm) - EPS]
     _wall_problems(out, "inlet", line("inlet") or line(""), body, sock_samples, min_wall)
 
+    # A void is reached when it opens into the socket or overlaps a void that is (the
+    # void graph, exact for chambers and bores): one line per group reaching no inlet,
+    # on its first void, after that void's wall findings.
+    lost = {g[0]: g for g in voidgraph.unreached(
+        r.void_primitives(), lambda i: _opens_into_socket(r, r.voids[i]))}
     for i, (void, prims) in enumerate(zip(r.voids, r.void_primitives())):
         path = f"voids[{i}]"
         spacing = _spacing(prims)
@@ -95,23 +101,37 @@ def sanity_problems(r: Recipe, lines: dict[str, int]) -> list[Problem]:
         _wall_problems(out, path, line(path), body, samples, min_wall,
                        partial(_wall_keys, void, path))
         _socket_wall_problems(out, r, void, path, line, per_prim)
-
-        (ey, ez), er, ex = void.entry()
-        off = np.hypot(ey - cy, ez - cz)
-        # Reached when one passage holds the other at the inlet: the void's mouth inside
-        # the socket, or a void wider than the socket (a thin tube into a fat bore) round
-        # the whole socket section; whether its core still comes out through the socket is
-        # the core-extraction check's to say.
-        inside = off + er <= sock_r + EPS or off + sock_r <= er + EPS
-        if not inside or ex > r.inlet.socket_depth_mm:
-            out.append(Problem(path, "is not reached from the inlet socket",
-                               line(path), None,
-                               f"its entry (y, z) = ({ey:g}, {ez:g}) mm, radius {er:g} mm and "
-                               f"start x = {ex:g} mm must lie inside the socket "
-                               f"(centre ({cy:g}, {cz:g}), radius {sock_r:g} mm, depth "
-                               f"{r.inlet.socket_depth_mm:g} mm), or hold its whole section"))
+        if i in lost:
+            out.append(_unreached(r, lost[i], line(path)))
 
     return out
+
+
+def _unreached(r: Recipe, group: tuple[int, ...], at: int | None) -> Problem:
+    """The finding for a group of joined voids none of which opens into the socket."""
+    (ey, ez), er, ex = r.voids[group[0]].entry()
+    (cy, cz), sock_r = r.inlet.center_mm, r.inlet.socket_diameter_mm / 2.0
+    rest = ", ".join(f"voids[{i}]" for i in group[1:])
+    also = f" (nor is {rest}, joined to it)" if rest else ""
+    return Problem(f"voids[{group[0]}]", "is not reached from the inlet socket" + also, at,
+                   None, f"its entry (y, z) = ({ey:g}, {ez:g}) mm, radius {er:g} mm and "
+                   f"start x = {ex:g} mm must lie inside the socket (centre ({cy:g}, {cz:g}), "
+                   f"radius {sock_r:g} mm, depth {r.inlet.socket_depth_mm:g} mm), or hold its "
+                   "whole section; or the void must overlap a void that is reached")
+
+
+def _opens_into_socket(r: Recipe, void: object) -> bool:
+    """Whether ``void`` opens straight into the tube socket: one passage holds the other at
+    the inlet, the void's mouth inside the socket or a void wider than the socket (a thin
+    tube into a fat bore) round the whole socket section, starting within the socket's
+    depth. Whether its core still comes out through the socket is the core-extraction
+    check's to say."""
+    (ey, ez), er, ex = void.entry()  # type: ignore[attr-defined]
+    cy, cz = r.inlet.center_mm
+    sock_r = r.inlet.socket_diameter_mm / 2.0
+    off = np.hypot(ey - cy, ez - cz)
+    inside = off + er <= sock_r + EPS or off + sock_r <= er + EPS
+    return bool(inside and ex <= r.inlet.socket_depth_mm)
 
 
 def _wall_problems(out: list[Problem], path: str, line: int | None, body, samples: np.ndarray,

@@ -162,3 +162,24 @@ def test_chambers_above_a_rod_axis_match_the_closed_form(bundled):
     assert close(molds.void_volume_mm3, voids, 0.001)
     assert close(molds.part("cast").brep_volume_mm3, body - voids, 0.001)
     assert close(molds.part("cast").mesh.volume_mm3(), body - voids, 0.005)
+
+
+# ---- plenum finger: a chamber row fed through a wide bore, not the socket ---------------
+def test_row_fed_through_a_bore_is_one_void_of_the_union_volume(bundled):
+    """Union = sum of the parts less their pairwise overlaps (inclusion-exclusion; no point
+    lies in three parts). Socket r 2, x 0..6; bore r 3, x 3..17, coaxial: they share
+    pi 2^2 (6 - 3). Feed r 1 at z = 1, x 10..53.5 (the last chamber's middle, 19 + 4 x 8 +
+    2.5): within the bore for 17 - 10 = 7 mm (1 + 1 < 3), within each chamber's flat faces
+    for one depth (4 x 5 + 2.5). Five chambers 5 x 12 x 8 rounded by 1 (Steiner)."""
+    molds = bundled("plenum-finger")
+    body = rounded_box_volume(64.0, 16.0, 14.0, 2.0)
+    socket, bore = PI * 2.0 ** 2 * 6.0, PI * 3.0 ** 2 * 14.0
+    feed = PI * 1.0 ** 2 * (53.5 - 10.0)
+    chambers = 5 * rounded_box_volume(5.0, 12.0, 8.0, 1.0)
+    overlaps = PI * 2.0 ** 2 * 3.0 + PI * 1.0 ** 2 * (7.0 + 4 * 5.0 + 2.5)
+    voids = socket + bore + feed + chambers - overlaps
+    cast = molds.part("cast")
+    assert close(molds.volumes_mm3["body"], body, 0.001)
+    assert close(molds.void_volume_mm3, voids, 0.001), (molds.void_volume_mm3, voids)
+    assert close(cast.brep_volume_mm3, body - voids, 0.001)
+    assert close(cast.mesh.volume_mm3(), body - voids, 0.005)

@@ -49,6 +49,9 @@ class Chambers:
                None, lo=0.0, lo_open=False),
         pair("center_mm", "position (y, z) of the row's axis", (0.0, 0.0)),
         number("feed_diameter_mm", "diameter of the feed channel joining the chambers", 2.0),
+        number("feed_start_mm", "x where the feed channel starts: 0 at the inlet face, or "
+               "inside another void that feeds the row (then start_mm is required)", 0.0,
+               lo=0.0, lo_open=False, echo_default=False),
     )
     count: int
     pitch_mm: float | None
@@ -59,6 +62,7 @@ class Chambers:
     start_mm: float | None
     center_mm: tuple[float, float]
     feed_diameter_mm: float
+    feed_start_mm: float = 0.0
 
     @classmethod
     def cross_check(cls, v: Mapping[str, Any], path: str, line: int | None) -> list[Problem]:
@@ -89,7 +93,7 @@ class Chambers:
         if v["feed_diameter_mm"] / 2.0 > 0.9 * flat:
             out.append(Problem(f"{path}.feed_diameter_mm", "does not fit the chamber's flat face",
                                line, v["feed_diameter_mm"], f"at most {2 * 0.9 * flat:g} mm"))
-        return out
+        return out + _feed_problems(v, path, line)
 
     def sizes_mm(self, name: str) -> tuple[float, ...]:
         """One value per chamber (mm) of ``depth_mm``, ``width_mm`` or ``height_mm``."""
@@ -126,14 +130,16 @@ class Chambers:
     def feed_channel(self, body_length_mm: float) -> RoundedRod:
         end = (self.first_mm(body_length_mm) + (self.count - 1) * self._pitch
                + self.sizes_mm("depth_mm")[-1] / 2)
-        return RoundedRod("x", 0.0, end, self.center_mm, self.feed_diameter_mm / 2.0, 0.0)
+        start = self.feed_start_mm
+        return RoundedRod("x", start, end - start, self.center_mm, self.feed_diameter_mm / 2.0,
+                          0.0)
 
     def primitives(self, body_length_mm: float) -> tuple[Primitive, ...]:
         return (*self.chamber_boxes(body_length_mm), self.feed_channel(body_length_mm))
 
     def entry(self) -> Entry:
         """(y, z) of the passage at the inlet face, its radius, and the x where it starts."""
-        return Entry(self.center_mm, self.feed_diameter_mm / 2.0, 0.0)
+        return Entry(self.center_mm, self.feed_diameter_mm / 2.0, self.feed_start_mm)
 
     def membranes(self, body_length_mm: float) -> tuple[Membrane, ...]:
         """Top, bottom and side walls of every chamber, and the outer end walls of the
@@ -170,3 +176,19 @@ def _size_problems(v: Mapping[str, Any], path: str, line: int | None) -> list[Pr
                                {"from": s.from_mm, "to": s.to_mm},
                                "one number when count is 1"))
     return out
+
+
+def _feed_problems(v: Mapping[str, Any], path: str, line: int | None) -> list[Problem]:
+    """A feed channel starting past the inlet face needs the row placed, and must reach the
+    first chamber from the inlet side."""
+    start = v["feed_start_mm"]
+    if start == 0.0:
+        return []
+    if v["start_mm"] is None:
+        return [Problem(f"{path}.start_mm", "is required when the feed channel starts past "
+                        "the inlet face", line, None, f"a number, the x of the first "
+                        f"chamber's near face, at least feed_start_mm ({start:g} mm)")]
+    if start > v["start_mm"]:
+        return [Problem(f"{path}.feed_start_mm", "starts the feed channel past the first "
+                        "chamber", line, start, f"at most start_mm ({v['start_mm']:g} mm)")]
+    return []
