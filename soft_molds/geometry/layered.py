@@ -42,15 +42,11 @@ def turn_over(shape: cq.Shape) -> cq.Shape:
 
 
 def post_solid(p: Post) -> cq.Shape:
-    """The drafted post: its bond-face section extruded ``height_mm`` along +z with every
-    side leaning in by ``draft_deg`` (a tapered prism; the corner arcs become cones)."""
-    wp = cq.Workplane("XY", origin=(p.center_mm[0], p.center_mm[1], p.base_z_mm))
-    lx, ly = p.size_mm
-    if p.corner_radius_mm > 0.0:
-        sk = wp.sketch().rect(lx, ly).vertices().fillet(p.corner_radius_mm).finalize()
-        solid = sk.extrude(p.height_mm, taper=p.draft_deg).val()
-    else:
-        solid = wp.rect(lx, ly).extrude(p.height_mm, taper=p.draft_deg).val()
+    """The drafted post: its bond-face outline extruded ``height_mm`` along +z with every
+    side face leaning in by ``draft_deg`` (a tapered prism of planar faces)."""
+    wp = cq.Workplane("XY", origin=(0.0, 0.0, p.base_z_mm))
+    solid = wp.polyline(list(p.outline_mm())).close().extrude(p.height_mm,
+                                                              taper=p.draft_deg).val()
     return checked(solid, p.name, "post", volume_mm3=p.volume_mm3())
 
 

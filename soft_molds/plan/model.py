@@ -154,12 +154,20 @@ class PartPlan:
         return self.role is not Role.CAST
 
 
+#: Straight facets replacing each quarter-circle corner of a post (their vertices on the
+#: arc). A tapered prism on straight edges has every side face planar at exactly the
+#: draft, so the printed (meshed) post keeps its draft; a rounded corner would become a
+#: cone, whose mesh facets lean less than the cone does.
+CORNER_FACETS = 4
+
+
 @dataclass(frozen=True)
 class Post:
     """A drafted post of a layered mold (actuator frame, mm): at the bond face z =
-    ``base_z_mm`` a rectangle of ``size_mm`` (x, y) centred on ``center_mm`` (x, y) with
-    corners rounded ``corner_radius_mm``; it stands ``height_mm`` into the body (+z) and every
-    side leans in by ``draft_deg``. It forms the void ``name`` (the recipe's path)."""
+    ``base_z_mm`` a rectangle of ``size_mm`` (x, y) centred on ``center_mm`` (x, y), each
+    corner cut along the arc of radius ``corner_radius_mm`` by CORNER_FACETS facets; it
+    stands ``height_mm`` into the body (+z) and every side leans in by ``draft_deg``. It
+    forms the void ``name`` (the recipe's path)."""
 
     name: str
     center_mm: tuple[float, float]
@@ -169,14 +177,42 @@ class Post:
     height_mm: float
     draft_deg: float
 
-    def area_at_mm2(self, t_mm: float) -> float:
-        """Section area at height ``t_mm`` above the bond face: the rounded rectangle inset
-        by d = t tan(draft) (straight sides move in by d, corner radii shrink by d)."""
-        d = t_mm * math.tan(math.radians(self.draft_deg))
-        lx, ly = self.size_mm
+    def outline_mm(self) -> tuple[tuple[float, float], ...]:
+        """The section at the bond face, counter-clockwise (x, y)."""
+        cx, cy = self.center_mm
+        hx, hy = self.size_mm[0] / 2.0, self.size_mm[1] / 2.0
         r = self.corner_radius_mm
-        rr = max(r - d, 0.0) if r > 0.0 else 0.0
-        return (lx - 2 * d) * (ly - 2 * d) - (4.0 - math.pi) * rr * rr
+        if r <= 0.0:
+            return ((cx + hx, cy - hy), (cx + hx, cy + hy), (cx - hx, cy + hy),
+                    (cx - hx, cy - hy))
+        pts = []
+        for k, (sx, sy) in enumerate(((1, -1), (1, 1), (-1, 1), (-1, -1))):
+            ox, oy = cx + sx * (hx - r), cy + sy * (hy - r)
+            a0 = -math.pi / 2.0 + k * math.pi / 2.0
+            for j in range(CORNER_FACETS + 1):
+                a = a0 + j * (math.pi / 2.0) / CORNER_FACETS
+                pts.append((ox + r * math.cos(a), oy + r * math.sin(a)))
+        return tuple(pts)
+
+    def area_at_mm2(self, t_mm: float) -> float:
+        """Section area at height ``t_mm`` above the bond face: the outline with every edge
+        moved in by d = t tan(draft), A(d) = A - P d + d^2 sum tan(phi_i / 2) over the
+        exterior angles phi_i (a convex polygon's inner parallel; exact while no edge
+        vanishes)."""
+        d = t_mm * math.tan(math.radians(self.draft_deg))
+        pts = self.outline_mm()
+        n = len(pts)
+        area = 0.5 * sum(pts[i][0] * pts[(i + 1) % n][1] - pts[(i + 1) % n][0] * pts[i][1]
+                         for i in range(n))
+        edges = [(pts[(i + 1) % n][0] - pts[i][0], pts[(i + 1) % n][1] - pts[i][1])
+                 for i in range(n)]
+        perim = sum(math.hypot(ex, ey) for ex, ey in edges)
+        turn = 0.0
+        for i in range(n):
+            (ax, ay), (bx, by) = edges[i - 1], edges[i]
+            phi = math.atan2(ax * by - ay * bx, ax * bx + ay * by)
+            turn += math.tan(phi / 2.0)
+        return area - perim * d + d * d * turn
 
     def volume_mm3(self) -> float:
         """Closed form: the section area is quadratic in height, so Simpson's rule on the

@@ -23,7 +23,6 @@ from .model import (
     CastingSettings,
     Checks,
     Inflate,
-    Process,
     Inlet,
     LabelSettings,
     Material,
@@ -31,6 +30,7 @@ from .model import (
     MoldSettings,
     Parting,
     PrinterSettings,
+    Process,
     Recipe,
 )
 from .registry import body_kinds, void_kinds
