@@ -22,8 +22,6 @@ from .kernel import box, build_primitive, checked, cut, fuse, split_at
 PLATE_MM = 4.0
 #: Skirt of the post bridge: how far it reaches down over the tray's rim, and its wall (mm).
 SKIRT_DROP_MM, SKIRT_WALL_MM = 4.0, 2.0
-#: Height of the base tray's guide above the bond face (mm): it locates the pressed part.
-GUIDE_MM = 3.0
 
 
 @dataclass(frozen=True)
@@ -126,9 +124,12 @@ def _overflow_hole(r: Recipe, posts: tuple[Post, ...], bond: float) -> cq.Shape 
 def _base(r: Recipe, step: CastingStep, below: cq.Shape) -> LayerSolids:
     layer = step.layer
     assert layer is not None
-    lo, _ = r.body_bounds()
+    lo, hi = r.body_bounds()
     bond, wall, c = layer.bond_z_mm, layer.wall_mm, layer.clearance_mm
-    top = bond + GUIDE_MM
+    # The guide above the pocket locates the pressed part in x and y and ends level with
+    # the finished actuator's top: a flat plate laid across the rim stops the part with its
+    # bond face exactly on the base.
+    top = hi[2]
     guide = footprint_prism(layer.footprint.inset(-c), bond, top + 1.0, "tray")
     block = _block(r, c + wall, lo[2] - wall, top)
     tray = cut(block, [below, guide], "tray", "base tray")
