@@ -91,7 +91,9 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
     bond, wall = layer.bond_z_mm, layer.wall_mm
     posts = [post_solid(p) for p in layer.posts]
     cast = cut(above, posts, "cast", "chambered layer")
-    tray = cut(_block(r, wall, bond, hi[2] + wall), [above], "tray", "chambered tray")
+    # The feed groove's post runs on through the tray's inlet wall (so the groove opens
+    # cleanly on the inlet face): the wall takes its shape as a notch the post fills.
+    tray = cut(_block(r, wall, bond, hi[2] + wall), [above, *posts], "tray", "chambered tray")
     # The bridge: a plate on the tray's rim, a skirt over the rim's outside (locates it
     # in x and y), an overflow hole beyond the last chamber, and the posts below it.
     plate = _block(r, wall + layer.clearance_mm + SKIRT_WALL_MM, bond - PLATE_MM,
