@@ -45,6 +45,7 @@ def post_solid(p: Post) -> cq.Shape:
     wp = cq.Workplane("XY", origin=(0.0, 0.0, p.base_z_mm))
     solid = wp.polyline(list(p.outline_mm())).close().extrude(p.height_mm,
                                                               taper=p.draft_deg).val()
+    assert isinstance(solid, cq.Shape)
     return checked(solid, p.name, "post", volume_mm3=p.volume_mm3())
 
 
