@@ -263,12 +263,28 @@ def cmd_check(args: argparse.Namespace) -> int:
     variants, bad = _load(args.recipes)
     if bad:
         return 2
-    from .pipeline import build
+    from .pipeline import build, build_layered
 
     failed = []
     files: dict[str, bool] = {}  # recipe file -> every variant passed
     for _, r in variants:
         files.setdefault(r.source, True)
+        if r.process.layered:
+            # Layered steps are checked as closed parts; the manufacturability checks of
+            # the one-shot review do not run on trays yet.
+            try:
+                lm = build_layered(r)
+            except SoftMoldsError as exc:
+                failed.append(f"{r.source} {r.label}: {exc}".splitlines()[0])
+                files[r.source] = False
+                print(f"FAIL {r.source} {r.label}: {exc}")
+                continue
+            print(f"ok   {r.source}: {r.name} {r.label}, {len(lm.steps)} pours, "
+                  f"{sum(len(s.parts) for s in lm.steps)} parts closed and consistent")
+            for st in lm.steps:
+                for p in st.parts:
+                    print(_fmt_part(p))
+            continue
         try:
             molds = build(r)
         except SoftMoldsError as exc:
