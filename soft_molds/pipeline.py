@@ -16,6 +16,7 @@ from contextlib import contextmanager
 from dataclasses import replace
 
 from .analysis.integrity import check_mesh, require_ok
+from .analysis.layered import LayeredMoldSet
 from .errors import GeometryError, SoftMoldsError
 from .meshdata import TriMesh
 from .moldset import MoldSet, Part
@@ -56,6 +57,8 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     from .geometry import mold
     from .geometry.tessellate import tessellate_within
 
+    if recipe.process.layered:
+        raise ValueError(f"{recipe.name}: a layered recipe is built by build_layered")
     say = progress or (lambda _msg: None)
     timings: dict[str, float] = {}
     label = recipe.label
@@ -146,12 +149,12 @@ def _ranked_planes(plan: MoldPlan, cast_mesh: TriMesh, core_mesh: TriMesh
     return tuple(rank(scores))
 
 
-def build_layered(recipe: Recipe, progress: Callable[[str], None] | None = None):  # noqa: ANN201
+def build_layered(recipe: Recipe, progress: Callable[[str], None] | None = None
+                  ) -> LayeredMoldSet:
     """Plan, build, tessellate and check both steps of a layered recipe (see
     :mod:`soft_molds.plan.processes.layered`). Raises like :func:`build`."""
     from .analysis.integrity import check_mesh, require_ok
     from .analysis.layered import (
-        LayeredMoldSet,
         LayerStep,
         is_chambered,
         least_post_draft_deg,
