@@ -9,7 +9,7 @@ stands.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import cadquery as cq
 
@@ -93,8 +93,13 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
     posts = [post_solid(p) for p in layer.posts]
     cast = cut(above, posts, "cast", "chambered layer")
     # The feed groove's post runs on through the tray's inlet wall (so the groove opens
-    # cleanly on the inlet face): the wall takes its shape as a notch the post fills.
-    tray = cut(_block(r, wall, bond, hi[2] + wall), [above, *posts], "tray", "chambered tray")
+    # cleanly on the inlet face): the wall takes a notch open to the rim, the post's shape
+    # with the locating clearance on every side, so the bridge drops in wherever its skirt
+    # lets it sit.
+    notches = [post_solid(_grown(p, layer.clearance_mm)) for p in layer.posts
+               if p.center_mm[0] - p.size_mm[0] / 2.0 < 0.0]
+    tray = cut(_block(r, wall, bond, hi[2] + wall), [above, *notches], "tray",
+               "chambered tray")
     # The bridge: a plate on the tray's rim, a skirt over the rim's outside (locates it
     # in x and y), an overflow hole beyond the last chamber, and the posts below it.
     plate = _block(r, wall + layer.clearance_mm + SKIRT_WALL_MM, bond - PLATE_MM,
@@ -109,6 +114,12 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
     parts = {"tray": turn_over(tray), "post-bridge": turn_over(bridge),
              "cast": turn_over(cast)}
     return LayerSolids(parts, cast)
+
+
+def _grown(p: Post, by_mm: float) -> Post:
+    """``p`` wider by ``by_mm`` on every side (same height and draft)."""
+    return replace(p, name=f"{p.name} notch", size_mm=(p.size_mm[0] + 2 * by_mm,
+                                                       p.size_mm[1] + 2 * by_mm))
 
 
 def _overflow_hole(r: Recipe, posts: tuple[Post, ...], bond: float) -> cq.Shape | None:

@@ -230,11 +230,11 @@ class Recipe:
             "casting": asdict(self.casting),
             "label_settings": asdict(self.label_settings),
             "printer": asdict(self.printer),
+            # A one-shot recipe's values (and so its hash and manifest) are the same with
+            # or without a process block.
             **({"process": asdict(self.process)} if self.process.layered else {}),
         }
 
     def params_sha256(self) -> str:
-        # One-shot recipes hash as they did before the process block existed, so their
-        # manifests (and up-to-date checks) stay the same.
         canon = json.dumps(self.params(), sort_keys=True, separators=(",", ":"))
         return hashlib.sha256(canon.encode()).hexdigest()
