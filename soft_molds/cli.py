@@ -188,6 +188,9 @@ def cmd_build(args: argparse.Namespace) -> int:
     status = 0
     for _, r in variants:
         t = time.perf_counter()
+        if r.process.layered:
+            status = max(status, _build_layered(r, args.out))
+            continue
         try:
             molds = build(r)
         except SoftMoldsError as exc:
@@ -229,16 +232,59 @@ def cmd_build(args: argparse.Namespace) -> int:
     return status
 
 
+def _build_layered(r, out: str) -> int:
+    """Build and write a layered recipe: both steps' parts and the pours in order."""
+    from .export.layered import write_layered
+    from .pipeline import build_layered
+
+    t = time.perf_counter()
+    try:
+        m = build_layered(r)
+    except SoftMoldsError as exc:
+        print(f"error: {r.source}: {exc}", file=sys.stderr)
+        return 1
+    print(f"{r.name} {r.label}: built in {time.perf_counter() - t:.1f} s (layered, "
+          f"{len(m.steps)} pours)")
+    for s in m.steps:
+        print(f"  pour {s.index} ({s.name}): {mm3_to_cm3(s.pour.cast_mm3):.2f} cm3, mix "
+              f"{s.pour.mixed_g:.1f} g")
+        for p in s.parts:
+            print(_fmt_part(p))
+    try:
+        paths = write_layered(m, out)
+    except OSError as exc:
+        print(f"error: cannot write under {out}: {exc.strerror or exc}", file=sys.stderr)
+        return 1
+    print(f"  wrote {len(paths)} files to {paths[-1].parent}")
+    return 0
+
+
 def cmd_check(args: argparse.Namespace) -> int:
     variants, bad = _load(args.recipes)
     if bad:
         return 2
-    from .pipeline import build
+    from .pipeline import build, build_layered
 
     failed = []
     files: dict[str, bool] = {}  # recipe file -> every variant passed
     for _, r in variants:
         files.setdefault(r.source, True)
+        if r.process.layered:
+            # Layered steps are checked as closed parts; the manufacturability checks of
+            # the one-shot review do not run on trays yet.
+            try:
+                lm = build_layered(r)
+            except SoftMoldsError as exc:
+                failed.append(f"{r.source} {r.label}: {exc}".splitlines()[0])
+                files[r.source] = False
+                print(f"FAIL {r.source} {r.label}: {exc}")
+                continue
+            print(f"ok   {r.source}: {r.name} {r.label}, {len(lm.steps)} pours, "
+                  f"{sum(len(s.parts) for s in lm.steps)} parts closed and consistent")
+            for st in lm.steps:
+                for p in st.parts:
+                    print(_fmt_part(p))
+            continue
         try:
             molds = build(r)
         except SoftMoldsError as exc:

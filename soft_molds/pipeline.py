@@ -16,6 +16,7 @@ from contextlib import contextmanager
 from dataclasses import replace
 
 from .analysis.integrity import check_mesh, require_ok
+from .analysis.layered import LayeredMoldSet
 from .errors import GeometryError, SoftMoldsError
 from .meshdata import TriMesh
 from .moldset import MoldSet, Part
@@ -56,6 +57,8 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     from .geometry import mold
     from .geometry.tessellate import tessellate_within
 
+    if recipe.process.layered:
+        raise ValueError(f"{recipe.name}: a layered recipe is built by build_layered")
     say = progress or (lambda _msg: None)
     timings: dict[str, float] = {}
     label = recipe.label
@@ -144,3 +147,47 @@ def _ranked_planes(plan: MoldPlan, cast_mesh: TriMesh, core_mesh: TriMesh
                           lambda ax, off: first_rule_broken(r, ax, off),
                           r.checks.min_draft_deg)
     return tuple(rank(scores))
+
+
+def build_layered(recipe: Recipe, progress: Callable[[str], None] | None = None
+                  ) -> LayeredMoldSet:
+    """Plan, build, tessellate and check both steps of a layered recipe (see
+    :mod:`soft_molds.plan.processes.layered`). Raises like :func:`build`."""
+    from .analysis.integrity import check_mesh, require_ok
+    from .analysis.layered import (
+        LayerStep,
+        is_chambered,
+        least_post_draft_deg,
+        pour_quantities,
+    )
+    from .geometry.layered import build_layers
+    from .geometry.tessellate import tessellate_within
+
+    say = progress or (lambda _msg: None)
+    timings: dict[str, float] = {}
+    label = recipe.label
+    chord, angle = recipe.mesh.chord_mm, recipe.mesh.angle_deg
+    plan = plan_mold(recipe)
+    say("layers")
+    with _stage(timings, "layers", label):
+        solids = build_layers(recipe, plan.steps)
+    steps = []
+    for i, step in enumerate(plan.steps, start=1):
+        layer = step.layer
+        assert layer is not None
+        parts = []
+        for spec in step.parts:
+            solid = solids[step.name].parts[spec.name]
+            with _stage(timings, "tessellate", label):
+                vol = k_volume(solid)
+                mesh = tessellate_within(solid, chord, angle, f"{step.name} {spec.name}", vol)
+                report = check_mesh(mesh, f"{step.name} {spec.name}", vol)
+            require_ok(report, label)
+            parts.append(Part(spec.name, str(spec.role), solid, mesh, vol, spec.pull_dir,
+                              report))
+        cast = next(p for p in parts if p.role == Role.CAST)
+        draft = (least_post_draft_deg(next(p for p in parts if p.name == "post-bridge"), layer)
+                 if is_chambered(layer) else None)
+        steps.append(LayerStep(i, step.name, layer, tuple(parts),
+                               pour_quantities(recipe, cast.brep_volume_mm3), draft))
+    return LayeredMoldSet(plan, tuple(steps), timings)

@@ -192,8 +192,18 @@ def _check_name(name: str) -> None:
         )
 
 
+def _check_nested(name: str) -> None:
+    """``step/file``: one plain folder name and one plain file name."""
+    parts = name.split("/")
+    if len(parts) > 2:
+        raise ValueError(f"output file name {name!r} is nested more than one folder deep")
+    for p in parts:
+        _check_name(p)
+
+
 def write_file_set(
-    directory: Path, files: Mapping[str, bytes], last: str | None = None
+    directory: Path, files: Mapping[str, bytes], last: str | None = None,
+    subfolders: bool = False
 ) -> list[Path]:
     """Replace the folder ``directory`` as a whole by one holding exactly ``files``.
 
@@ -205,12 +215,13 @@ def write_file_set(
 
     On failure or a kill at any point, ``directory`` is the complete old folder (or absent,
     if there was none) or the complete new one. Returns the final paths in the mapping's
-    order.
+    order. ``subfolders``: names may be ``folder/file`` (one level; the folders are made in
+    the staging folder, so they appear with the rest).
     """
     directory = Path(directory)
     names = list(files)
     for name in names:
-        _check_name(name)
+        (_check_nested if subfolders else _check_name)(name)
     if last is not None and last not in files:
         raise ValueError(f"last={last!r} is not one of the files to write: {names}")
     if directory.name in ("", ".", ".."):
@@ -231,6 +242,9 @@ def _replace_folder(final: Path, items: list[tuple[str, bytes]]) -> None:
     new = final.with_name(f".{final.name}.{tag}.new")
     os.mkdir(new)
     try:
+        subs = sorted({name.split("/")[0] for name, _ in items if "/" in name})
+        for sub in subs:
+            os.mkdir(new / sub)
         for name, data in items:
             fd = os.open(new / name, os.O_WRONLY | os.O_CREAT | os.O_EXCL | os.O_CLOEXEC, 0o666)
             try:
@@ -238,6 +252,8 @@ def _replace_folder(final: Path, items: list[tuple[str, bytes]]) -> None:
                 os.fsync(fd)
             finally:
                 os.close(fd)
+        for sub in subs:
+            _fsync_directory(new / sub)
         _fsync_directory(new)
         old = _swap_in(new, final, tag)
     except BaseException:

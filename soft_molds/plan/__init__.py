@@ -32,7 +32,7 @@ __all__ = ["CastingStep", "ChosenBy", "CoreSupport", "Inlet", "Layout", "MoldPla
            "OpeningKind", "PartPlan", "PartingPlane", "PlaneScore", "Role", "plan_mold",
            "plan_problems", "with_openings", "with_parting"]
 
-#: The process every recipe uses until recipes can name another.
+#: The process of a recipe without a ``process`` block.
 DEFAULT_PROCESS = "one-shot"
 
 
@@ -42,6 +42,10 @@ def plan_problems(r: Recipe) -> list[Problem]:
     out = frame_problems(r, line)
     if out:
         return out
+    if r.process.layered:
+        from .processes.layered import layered_problems
+
+        return layered_problems(r, line)
     if not r.parting.auto:
         assert r.parting.offset_mm is not None
         return parting_problems(r, r.parting.axis, r.parting.offset_mm, line)
@@ -80,7 +84,7 @@ def plan_mold(r: Recipe) -> MoldPlan:
     problems = plan_problems(r)
     if problems:
         raise RecipeError(problems, r.source or "recipe")
-    return MoldPlan(r, r.params_sha256(), steps_of(DEFAULT_PROCESS, r))
+    return MoldPlan(r, r.params_sha256(), steps_of(r.process.kind, r))
 
 
 def with_parting(plan: MoldPlan, ranked: tuple[PlaneScore, ...]) -> MoldPlan:

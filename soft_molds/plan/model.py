@@ -10,6 +10,7 @@ through the inlet socket.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, replace
 from enum import StrEnum
 
@@ -153,6 +154,124 @@ class PartPlan:
         return self.role is not Role.CAST
 
 
+#: Straight facets replacing each quarter-circle corner of a post (their vertices on the
+#: arc). A tapered prism on straight edges has every side face planar at exactly the
+#: draft, so the printed (meshed) post keeps its draft; a rounded corner would become a
+#: cone, whose mesh facets lean less than the cone does.
+CORNER_FACETS = 4
+
+
+@dataclass(frozen=True)
+class Post:
+    """A drafted post of a layered mold (actuator frame, mm): at the bond face z =
+    ``base_z_mm`` a rectangle of ``size_mm`` (x, y) centred on ``center_mm`` (x, y), each
+    corner cut along the arc of radius ``corner_radius_mm`` by CORNER_FACETS facets; it
+    stands ``height_mm`` into the body (+z) and every side leans in by ``draft_deg``. It
+    forms the void ``name`` (the recipe's path)."""
+
+    name: str
+    center_mm: tuple[float, float]
+    size_mm: tuple[float, float]
+    corner_radius_mm: float
+    base_z_mm: float
+    height_mm: float
+    draft_deg: float
+
+    def outline_mm(self) -> tuple[tuple[float, float], ...]:
+        """The section at the bond face, counter-clockwise (x, y)."""
+        cx, cy = self.center_mm
+        hx, hy = self.size_mm[0] / 2.0, self.size_mm[1] / 2.0
+        r = self.corner_radius_mm
+        if r <= 0.0:
+            return ((cx + hx, cy - hy), (cx + hx, cy + hy), (cx - hx, cy + hy),
+                    (cx - hx, cy - hy))
+        pts = []
+        for k, (sx, sy) in enumerate(((1, -1), (1, 1), (-1, 1), (-1, -1))):
+            ox, oy = cx + sx * (hx - r), cy + sy * (hy - r)
+            a0 = -math.pi / 2.0 + k * math.pi / 2.0
+            for j in range(CORNER_FACETS + 1):
+                a = a0 + j * (math.pi / 2.0) / CORNER_FACETS
+                pts.append((ox + r * math.cos(a), oy + r * math.sin(a)))
+        return tuple(pts)
+
+    def area_at_mm2(self, t_mm: float) -> float:
+        """Section area at height ``t_mm`` above the bond face: the outline with every edge
+        moved in by d = t tan(draft), A(d) = A - P d + d^2 sum tan(phi_i / 2) over the
+        exterior angles phi_i (a convex polygon's inner parallel; exact while no edge
+        vanishes)."""
+        d = t_mm * math.tan(math.radians(self.draft_deg))
+        pts = self.outline_mm()
+        n = len(pts)
+        area = 0.5 * sum(pts[i][0] * pts[(i + 1) % n][1] - pts[(i + 1) % n][0] * pts[i][1]
+                         for i in range(n))
+        edges = [(pts[(i + 1) % n][0] - pts[i][0], pts[(i + 1) % n][1] - pts[i][1])
+                 for i in range(n)]
+        perim = sum(math.hypot(ex, ey) for ex, ey in edges)
+        turn = 0.0
+        for i in range(n):
+            (ax, ay), (bx, by) = edges[i - 1], edges[i]
+            phi = math.atan2(ax * by - ay * bx, ax * bx + ay * by)
+            turn += math.tan(phi / 2.0)
+        return area - perim * d + d * d * turn
+
+    def volume_mm3(self) -> float:
+        """Closed form: the section area is quadratic in height, so Simpson's rule on the
+        two end sections and the middle one is exact."""
+        h = self.height_mm
+        return h / 6.0 * (self.area_at_mm2(0.0) + 4 * self.area_at_mm2(h / 2)
+                          + self.area_at_mm2(h))
+
+
+class LayerKind(StrEnum):
+    """``chambered``: the first step, an open tray (floor = the actuator's outer top) with
+    a post bridge on its rim; ``base``: the second step, a tray holding the liquid base
+    layer the chambered part is pressed into."""
+
+    CHAMBERED = "chambered"
+    BASE = "base"
+
+
+@dataclass(frozen=True)
+class Footprint:
+    """The body's section at the bond face (mm, x-y): a rectangle of ``size_mm`` centred
+    on ``center_mm`` with corners rounded ``corner_radius_mm``."""
+
+    center_mm: tuple[float, float]
+    size_mm: tuple[float, float]
+    corner_radius_mm: float
+
+    def inset(self, d_mm: float) -> Footprint:
+        """Moved in by ``d_mm`` (out when negative): the parallel curve of a rounded
+        rectangle is a rounded rectangle whose corner radius changes by the same amount."""
+        lx, ly = self.size_mm
+        return Footprint(self.center_mm, (lx - 2 * d_mm, ly - 2 * d_mm),
+                         max(self.corner_radius_mm - d_mm, 0.0))
+
+    def area_mm2(self) -> float:
+        lx, ly = self.size_mm
+        return lx * ly - (4.0 - math.pi) * self.corner_radius_mm ** 2
+
+
+@dataclass(frozen=True)
+class Layer:
+    """One step of the layered process (actuator frame: the bond face is z =
+    ``bond_z_mm``; the chambered layer lies above it, the base layer below). The chambered
+    step's parts are built turned over (a half turn about x) into pour orientation, so its
+    posts pull along +z; the base step is poured as the actuator stands."""
+
+    kind: LayerKind
+    bond_z_mm: float
+    footprint: Footprint
+    posts: tuple[Post, ...]
+    clearance_mm: float
+    wall_mm: float
+    sheet_inset_mm: float | None = None
+
+    @property
+    def turned_over(self) -> bool:
+        return self.kind is LayerKind.CHAMBERED
+
+
 @dataclass(frozen=True)
 class CastingStep:
     """One pour: the mold that is closed around the core(s) and filled.
@@ -167,10 +286,20 @@ class CastingStep:
     layout: Layout | None
     candidates: tuple[PlaneScore, ...] = ()
     openings: tuple[Opening, ...] = ()
+    #: Set for the steps of the layered process (trays instead of two shells and a core).
+    layer: Layer | None = None
 
     @property
     def parts(self) -> tuple[PartPlan, ...]:
-        """shell-lower, shell-upper, core, cast, in the order files and reports list them."""
+        """shell-lower, shell-upper, core, cast, in the order files and reports list them;
+        for a layered step tray, post-bridge (chambered only) and cast, pulls in pour
+        orientation."""
+        if self.layer is not None:
+            down, up = unit(2, -1.0), unit(2)
+            bridge = ((PartPlan("post-bridge", Role.CORE, up),)
+                      if self.layer.kind is LayerKind.CHAMBERED else ())
+            return (PartPlan("tray", Role.SHELL, down), *bridge,
+                    PartPlan("cast", Role.CAST, None))
         p = self.settled_parting
         return (PartPlan("shell-lower", Role.SHELL, p.down),
                 PartPlan("shell-upper", Role.SHELL, p.up),

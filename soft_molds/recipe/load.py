@@ -30,6 +30,7 @@ from .model import (
     MoldSettings,
     Parting,
     PrinterSettings,
+    Process,
     Recipe,
 )
 from .registry import body_kinds, void_kinds
@@ -380,7 +381,8 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
         material=Material(**blocks["material"], silicone=silicone, blend=blend),
         inflate=Inflate(working), casting=CastingSettings(**blocks["casting"]),
         label_settings=LabelSettings(**lab),
-        printer=PrinterSettings(**blocks["printer"]), source=source, lines=lines)
+        printer=PrinterSettings(**blocks["printer"]), source=source,
+        process=Process(**blocks["process"]), lines=lines)
 
     found = sanity_problems(recipe, lines)
     problems.extend(found)

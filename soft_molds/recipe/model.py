@@ -145,6 +145,24 @@ class MeshSettings:
 
 
 @dataclass(frozen=True)
+class Process:
+    """How the actuator is cast: ``kind`` "one-shot" or "layered"; for layered, the draft on
+    the first step's posts (deg), the base layer's thickness (mm, from the body's bottom to
+    the bond face), the strain-limiting sheet's inset from the footprint (mm) and the sheet
+    ("paper", "fabric" or "none")."""
+
+    kind: str = "one-shot"
+    draft_deg: float = 1.0
+    base_mm: float = 4.0
+    cover_margin_mm: float = 2.0
+    sheet: str = "paper"
+
+    @property
+    def layered(self) -> bool:
+        return self.kind == "layered"
+
+
+@dataclass(frozen=True)
 class Recipe:
     """A validated recipe. ``body`` and ``voids`` are instances of registered kinds (see
     :mod:`.contracts` for what they provide and the frame they share)."""
@@ -165,6 +183,7 @@ class Recipe:
     label_settings: LabelSettings
     printer: PrinterSettings
     source: str = ""
+    process: Process = field(default_factory=Process)
     #: Field path -> source line, for problems found after loading (the plan stage's).
     lines: Mapping[str, int] = field(default_factory=dict, compare=False, repr=False)
 
@@ -216,6 +235,9 @@ class Recipe:
             "casting": asdict(self.casting),
             "label_settings": asdict(self.label_settings),
             "printer": asdict(self.printer),
+            # A one-shot recipe's values (and so its hash and manifest) are the same with
+            # or without a process block.
+            **({"process": asdict(self.process)} if self.process.layered else {}),
         }
 
     def params_sha256(self) -> str:

@@ -136,6 +136,24 @@ MESH_FIELDS: tuple[Field, ...] = (
            unit="deg", lo=1.0, hi=30.0, lo_open=False),
 )
 
+PROCESS_FIELDS: tuple[Field, ...] = (
+    choice("kind", "how the actuator is cast: one-shot (one pour into a two-part shell "
+           "around a pull-out core) or layered (a chambered layer poured in an open tray "
+           "around posts, then pressed face down onto a liquid base layer)",
+           ("one-shot", "layered"), "one-shot"),
+    number("draft_deg", "draft on the posts of the layered first step (1 deg or more "
+           "releases cleanly from a printed post; common practice)", 1.0, unit="deg",
+           lo=0.5, hi=10.0, lo_open=False),
+    number("base_mm", "thickness of the base layer poured in the layered second step; the "
+           "bond face lies this far above the body's bottom", 4.0, lo=1.0, hi=50.0,
+           lo_open=False),
+    number("cover_margin_mm", "how far the strain-limiting sheet stays inside the "
+           "footprint, so silicone covers its edge (layered)", 2.0, lo=0.0, hi=20.0,
+           lo_open=False),
+    choice("sheet", "strain-limiting sheet laid on the liquid base layer (layered)",
+           ("paper", "fabric", "none"), "paper"),
+)
+
 BLOCKS: dict[str, tuple[Field, ...]] = {
     "inlet": INLET_FIELDS,
     "parting": PARTING_FIELDS,
@@ -147,4 +165,5 @@ BLOCKS: dict[str, tuple[Field, ...]] = {
     "marking": LABEL_FIELDS,
     "printer": PRINTER_FIELDS,
     "mesh": MESH_FIELDS,
+    "process": PROCESS_FIELDS,
 }

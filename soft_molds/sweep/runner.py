@@ -7,6 +7,7 @@ from __future__ import annotations
 import os
 import resource
 import time
+from collections.abc import Callable
 
 from ..analysis.findings import Finding, counts, refuses_to_write, verdict
 from ..errors import SoftMoldsError
@@ -38,6 +39,8 @@ def run_variant(recipe: Recipe, out_root: str, force: bool = False) -> Outcome:
                        out_dir=str(d), worker_pid=os.getpid(),
                        worker_rss_mb=_rss_mb(), worker_peak_mb=_peak_mb())
 
+    if recipe.process.layered:
+        return _run_layered(recipe, out_root, done)
     try:
         molds = build(recipe)
     except SoftMoldsError as exc:
@@ -56,6 +59,24 @@ def run_variant(recipe: Recipe, out_root: str, force: bool = False) -> Outcome:
         round(molds.silicone_volume_mm3, 3),
         () if molds.casting is None else (p.grams for p in molds.casting.quantities.portions)),
         motion_figures(molds.manifest().motion))
+
+
+def _run_layered(recipe: Recipe, out_root: str, done: Callable[..., Outcome]) -> Outcome:
+    """A layered variant: both steps built and written (no review of trays yet, so no
+    findings and no verdict to refuse on)."""
+    from ..export.layered import write_layered
+    from ..pipeline import build_layered
+
+    try:
+        m = build_layered(recipe)
+    except SoftMoldsError as exc:
+        return done(Status.FAILED, str(exc).splitlines()[0])
+    try:
+        write_layered(m, out_root)
+    except OSError as exc:
+        return done(Status.FAILED, f"cannot write: {exc.strerror or exc}")
+    grams = [p.grams for s in m.steps for p in s.pour.portions]
+    return done(Status.BUILT, "", (), report_figures(round(m.silicone_volume_mm3, 3), grams))
 
 
 def _rss_mb() -> float:

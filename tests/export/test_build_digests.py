@@ -24,13 +24,14 @@ RECIPES = sorted((ROOT / "recipes").glob("*.yaml"))
 
 def _digests_of_folder(folder: Path, prefix: str) -> dict[str, str]:
     out = {}
-    for path in sorted(folder.iterdir()):
+    # Files of step folders (layered recipes) are named by their path in the folder.
+    for path in sorted(p for p in folder.rglob("*") if p.is_file()):
         data = path.read_bytes()
         if path.name == "manifest.json":
             man = json.loads(data)
             man.pop("timings_s", None)
             data = json.dumps(man, sort_keys=True).encode()
-        out[f"{prefix}/{path.name}"] = hashlib.sha256(data).hexdigest()
+        out[f"{prefix}/{path.relative_to(folder).as_posix()}"] = hashlib.sha256(data).hexdigest()
     return out
 
 
@@ -42,10 +43,14 @@ def _variants():
 
 def _digests_of(recipe, molds=None) -> dict[str, str]:
     from soft_molds import build
+    from soft_molds.export.layered import write_layered
+    from soft_molds.pipeline import build_layered
 
-    molds = molds if molds is not None else build(recipe)
     with tempfile.TemporaryDirectory() as tmp:
-        molds.export(tmp)
+        if recipe.process.layered:
+            write_layered(molds if molds is not None else build_layered(recipe), tmp)
+        else:
+            (molds if molds is not None else build(recipe)).export(tmp)
         return _digests_of_folder(Path(tmp) / recipe.name / recipe.label,
                                   f"{recipe.name}/{recipe.label}")
 
@@ -62,11 +67,13 @@ _IDS = [f"{p.stem}-{r.label}" for p, r in _variants()]
 
 @pytest.mark.parametrize("index", range(len(_IDS)), ids=_IDS)
 def test_every_written_file_matches_the_recorded_digest(index):
-    from conftest import built_variant
+    from conftest import LAYERED, built_layered, built_variant
 
     path, recipe = _variants()[index]
     # Every variant is built once per session and shared with the other tests.
-    got = _digests_of(recipe, built_variant(path.stem, recipe.label))
+    shared = (built_layered(path.stem) if path.stem in LAYERED
+              else built_variant(path.stem, recipe.label))
+    got = _digests_of(recipe, shared)
     want = {k: v for k, v in json.loads(RECORD.read_text()).items()
             if k.startswith(f"{recipe.name}/{recipe.label}/")}
     assert sorted(got) == sorted(want), "a different set of files was written"

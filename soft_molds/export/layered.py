@@ -1,0 +1,166 @@
+"""Files of a layered build (see :mod:`soft_molds.plan.processes.layered`), written as one
+variant folder: per step a folder ``step-<n>-<name>/`` with its parts' STL files (pour
+orientation), the base step's strain-limiting sheet template (``sheet.svg``, 1:1), and at
+the top the casting card (both pours in order) and ``manifest.json`` listing the steps in
+order with every file's SHA-256, written last.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import math
+import os
+from collections.abc import Sequence
+from pathlib import Path
+from typing import Any
+
+from ..analysis.layered import LayeredMoldSet, LayerStep
+from ..plan.model import Footprint
+from ..units import mm3_to_cm3
+from ..version import __version__
+from .card import CAUTIONS
+from .files import json_bytes, write_file_set
+from .stl import encode_binary_stl
+from .writer import output_dir
+
+MANIFEST_NAME = "manifest.json"
+CARD_NAME = "casting-card.md"
+SHEET_NAME = "sheet.svg"
+#: Length of the sheet template's scale bar (mm): measure it to check the print is 1:1.
+SCALE_BAR_MM = 50.0
+#: Margin around the outline on the template page (mm).
+PAGE_MARGIN_MM = 10.0
+#: Straight pieces per degree of a rounded corner on the template (chord error below
+#: 0.1 micrometre for the corner radii of a finger).
+ARC_STEPS_PER_DEG = 1
+
+SHEETS = {"paper": "paper (ordinary copy paper)", "fabric": "a thin woven fabric"}
+
+
+def sheet_outline(f: Footprint) -> list[tuple[float, float]]:
+    """The outline of ``f`` counter-clockwise (x, y in mm), corners as short chords."""
+    cx, cy = f.center_mm
+    hx, hy = f.size_mm[0] / 2.0, f.size_mm[1] / 2.0
+    r = f.corner_radius_mm
+    if r <= 0.0:
+        return [(cx + hx, cy - hy), (cx + hx, cy + hy), (cx - hx, cy + hy), (cx - hx, cy - hy)]
+    pts = []
+    n = 90 * ARC_STEPS_PER_DEG
+    for k, (sx, sy) in enumerate(((1, -1), (1, 1), (-1, 1), (-1, -1))):
+        ox, oy = cx + sx * (hx - r), cy + sy * (hy - r)
+        for j in range(n + 1):
+            a = math.radians(-90.0 + 90.0 * k + 90.0 * j / n)
+            pts.append((ox + r * math.cos(a), oy + r * math.sin(a)))
+    return pts
+
+
+def sheet_svg(outline: Sequence[tuple[float, float]], caption: str) -> bytes:
+    """A 1:1 SVG page (user unit = 1 mm) with the cut outline (``id="sheet-outline"``),
+    a caption and a scale bar. SVG's y axis points down: y is flipped, so the template lies
+    as the part does seen from above."""
+    xs, ys = [p[0] for p in outline], [p[1] for p in outline]
+    x0, y1 = min(xs) - PAGE_MARGIN_MM, max(ys) + PAGE_MARGIN_MM
+    w = max(max(xs) - min(xs), SCALE_BAR_MM) + 2 * PAGE_MARGIN_MM
+    h = max(ys) - min(ys) + 2 * PAGE_MARGIN_MM + 16.0
+    pts = " ".join(f"{x - x0:.4f},{y1 - y:.4f}" for x, y in outline)
+    bar_y = max(ys) - min(ys) + 2 * PAGE_MARGIN_MM
+    text = (f'<?xml version="1.0" encoding="UTF-8"?>\n'
+            f'<svg xmlns="http://www.w3.org/2000/svg" width="{w:.4f}mm" height="{h:.4f}mm" '
+            f'viewBox="0 0 {w:.4f} {h:.4f}">\n'
+            f'  <polygon id="sheet-outline" points="{pts}" fill="none" stroke="black" '
+            f'stroke-width="0.2"/>\n'
+            f'  <line id="scale-bar" x1="{PAGE_MARGIN_MM:.4f}" y1="{bar_y:.4f}" '
+            f'x2="{PAGE_MARGIN_MM + SCALE_BAR_MM:.4f}" y2="{bar_y:.4f}" stroke="black" '
+            f'stroke-width="0.4"/>\n'
+            f'  <text x="{PAGE_MARGIN_MM:.4f}" y="{bar_y + 6:.4f}" font-size="3.5">'
+            f'{caption}; the bar is {SCALE_BAR_MM:g} mm: print at 100 %</text>\n'
+            f'</svg>\n')
+    return text.encode()
+
+
+def step_files(s: LayerStep, label: str) -> dict[str, bytes]:
+    out = {f"{s.folder}/{p.name}.stl": encode_binary_stl(p.mesh, f"{label} {s.name} {p.name}")
+           for p in s.parts}
+    inset = s.layer.sheet_inset_mm
+    if inset is not None:
+        out[f"{s.folder}/{SHEET_NAME}"] = sheet_svg(
+            sheet_outline(s.layer.footprint.inset(inset)),
+            f"{label}: strain-limiting sheet, cut on the line")
+    return out
+
+
+def _pour_line(s: LayerStep) -> str:
+    q = s.pour
+    weigh = ", ".join(f"{p.what} {p.grams:g} g" for p in q.portions)
+    return (f"{mm3_to_cm3(q.cast_mm3):.2f} cm3 of silicone "
+            f"({mm3_to_cm3(q.mixed_mm3):.2f} cm3 mixed with {q.waste_pct:g} % waste: {weigh})")
+
+
+def card_text(m: LayeredMoldSet) -> bytes:
+    r = m.recipe
+    first, second = m.steps
+    sheet = SHEETS.get(r.process.sheet)
+    lines = [f"# Casting card: {r.name} {r.label} (layered, two pours)", "",
+             r.description, "",
+             f"Silicone: {r.material.silicone.name}. The finished actuator holds "
+             f"{mm3_to_cm3(m.silicone_volume_mm3):.2f} cm3.", "", "## Pours, in order", "",
+             f"1. {first.folder}: the chambered layer, {_pour_line(first)}. Fill the tray to "
+             f"its rim, lower the post bridge straight down onto the rim (its skirt locates "
+             f"it; the excess rises through the overflow hole) and let it cure. Pull the "
+             f"bridge straight up, then lift the part out of the tray.",
+             f"2. {second.folder}: the base layer, {_pour_line(second)}. Pour the weighed "
+             f"base into the tray's pocket (it fills it to the bond face, where the wider "
+             f"guide begins)"
+             + (f", lay the sheet of {sheet} cut to {SHEET_NAME} on the liquid base"
+                if sheet is not None else "")
+             + ", press the cured chambered part face down into the guide with a flat "
+             "plate until the plate rests on the tray's rim, and let it cure.", "",
+             "Posts drafted "
+             f"{r.process.draft_deg:g} deg (least measured on the mesh: "
+             f"{first.least_post_draft_deg:.3f} deg).", "",
+             "The feed groove opens on the inlet face: seal a tube into it with a drop of "
+             "the same silicone.", "", "## Cautions", ""]
+    lines += [f"- {c}" for c in CAUTIONS]
+    return ("\n".join(lines) + "\n").encode()
+
+
+def manifest_of(m: LayeredMoldSet, files: dict[str, bytes]) -> dict[str, Any]:
+    r = m.recipe
+    steps = []
+    for s in m.steps:
+        steps.append({
+            "index": s.index, "name": s.name, "folder": s.folder,
+            "parts": [{"name": p.name, "role": p.role, "file": f"{s.folder}/{p.name}.stl",
+                       "printable": p.role != "cast", "volume_mm3": p.brep_volume_mm3,
+                       "pull_dir": None if p.pull_dir is None else list(p.pull_dir)}
+                      for p in s.parts],
+            "pour": {"cast_mm3": s.pour.cast_mm3, "mixed_mm3": s.pour.mixed_mm3,
+                     "mixed_g": s.pour.mixed_g,
+                     "portions": [{"what": p.what, "grams": p.grams} for p in s.pour.portions]},
+            "least_post_draft_deg": s.least_post_draft_deg,
+        })
+    return {"format": "soft-molds layered manifest", "version": __version__,
+            "recipe": r.name, "label": r.label, "params_sha256": m.plan.source_params_sha256,
+            "process": {"kind": r.process.kind, "draft_deg": r.process.draft_deg,
+                        "base_mm": r.process.base_mm,
+                        "cover_margin_mm": r.process.cover_margin_mm,
+                        "sheet": r.process.sheet},
+            "actuator_volume_mm3": m.silicone_volume_mm3, "steps": steps,
+            "files": {k: hashlib.sha256(v).hexdigest() for k, v in sorted(files.items())}}
+
+
+def encode_layered(m: LayeredMoldSet) -> dict[str, bytes]:
+    """Every file of ``m`` (relative path -> bytes), the manifest last."""
+    files: dict[str, bytes] = {}
+    for s in m.steps:
+        files.update(step_files(s, m.recipe.label_text))
+    files[CARD_NAME] = card_text(m)
+    files[MANIFEST_NAME] = json_bytes(manifest_of(m, files))
+    return files
+
+
+def write_layered(m: LayeredMoldSet, root: str | os.PathLike[str] = "out") -> list[Path]:
+    """Write ``m`` under ``root/<recipe>/<label>/`` as a whole (see
+    :func:`soft_molds.export.files.write_file_set`)."""
+    directory = output_dir(root, m.recipe.name, m.recipe.label)
+    return write_file_set(directory, encode_layered(m), last=MANIFEST_NAME, subfolders=True)

@@ -1,0 +1,150 @@
+"""Solids of the layered process (see :mod:`soft_molds.plan.processes.layered`).
+
+Built in the actuator frame (mm; body from the inlet face x = 0, z up, the bond face z =
+``layer.bond_z_mm``); the chambered step's parts are then turned over (a half turn about
+the x axis: (x, y, z) -> (x, -y, -z)) into pour orientation, where the tray's floor is at
+the bottom and the post bridge pulls along +z. The base step is poured as the actuator
+stands.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+
+import cadquery as cq
+
+from ..plan.model import CastingStep, Footprint, LayerKind, Post
+from ..recipe.model import Recipe
+from ..recipe.primitives import RoundedBox
+from .kernel import box, build_primitive, checked, cut, fuse, split_at
+
+#: Thickness of the post bridge's plate (mm): stiff enough not to sag between the posts.
+PLATE_MM = 4.0
+#: Skirt of the post bridge: how far it reaches down over the tray's rim, and its wall (mm).
+SKIRT_DROP_MM, SKIRT_WALL_MM = 4.0, 2.0
+
+
+@dataclass(frozen=True)
+class LayerSolids:
+    """The solids of one layered step by part name (pour orientation), and the cast in
+    the actuator frame (for the two layers' checks against each other)."""
+
+    parts: dict[str, cq.Shape]
+    cast_in_actuator_frame: cq.Shape
+
+
+def turn_over(shape: cq.Shape) -> cq.Shape:
+    """A half turn about the x axis: (x, y, z) -> (x, -y, -z); a rotation, so solids keep
+    their orientation and volume."""
+    return shape.rotate(cq.Vector(0, 0, 0), cq.Vector(1, 0, 0), 180.0)
+
+
+def post_solid(p: Post) -> cq.Shape:
+    """The drafted post: its bond-face outline extruded ``height_mm`` along +z with every
+    side face leaning in by ``draft_deg`` (a tapered prism of planar faces)."""
+    wp = cq.Workplane("XY", origin=(0.0, 0.0, p.base_z_mm))
+    solid = wp.polyline(list(p.outline_mm())).close().extrude(p.height_mm,
+                                                              taper=p.draft_deg).val()
+    assert isinstance(solid, cq.Shape)
+    return checked(solid, p.name, "post", volume_mm3=p.volume_mm3())
+
+
+def footprint_prism(f: Footprint, z0: float, z1: float, part: str) -> cq.Shape:
+    """The footprint extruded from z0 to z1 (mm)."""
+    lx, ly = f.size_mm
+    wp = cq.Workplane("XY", origin=(f.center_mm[0], f.center_mm[1], z0))
+    if f.corner_radius_mm > 0.0:
+        solid = (wp.sketch().rect(lx, ly).vertices().fillet(f.corner_radius_mm).finalize()
+                 .extrude(z1 - z0).val())
+    else:
+        solid = wp.rect(lx, ly).extrude(z1 - z0).val()
+    return checked(solid, part, "footprint prism", volume_mm3=f.area_mm2() * (z1 - z0))
+
+
+def _block(r: Recipe, grow_mm: float, z0: float, z1: float) -> cq.Shape:
+    lo, hi = r.body_bounds()
+    return box((lo[0] - grow_mm, lo[1] - grow_mm, z0), (hi[0] + grow_mm, hi[1] + grow_mm, z1))
+
+
+def build_layers(r: Recipe, steps: tuple[CastingStep, ...]) -> dict[str, LayerSolids]:
+    """Every layered step's solids by step name."""
+    body_p = r.body_primitives()[0]
+    assert isinstance(body_p, RoundedBox)
+    body = build_primitive(body_p, "body")
+    layer0 = steps[0].layer
+    assert layer0 is not None
+    below, above = split_at(body, 2, layer0.bond_z_mm, "body")
+    out = {}
+    for s in steps:
+        layer = s.layer
+        assert layer is not None
+        if layer.kind is LayerKind.CHAMBERED:
+            out[s.name] = _chambered(r, s, above)
+        else:
+            out[s.name] = _base(r, s, below)
+    return out
+
+
+def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
+    layer = step.layer
+    assert layer is not None
+    _, hi = r.body_bounds()
+    bond, wall = layer.bond_z_mm, layer.wall_mm
+    posts = [post_solid(p) for p in layer.posts]
+    cast = cut(above, posts, "cast", "chambered layer")
+    # The feed groove's post runs on through the tray's inlet wall (so the groove opens
+    # cleanly on the inlet face): the wall takes a notch open to the rim, the post's shape
+    # with the locating clearance on every side, so the bridge drops in wherever its skirt
+    # lets it sit.
+    notches = [post_solid(_grown(p, layer.clearance_mm)) for p in layer.posts
+               if p.center_mm[0] - p.size_mm[0] / 2.0 < 0.0]
+    tray = cut(_block(r, wall, bond, hi[2] + wall), [above, *notches], "tray",
+               "chambered tray")
+    # The bridge: a plate on the tray's rim, a skirt over the rim's outside (locates it
+    # in x and y), an overflow hole beyond the last chamber, and the posts below it.
+    plate = _block(r, wall + layer.clearance_mm + SKIRT_WALL_MM, bond - PLATE_MM,
+                   bond + SKIRT_DROP_MM)
+    pocket = _block(r, wall + layer.clearance_mm, bond, bond + SKIRT_DROP_MM + 1.0)
+    cutters = [pocket]
+    hole = _overflow_hole(r, layer.posts, bond)
+    if hole is not None:
+        cutters.append(hole)
+    plate = cut(plate, cutters, "post-bridge", "bridge plate")
+    bridge = fuse([plate, *posts], "post-bridge", "bridge posts")
+    parts = {"tray": turn_over(tray), "post-bridge": turn_over(bridge),
+             "cast": turn_over(cast)}
+    return LayerSolids(parts, cast)
+
+
+def _grown(p: Post, by_mm: float) -> Post:
+    """``p`` wider by ``by_mm`` on every side (same height and draft)."""
+    return replace(p, name=f"{p.name} notch", size_mm=(p.size_mm[0] + 2 * by_mm,
+                                                       p.size_mm[1] + 2 * by_mm))
+
+
+def _overflow_hole(r: Recipe, posts: tuple[Post, ...], bond: float) -> cq.Shape | None:
+    """A hole through the plate midway between the last post and the body's far end, where
+    the excess silicone rises when the bridge is lowered (None: no room for it)."""
+    _, hi = r.body_bounds()
+    far = max(p.center_mm[0] + p.size_mm[0] / 2.0 for p in posts)
+    d = r.mold.vent_diameter_mm
+    if hi[0] - far < d + 2.0:
+        return None
+    return cq.Solid.makeCylinder(d / 2.0, PLATE_MM + 2.0,
+                                 cq.Vector((far + hi[0]) / 2.0, 0.0, bond - PLATE_MM - 1.0),
+                                 cq.Vector(0, 0, 1))
+
+
+def _base(r: Recipe, step: CastingStep, below: cq.Shape) -> LayerSolids:
+    layer = step.layer
+    assert layer is not None
+    lo, hi = r.body_bounds()
+    bond, wall, c = layer.bond_z_mm, layer.wall_mm, layer.clearance_mm
+    # The guide above the pocket locates the pressed part in x and y and ends level with
+    # the finished actuator's top: a flat plate laid across the rim stops the part with its
+    # bond face exactly on the base.
+    top = hi[2]
+    guide = footprint_prism(layer.footprint.inset(-c), bond, top + 1.0, "tray")
+    block = _block(r, c + wall, lo[2] - wall, top)
+    tray = cut(block, [below, guide], "tray", "base tray")
+    return LayerSolids({"tray": tray, "cast": below}, below)
