@@ -29,6 +29,7 @@ import json
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from importlib import resources
+from pathlib import Path
 
 import matplotlib as mpl
 import matplotlib.style
@@ -400,16 +401,33 @@ class Picture:
     png: bytes
 
 
+CAPTIONS = {
+    EXPLODED_PNG: "Exploded: the shells drawn apart along their pull directions, the core "
+                  "drawn out along its pull, the cast in place.",
+    CUTAWAY_PNG: "Cut away: the assembled mold cut through the sprue, showing the core "
+                 "inside the cavity and the sprue and vents reaching the top.",
+}
+
+
 def variant_pictures(man: Manifest, meshes: Mapping[str, TriMesh]
                      ) -> tuple[tuple[Picture, ...], bytes]:
     """The exploded and cut-away pictures of one variant and its preview page."""
     parts = view_parts(man, meshes)
     title = f"{man.recipe} {man.label}"
-    pictures = (
-        Picture(EXPLODED_PNG, "Exploded: the shells drawn apart along their pull "
-                "directions, the core drawn out along its pull, the cast in place.",
-                exploded_view(parts, title)),
-        Picture(CUTAWAY_PNG, "Cut away: the assembled mold cut through the sprue, showing "
-                "the core inside the cavity and the sprue and vents reaching the top.",
-                cutaway_view(parts, view_openings(man), title)))
+    pictures = (Picture(EXPLODED_PNG, CAPTIONS[EXPLODED_PNG], exploded_view(parts, title)),
+                Picture(CUTAWAY_PNG, CAPTIONS[CUTAWAY_PNG],
+                        cutaway_view(parts, view_openings(man), title)))
     return pictures, preview_html(parts, title)
+
+
+def read_pictures(folder: Path, link: str = "") -> tuple[Picture, ...]:
+    """The pictures a build wrote in ``folder`` (a variant's output folder), those that are
+    there, each named ``link`` + its file name (how a card elsewhere links to it)."""
+    out = []
+    for name, caption in CAPTIONS.items():
+        try:
+            png = (folder / name).read_bytes()
+        except OSError:
+            continue
+        out.append(Picture(link + name, caption, png))
+    return tuple(out)
