@@ -101,8 +101,11 @@ def decimate(mesh: TriMesh, max_triangles: int = TRIANGLES_PER_PART) -> TriMesh:
     size = float(np.max(v.max(axis=0) - lo))
     cell = size / (4.0 * np.sqrt(max_triangles))
     while True:
-        keys = np.floor((v - lo) / cell).astype(np.int64)
-        cells, inverse = np.unique(keys, axis=0, return_inverse=True)
+        k = np.floor((v - lo) / cell).astype(np.int64)
+        n = k.max(axis=0) + 1
+        # one integer per cell (x-major), so the sort is over a flat array
+        cells, inverse = np.unique((k[:, 0] * n[1] + k[:, 1]) * n[2] + k[:, 2],
+                                   return_inverse=True)
         inverse = inverse.reshape(-1)
         g = inverse[f]
         keep = (g[:, 0] != g[:, 1]) & (g[:, 1] != g[:, 2]) & (g[:, 0] != g[:, 2])

@@ -56,7 +56,7 @@ def main(argv: list[str]) -> None:
         keep, argv = argv[1], argv[2:]
         Path(keep).mkdir(parents=True, exist_ok=True)
     recipes = argv or sorted(str(p) for p in (ROOT / "recipes").glob("*.yaml"))
-    print(f"{'variant':28} {'build s':>8} {'pictures s':>10} {'ratio':>6} "
+    print(f"{'variant':28} {'build s':>8} {'decimate s':>10} {'pictures s':>10} {'ratio':>6} "
           f"{'exploded kB':>11} {'cutaway kB':>10} {'preview kB':>10}")
     for path in recipes:
         run = subprocess.run([sys.executable, "-c", CHILD, path, keep], cwd=ROOT,
@@ -66,7 +66,8 @@ def main(argv: list[str]) -> None:
             continue
         d = json.loads(run.stdout.strip().splitlines()[-1])
         pics = d["decimate"] + d["exploded"] + d["cutaway"] + d["preview"]
-        print(f"{d['recipe'] + ' ' + d['label']:28} {d['build']:8.2f} {pics:10.2f} "
+        print(f"{d['recipe'] + ' ' + d['label']:28} {d['build']:8.2f} {d['decimate']:10.2f} "
+              f"{pics:10.2f} "
               f"{pics / d['build']:6.3f} {d['exploded_kb']:11.0f} {d['cutaway_kb']:10.0f} "
               f"{d['preview_kb']:10.0f}")
 
