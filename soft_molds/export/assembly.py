@@ -11,9 +11,12 @@ decimated first (vertex clustering on a grid, numpy only, deterministic) to at m
 Exploded view: the cast stays in place, the core is drawn out along its pull direction
 until it clears the cast, and each shell is moved along its pull until it clears the cast
 and the core (:func:`explode_offsets`). Cut-away view: every part is clipped by the
-section plane through the sprue's mouth that holds x and w (the body's long axis and the
-parting axis), the half nearer the viewer removed, so the core inside the cavity shows; the
-sprue and vents are drawn as marked lines from the cavity up through the upper block.
+section plane through the middle of the core that holds x and w (the body's long axis and
+the parting axis), the half nearer the viewer removed, so the core inside the cavity shows;
+the sprue and vents are drawn as marked lines from the cavity up through the upper block.
+The cut-away's long triangles are split before drawing (:func:`split_long`): the painter's
+sort orders whole polygons by mean depth, which a long sliver beside small ones defeats
+where parts nest (the exploded parts stand apart, so their triangles are drawn as they are).
 
 Pictures are drawn on a private matplotlib Figure with the Agg canvas,
 the built-in default style, fixed size and dpi and no date or software stamp, so the same
@@ -42,6 +45,7 @@ from ..meshdata import TriMesh
 from .manifest import Manifest
 
 TRIANGLES_PER_PART = 3000
+SPLIT_PER_SIZE = 12.0  # the cut-away's triangles: edges under 1/12 of the set's size
 GAP_FRACTION = 0.12  # clearance between exploded parts, as a fraction of the set's size
 PICTURE_IN = (8.0, 5.6)
 PICTURE_DPI = 100
@@ -217,6 +221,30 @@ def clip_half(tris: np.ndarray, v_cut: float) -> list[np.ndarray]:
     return out
 
 
+def triangulated(polys: Sequence[np.ndarray]) -> np.ndarray:
+    """Polygons of 3 or 4 corners (convex, as :func:`clip_half` gives) as triangles
+    (m, 3, 3), a quad split along its first diagonal."""
+    out = [p[[0, 1, 2]] for p in polys] + [p[[0, 2, 3]] for p in polys if len(p) == 4]
+    return np.array(out).reshape(-1, 3, 3)
+
+
+def split_long(tris: np.ndarray, max_edge_mm: float) -> np.ndarray:
+    """``tris`` (m, 3, 3) with every triangle whose longest edge exceeds ``max_edge_mm``
+    cut in two at that edge's midpoint, repeatedly (a long sliver becomes a row of short
+    ones); same surface, same winding."""
+    done = []
+    while len(tris):
+        e = np.linalg.norm(tris - np.roll(tris, -1, axis=1), axis=2)  # edge i: i -> i+1
+        long = e.max(axis=1) > max_edge_mm
+        done.append(tris[~long])
+        t, i = tris[long], e[long].argmax(axis=1)
+        r = np.arange(len(t))
+        a, b, c = t[r, i], t[r, (i + 1) % 3], t[r, (i + 2) % 3]
+        m = (a + b) / 2.0
+        tris = np.concatenate([np.stack((a, m, c), axis=1), np.stack((m, b, c), axis=1)])
+    return np.concatenate(done) if done else tris
+
+
 def _png(fig: Figure) -> bytes:
     png = io.BytesIO()
     FigureCanvasAgg(fig).print_figure(png, format="png", dpi=PICTURE_DPI,
@@ -224,15 +252,15 @@ def _png(fig: Figure) -> bytes:
     return png.getvalue()
 
 
-def _draw(polys: list[np.ndarray], colours: list[np.ndarray],
+def _draw(polys: Sequence[np.ndarray], colours: list[np.ndarray],
           labels: Sequence[tuple[str, np.ndarray]], lines: Sequence[tuple[str, str,
           np.ndarray, np.ndarray]], title: str, elev: float, azim: float
           ) -> bytes:
     from mpl_toolkits.mplot3d import Axes3D
     from mpl_toolkits.mplot3d.art3d import Poly3DCollection
 
-    allv = np.vstack([p for p in polys] + [np.vstack([a, b]) for _, _, a, b in lines]
-                     if lines else polys)
+    tris = np.concatenate(polys)
+    allv = np.vstack([tris.reshape(-1, 3)] + [np.vstack([a, b]) for _, _, a, b in lines])
     lo, hi = allv.min(axis=0), allv.max(axis=0)
     with matplotlib.style.context("default"), mpl.rc_context(_RC):
         fig = Figure(figsize=PICTURE_IN)
@@ -244,7 +272,7 @@ def _draw(polys: list[np.ndarray], colours: list[np.ndarray],
         ax.set_autoscale_on(False)  # the limits above hold every polygon and line
         # One collection for every part: the painter's sort is then over all triangles.
         col = np.vstack(colours)
-        pc = Poly3DCollection(polys, facecolors=col, edgecolors=col, linewidths=0.3,
+        pc = Poly3DCollection(tris, facecolors=col, edgecolors=col, linewidths=0.3,
                               zsort="average")
         pc.set_zorder(1)
         pc.set_clip_on(False)  # the zoomed set may reach past the 3-D axes' square box
@@ -267,13 +295,16 @@ def _draw(polys: list[np.ndarray], colours: list[np.ndarray],
 
 def _label_at(p: ViewPart, shift: np.ndarray, verts: np.ndarray | None = None) -> np.ndarray:
     """Where a part's name goes: its box centre, moved to the box face its pull points at
-    (the shell's back, the core's grip end), then shifted with the part."""
+    (the shell's back, the core's grip end; a shell's name toward its +x end), then
+    shifted with the part."""
     v = p.mesh.vertices if verts is None else verts
     lo, hi = v.min(axis=0), v.max(axis=0)
     c = (lo + hi) / 2.0
     if p.pull is not None:
         d = np.asarray(p.pull)
         c = c + d * 0.5 * float(np.abs(hi - lo) @ np.abs(d))
+    if p.role == "shell":
+        c[0] = lo[0] + 0.8 * (hi[0] - lo[0])  # off the middle, where the sprue rises
     return c + shift
 
 
@@ -284,46 +315,49 @@ def exploded_view(parts: Sequence[ViewPart], title: str) -> bytes:
     polys, cols, labels = [], [], []
     for p in parts:
         tris = p.mesh.triangles() + offsets[p.name]
-        polys += list(tris)
+        polys.append(tris)
         cols.append(_shaded(tris, colours[p.name]))
         labels.append((p.name, _label_at(p, offsets[p.name])))
     return _draw(polys, cols, labels, [], f"{title}: exploded (parts drawn apart along "
                  "their pull directions)", elev=24.0, azim=-58.0)
 
 
-def section_v(parts: Sequence[ViewPart], openings: Sequence[ViewOpening]) -> float:
-    """Where the cut-away's section plane lies (v, mm): through the sprue's mouth, else
-    through the middle of the cast, else of the set."""
-    sprue = [o for o in openings if o.kind == "sprue"]
-    if sprue:
-        return sprue[0].at[1]
-    cast = [p for p in parts if p.role == "cast"] or list(parts)
-    v = np.vstack([p.mesh.vertices for p in cast])[:, 1]
+def section_v(parts: Sequence[ViewPart]) -> float:
+    """Where the cut-away's section plane lies (v, mm): through the middle of the core, so
+    it shows inside the cavity, else of the cast, else of the set."""
+    for role in ("core", "cast"):
+        inside = [p for p in parts if p.role == role]
+        if inside:
+            break
+    else:
+        inside = list(parts)
+    v = np.vstack([p.mesh.vertices for p in inside])[:, 1]
     return float((v.min() + v.max()) / 2.0)
 
 
 def cutaway_view(parts: Sequence[ViewPart], openings: Sequence[ViewOpening],
                  title: str) -> bytes:
     """PNG of the assembled set cut by the section plane (see the module doc)."""
-    v_cut = section_v(parts, openings)
+    v_cut = section_v(parts)
     colours = part_colours(parts)
+    longest = _extent(parts) / SPLIT_PER_SIZE
     polys: list[np.ndarray] = []
     cols, labels = [], []
     top = max(float(p.mesh.vertices[:, 2].max()) for p in parts)
     for p in parts:
-        kept = clip_half(p.mesh.triangles(), v_cut)
-        if not kept:
+        kept = split_long(triangulated(clip_half(p.mesh.triangles(), v_cut)), longest)
+        if not len(kept):
             continue
-        polys += kept
-        cols.append(_shaded(np.array([k[:3] for k in kept]), colours[p.name]))
-        labels.append((p.name, _label_at(p, np.zeros(3), np.vstack(kept))))
+        polys.append(kept)
+        cols.append(_shaded(kept, colours[p.name]))
+        labels.append((p.name, _label_at(p, np.zeros(3), kept.reshape(-1, 3))))
     lines = []
     for o in openings:
         a = np.array(o.at)
         b = np.array([a[0], a[1], top + 0.08 * (top - a[2] + 1.0)])
         lines.append((o.kind, f"{o.kind} {o.diameter_mm:g} mm", a, b))
     return _draw(polys, cols, labels, lines, f"{title}: cut away at the section through "
-                 "the sprue (parts as assembled)", elev=18.0, azim=-74.0)
+                 "the core (parts as assembled)", elev=18.0, azim=-74.0)
 
 
 PREVIEW_SCRIPT = "preview.js"  # shipped beside this module

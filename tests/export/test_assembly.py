@@ -198,3 +198,23 @@ def test_a_part_mesh_smaller_than_the_limit_is_left_as_it_is():
 def test_the_viewer_script_ships_inside_the_package():
     path = Path(A.__file__).with_name(A.PREVIEW_SCRIPT)
     assert path.is_file() and "getContext(\"2d\")" in path.read_text()
+
+
+def test_splitting_long_triangles_keeps_area_and_winding_and_bounds_every_edge():
+    # a 100 x 1 mm sliver pair (a rectangle): area 100 mm2 (closed form), normals +z
+    tris = np.array([[[0, 0, 0], [100, 0, 0], [100, 1, 0]],
+                     [[0, 0, 0], [100, 1, 0], [0, 1, 0]]], dtype=float)
+    out = A.split_long(tris, 5.0)
+    n = np.cross(out[:, 1] - out[:, 0], out[:, 2] - out[:, 0])
+    assert 0.5 * n[:, 2].sum() == pytest.approx(100.0, abs=1e-9)
+    assert (n[:, 2] > 0).all()
+    edges = np.linalg.norm(out - np.roll(out, -1, axis=1), axis=2)
+    assert edges.max() <= 5.0
+
+
+def test_the_cutaway_section_passes_through_the_middle_of_the_core(finger, meshes):
+    parts = A.view_parts(finger.manifest(), meshes)
+    core = next(p for p in parts if p.role == "core").mesh.vertices[:, 1]
+    v = A.section_v(parts)
+    assert core.min() < v < core.max()
+    assert v == pytest.approx((core.min() + core.max()) / 2)
