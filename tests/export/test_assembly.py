@@ -163,21 +163,42 @@ def test_the_preview_fetches_nothing(files):
     assert not re.search(r"<(script|link|img)[^>]*(src|href)=", page)
 
 
-@pytest.mark.skipif(shutil.which("chromium") is None, reason="no headless Chromium")
-def test_the_preview_draws_every_part_in_a_headless_browser(files, tmp_path):
-    page = tmp_path / A.PREVIEW_HTML
-    page.write_bytes(files[A.PREVIEW_HTML])
+def _run_page(page: bytes, tmp_path: Path, extra: str = "") -> tuple[dict, str]:
+    """What a headless Chromium's last frame drew of ``page`` (triangles per part) and its
+    log; ``extra`` is a script run after the viewer's (as a person's clicks)."""
+    path = tmp_path / A.PREVIEW_HTML
+    path.write_bytes(page.replace(b"</body></html>",
+                                  f"<script>{extra}</script></body></html>".encode()))
     run = subprocess.run(["chromium", "--headless", "--no-sandbox", "--disable-gpu",
                           "--enable-logging=stderr", "--v=0", "--dump-dom",
-                          page.as_uri()], capture_output=True, text=True, timeout=120)
+                          path.as_uri()], capture_output=True, text=True, timeout=120)
     m = re.search(r'data-drawn="([^"]*)"', run.stdout)
     assert m is not None, run.stderr[-2000:]
-    drawn = json.loads(htmllib.unescape(m.group(1)))
+    return json.loads(htmllib.unescape(m.group(1))), run.stderr
+
+
+BROWSER = pytest.mark.skipif(shutil.which("chromium") is None, reason="no headless Chromium")
+
+
+@BROWSER
+def test_the_preview_draws_every_part_in_a_headless_browser(files, tmp_path):
+    drawn, log = _run_page(files[A.PREVIEW_HTML], tmp_path)
     want = {p["name"]: p["triangles"] for p in _page_data(files[A.PREVIEW_HTML])["parts"]}
     assert drawn == want
     # the browser logs page errors as CONSOLE lines on stderr
-    assert not [ln for ln in run.stderr.splitlines()
-                if "CONSOLE" in ln or "Uncaught" in ln], run.stderr[-2000:]
+    assert not [ln for ln in log.splitlines() if "CONSOLE" in ln or "Uncaught" in ln], log
+
+
+@BROWSER
+def test_a_part_unticked_in_the_preview_is_not_drawn(files, tmp_path):
+    click = ('var b = document.getElementById("part-1"); b.checked = false;'
+             'b.dispatchEvent(new Event("change"));'
+             'var s = document.getElementById("explode"); s.value = 0;'
+             's.dispatchEvent(new Event("input"));')
+    drawn, log = _run_page(files[A.PREVIEW_HTML], tmp_path, click)
+    parts = _page_data(files[A.PREVIEW_HTML])["parts"]
+    assert drawn == {p["name"]: 0 if i == 1 else p["triangles"] for i, p in enumerate(parts)}
+    assert "Uncaught" not in log
 
 
 def test_the_casting_card_embeds_both_pictures_and_the_markdown_links_them(finger, files):
