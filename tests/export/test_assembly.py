@@ -239,3 +239,26 @@ def test_the_cutaway_section_passes_through_the_middle_of_the_core(finger, meshe
     v = A.section_v(parts)
     assert core.min() < v < core.max()
     assert v == pytest.approx((core.min() + core.max()) / 2)
+
+
+def test_a_family_card_embeds_each_members_pictures_and_links_them_in_its_folder(
+        finger, files, tmp_path):
+    from dataclasses import replace
+
+    from soft_molds.export.card import card_files
+
+    for label in ("A", "B"):
+        (tmp_path / label).mkdir()
+        for name in (A.EXPLODED_PNG, A.CUTAWAY_PNG):
+            (tmp_path / label / name).write_bytes(files[name])
+    man = finger.manifest()
+    family = [man, replace(man, label="B")]
+    pictures = {m.label: A.read_pictures(tmp_path / m.label, f"{m.label}/") for m in family}
+    card = card_files(family, "seedling-finger", pictures=pictures)
+    page = card["casting-card.html"].decode()
+    assert page.count('src="data:image/png;base64,') == 4
+    md = card["casting-card.md"].decode()
+    for label in ("A", "B"):
+        assert f"]({label}/{A.EXPLODED_PNG})" in md and f"]({label}/{A.CUTAWAY_PNG})" in md
+    # a folder without pictures gives none (the card is written without them)
+    assert A.read_pictures(tmp_path) == ()
