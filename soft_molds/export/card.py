@@ -1,5 +1,6 @@
 """The casting card: a printable page per family of variants, in Markdown and as one
-self-contained HTML file (no scripts, fonts or pictures fetched from anywhere).
+self-contained HTML file (no scripts, fonts or pictures fetched from anywhere: the
+assembly pictures are embedded as data URIs; the Markdown links the PNG files beside it).
 
 It says what to weigh, how long the mix stays workable and when to demold, the screws and
 the tube to have at hand, the steps of a cast, what the checks found and what to do about
@@ -11,13 +12,15 @@ Nothing in it depends on the time or the machine.
 
 from __future__ import annotations
 
+import base64
 import html
-from collections.abc import Callable, Sequence
+from collections.abc import Callable, Mapping, Sequence
 from typing import Any
 
 from ..analysis.findings import Severity, Verdict
 from ..units import inhg_to_kpa, kpa_to_psi, mm3_to_cm3
 from .advice import advice_for
+from .assembly import Picture
 from .fasteners import NUT_MM, WASHER_MM, clamp_screws
 from .manifest import CastingRecord, Manifest
 
@@ -74,9 +77,11 @@ def verdict_word(v: Verdict) -> str:
     return {Verdict.OK: "ok", Verdict.WARNING: "warnings", Verdict.ERROR: "errors"}[v]
 
 
-def card_blocks(family: Sequence[Manifest], title: str) -> list[Block]:
+def card_blocks(family: Sequence[Manifest], title: str,
+                pictures: Mapping[str, Sequence[Picture]] | None = None) -> list[Block]:
     """The card's content for ``family``: the manifests of its variants (built in memory or
-    read back with :func:`~soft_molds.export.manifest.read_manifest`), in label order.
+    read back with :func:`~soft_molds.export.manifest.read_manifest`), in label order,
+    with the assembly ``pictures`` of each variant label given (shown before the steps).
     Variants without a casting plan are left out; ValueError when none has one."""
     cast = [(man, man.casting) for man in family if man.casting is not None]
     if not cast:
@@ -85,6 +90,7 @@ def card_blocks(family: Sequence[Manifest], title: str) -> list[Block]:
     blocks += _silicone_blocks(cast)
     blocks += _weigh_out_blocks(cast)
     blocks += _hardware_blocks([man for man, _ in cast])
+    blocks += _picture_blocks([man for man, _ in cast], pictures or {})
     blocks.append(("h2", "Steps"))
     blocks.append(("ol", list(STEPS)))
     blocks += _pressure_blocks([man for man, _ in cast])
@@ -148,6 +154,20 @@ def _weigh_out_blocks(cast: Sequence[tuple[Manifest, CastingRecord]]) -> list[Bl
              "to the scale's resolution. Mix each variant separately unless you can "
              "pour them all within the pot life."),
             ("table", head, rows)]
+
+
+def _picture_blocks(family: Sequence[Manifest], pictures: Mapping[str, Sequence[Picture]]
+                    ) -> list[Block]:
+    blocks: list[Block] = []
+    for man in family:
+        for pic in pictures.get(man.label, ()):
+            who = "" if len(family) == 1 else f"{man.label}: "
+            blocks.append(("img", pic.file, who + pic.caption, pic.png))
+    if blocks:
+        blocks.insert(0, ("h2", "Assembly"))
+        blocks.insert(1, ("p", "How the parts go together; the preview page beside this "
+                          "card (preview.html) turns the set in 3-D."))
+    return blocks
 
 
 def _pressure_blocks(family: Sequence[Manifest]) -> list[Block]:
@@ -325,10 +345,11 @@ def _hardware_blocks(family: Sequence[Manifest]) -> list[Block]:
     return [("h2", "Have at hand"), ("ul", items)] if items else []
 
 
-def card_files(family: Sequence[Manifest], title: str,
-               stem: str = "casting-card") -> dict[str, bytes]:
-    """``{stem}.md`` and ``{stem}.html`` for ``family`` (manifests, in label order)."""
-    blocks = card_blocks(family, title)
+def card_files(family: Sequence[Manifest], title: str, stem: str = "casting-card",
+               pictures: Mapping[str, Sequence[Picture]] | None = None) -> dict[str, bytes]:
+    """``{stem}.md`` and ``{stem}.html`` for ``family`` (manifests, in label order); the
+    HTML embeds ``pictures`` (by variant label), the Markdown links their files."""
+    blocks = card_blocks(family, title, pictures)
     return {f"{stem}.md": render_markdown(blocks).encode(),
             f"{stem}.html": render_html(blocks).encode()}
 
@@ -347,6 +368,8 @@ def render_markdown(blocks: Sequence[Block]) -> str:
             out += [f"{i}. {t}" for i, t in enumerate(b[1], 1)] + [""]
         elif kind == "ul":
             out += [f"- {t}" for t in b[1]] + [""]
+        elif kind == "img":
+            out += [f"![{b[2]}]({b[1]})", ""]
         elif kind == "table":
             head, rows = b[1], b[2]
             out.append("| " + " | ".join(head) + " |")
@@ -373,6 +396,11 @@ def render_html(blocks: Sequence[Block]) -> str:
             out.append(f"<{kind}>{e(b[1])}</{kind}>")
         elif kind in ("ol", "ul"):
             out.append(f"<{kind}>" + "".join(f"<li>{e(t)}</li>" for t in b[1]) + f"</{kind}>")
+        elif kind == "img":
+            # a data URI keeps the card one self-contained file (RFC 2397)
+            src = "data:image/png;base64," + base64.b64encode(b[3]).decode("ascii")
+            out.append(f'<figure><img src="{src}" alt="{e(b[2])}" style="max-width:100%">'
+                       f"<figcaption>{e(b[2])}</figcaption></figure>")
         elif kind == "table":
             head, rows = b[1], b[2]
             out.append("<table><tr>" + "".join(f"<th>{e(h)}</th>" for h in head) + "</tr>"

@@ -22,6 +22,7 @@ from typing import Protocol
 from ..analysis.findings import Severity, Verdict
 from ..meshdata import TriMesh
 from ..version import __version__
+from .assembly import read_pictures
 from .card import card_files
 from .fieldwords import field_words
 from .files import json_bytes, write_atomic
@@ -189,7 +190,10 @@ def _family_files(folder: Path, recipe: str, fam: str, members: Sequence[Reporte
         write_atomic(p, data)
         written.append(p)
     if mans:
-        for name, data in card_files(mans, title, f"casting-card{suffix}").items():
+        pictures = {m.label: read_pictures(Path(v.out_dir), _link(folder, Path(v.out_dir)))
+                    for v, m in zip(members, manifests) if m is not None}
+        for name, data in card_files(mans, title, f"casting-card{suffix}",
+                                     pictures).items():
             write_atomic(folder / name, data)
             written.append(folder / name)
     # The lab's results file for this family, only where none is yet (measurements are
@@ -209,6 +213,12 @@ def _family_files(folder: Path, recipe: str, fam: str, members: Sequence[Reporte
         written.append(folder / name)
     _remove_stale_plates(folder, stem, set(plates))
     return written
+
+
+def _link(folder: Path, target: Path) -> str:
+    """Relative link prefix from ``folder`` to ``target`` (forward slashes, ends in /)."""
+    rel = os.path.relpath(target, folder).replace(os.sep, "/")
+    return "" if rel == "." else rel + "/"
 
 
 def _remove_stale_plates(folder: Path, stem: str, keep: set[str]) -> None:

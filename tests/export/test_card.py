@@ -7,6 +7,7 @@ from dataclasses import replace
 
 import pytest
 
+from soft_molds.export.assembly import read_pictures
 from soft_molds.export.card import card_blocks, card_files
 from soft_molds.export.manifest import read_manifest
 from soft_molds.export.writer import write_mold_set
@@ -29,8 +30,10 @@ def test_card_markdown_and_html_say_the_same_numbers(finger):
 def test_card_html_is_self_contained(finger):
     page = finger.files()["casting-card.html"].decode()
     assert page.startswith("<!DOCTYPE html>")
-    for fetch in ("http:", "https:", "src=", "<script", "@import", "<link"):
+    for fetch in ("http:", "https:", "<script", "@import", "<link"):
         assert fetch not in page
+    # pictures only as data URIs (RFC 2397), nothing fetched
+    assert page.count("src=") == page.count('src="data:image/png;base64,') == 2
 
 
 def test_card_lists_steps_pot_life_and_the_cautions(finger):
@@ -68,11 +71,14 @@ def test_a_family_of_different_grades_gets_a_column_per_component(finger):
 
 
 def test_a_card_from_the_manifest_read_back_is_the_card_the_build_wrote(finger, tmp_path):
-    # The card reads only the typed manifest, so memory and disk give the same bytes.
+    # The card reads only the typed manifest and the pictures, so memory and disk give
+    # the same bytes.
     written = write_mold_set(finger, tmp_path)
     back = read_manifest(written.directory)
     names = ("casting-card.md", "casting-card.html")
-    assert card_files([back], "seedling-finger A") == {
+    pictures = {"A": read_pictures(written.directory)}
+    assert len(pictures["A"]) == 2
+    assert card_files([back], "seedling-finger A", pictures=pictures) == {
         n: (written.directory / n).read_bytes() for n in names}
 
 

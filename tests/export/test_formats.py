@@ -28,8 +28,8 @@ def encoded(finger):
     return encode_mold_set(finger)
 
 
-def test_the_registry_lists_stl_step_plates_and_the_casting_card():
-    assert list(output_formats()) == ["casting-card", "plates", "step", "stl"]
+def test_the_registry_lists_stl_step_plates_the_casting_card_and_the_assembly_views():
+    assert list(output_formats()) == ["assembly", "casting-card", "plates", "step", "stl"]
     assert all(f.summary for f in output_formats().values())
 
 
@@ -38,6 +38,7 @@ def test_the_registry_lists_stl_step_plates_and_the_casting_card():
     ("step", {f"{n}.step" for n in PART_NAMES}),
     ("casting-card", {"casting-card.md", "casting-card.html"}),
     ("plates", {"plate-1.3mf", "plate-1.png"}),
+    ("assembly", {"assembly-exploded.png", "assembly-cutaway.png", "preview.html"}),
 ])
 def test_each_format_writes_exactly_its_own_files(finger, encoded, name, files):
     got = output_formats()[name].encode(finger, finger.manifest())
@@ -52,7 +53,9 @@ def test_every_format_and_the_manifest_last_make_todays_file_set(encoded):
     assert sorted(names) == sorted([f"{n}.stl" for n in PART_NAMES]
                                    + [f"{n}.step" for n in PART_NAMES]
                                    + ["casting-card.md", "casting-card.html", MANIFEST_NAME]
-                                   + ["plate-1.3mf", "plate-1.png"])
+                                   + ["plate-1.3mf", "plate-1.png"]
+                                   + ["assembly-exploded.png", "assembly-cutaway.png",
+                                      "preview.html"])
     # the manifest lists every other file with its SHA-256 (FIPS 180-4, via hashlib)
     listed = json.loads(encoded.files[MANIFEST_NAME])["files"]
     assert listed == {n: hashlib.sha256(encoded.files[n]).hexdigest()
@@ -68,7 +71,7 @@ def test_a_chosen_subset_of_formats_writes_only_those_and_the_manifest(finger):
 
 def test_an_unknown_format_is_refused_naming_the_known_ones(finger):
     with pytest.raises(ValueError, match="unknown output format.*obj; known: "
-                                         "casting-card, plates, step, stl"):
+                                         "assembly, casting-card, plates, step, stl"):
         encode_mold_set(finger, ["stl", "obj"])
 
 

@@ -27,7 +27,8 @@ def test_output_layout_is_recipe_then_label(written, finger):
     names = sorted(p.name for p in d.iterdir())
     want = sorted([f"{n}.stl" for n in PART_NAMES] + [f"{n}.step" for n in PART_NAMES]
                   + ["casting-card.md", "casting-card.html", "manifest.json"]
-                  + ["plate-1.3mf", "plate-1.png"])
+                  + ["plate-1.3mf", "plate-1.png"]
+                  + ["assembly-exploded.png", "assembly-cutaway.png", "preview.html"])
     assert names == want
     assert sorted(p.name for p in paths) == want
     assert not [p for p in root.rglob("*") if ".tmp" in p.name]

@@ -6,6 +6,7 @@ from typing import TYPE_CHECKING
 
 from ..card import card_files
 from . import output_format
+from .assembly import assembly_pictures
 
 if TYPE_CHECKING:
     from ...analysis.result import BuiltMoldSet
@@ -16,4 +17,6 @@ if TYPE_CHECKING:
 def casting_card_files(molds: BuiltMoldSet, manifest: Manifest) -> dict[str, bytes]:
     if manifest.casting is None:
         return {}
-    return card_files([manifest], f"{manifest.recipe} {manifest.label}")
+    pictures, _ = assembly_pictures(molds, manifest)
+    return card_files([manifest], f"{manifest.recipe} {manifest.label}",
+                      pictures={manifest.label: pictures})
