@@ -22,7 +22,7 @@ from soft_molds.recipe.yamlsource import parse_recipe_text
 
 ROOT = Path(__file__).resolve().parents[2]
 BUNDLED = sorted((ROOT / "recipes").glob("*.yaml"))
-HINT = "# yaml-language-server: $schema=../recipe.schema.json"
+HINT = "# yaml-language-server: $schema=recipe.schema.json"
 
 
 @pytest.fixture(scope="module")
@@ -52,7 +52,7 @@ def test_every_bundled_recipe_points_its_editor_at_the_schema(path):
 
 
 def test_the_shipped_schema_file_is_the_generated_text():
-    assert (ROOT / "recipe.schema.json").read_text() == schema_text()
+    assert (ROOT / "recipes" / "recipe.schema.json").read_text() == schema_text()
 
 
 def test_soft_molds_schema_prints_it(capsys):
