@@ -340,10 +340,11 @@ def cmd_sweep(args: argparse.Namespace) -> int:
     if not _out_writable(args.out):
         return 1
     try:
-        outcomes, interrupted = run_sweep(tasks, args.out, jobs=args.jobs, force=args.force,
-                                          recycle_after=args.recycle_after,
-                                          progress=Progress(len(tasks)),
-                                          scheduler=args.scheduler)
+        with Progress(len(tasks)) as progress:  # closed on Ctrl-C too: no bar left live
+            outcomes, interrupted = run_sweep(tasks, args.out, jobs=args.jobs,
+                                              force=args.force,
+                                              recycle_after=args.recycle_after,
+                                              progress=progress, scheduler=args.scheduler)
     except FolderBusyError as exc:  # another run is filling the same folders: not bad input
         print(f"error: {exc}", file=sys.stderr)
         return 1
