@@ -48,7 +48,7 @@ class Progress:
         # Colour and cursor movement only where a person watches: decided by the stream
         # alone, so a forced-colour setting in a CI log or pipe still gets plain lines.
         self._console = Console(file=self._raw, highlight=False,
-                                force_terminal=_is_tty(self._raw))
+                                force_terminal=is_terminal(self._raw))
         self._bar: Bar | None = None
         self._task = TaskID(0)
 
@@ -108,7 +108,8 @@ class Progress:
         return self._bar
 
 
-def _is_tty(stream: TextIO) -> bool:
+def is_terminal(stream: TextIO) -> bool:
+    """Whether ``stream`` is a terminal a person watches (not a log, pipe or file)."""
     try:
         return stream.isatty()
     except (AttributeError, ValueError):  # no isatty, or a closed stream
