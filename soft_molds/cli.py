@@ -13,11 +13,15 @@ import os
 import sys
 import time
 from collections.abc import Callable, Sequence
+from typing import TYPE_CHECKING, TextIO
 
 from .analysis.findings import Finding, Severity, counts
 from .errors import RecipeError, SoftMoldsError
 from .units import mm3_to_cm3
 from .version import __version__
+
+if TYPE_CHECKING:
+    from .sweep.outcome import Outcome
 
 CAUTIONS = (
     "Cautions: inflated silicone parts can balloon and burst - wear eye protection, use a "
@@ -340,10 +344,11 @@ def cmd_sweep(args: argparse.Namespace) -> int:
     if not _out_writable(args.out):
         return 1
     try:
-        outcomes, interrupted = run_sweep(tasks, args.out, jobs=args.jobs, force=args.force,
-                                          recycle_after=args.recycle_after,
-                                          progress=Progress(len(tasks)),
-                                          scheduler=args.scheduler)
+        with Progress(len(tasks)) as progress:  # closed on Ctrl-C too: no bar left live
+            outcomes, interrupted = run_sweep(tasks, args.out, jobs=args.jobs,
+                                              force=args.force,
+                                              recycle_after=args.recycle_after,
+                                              progress=progress, scheduler=args.scheduler)
     except FolderBusyError as exc:  # another run is filling the same folders: not bad input
         print(f"error: {exc}", file=sys.stderr)
         return 1
@@ -356,16 +361,7 @@ def cmd_sweep(args: argparse.Namespace) -> int:
         print(f"error: cannot write the report under {args.out}: {exc.strerror or exc}",
               file=sys.stderr)
         return 1
-    print(f"{'recipe':<18} {'label':<6} {'status':<11} {'checks':<8} {'silicone':>9} "
-          f"{'mix g':>7} {'motion':>9} {'s':>6}  changed / reason")
-    for o in outcomes:
-        vol = "-" if o.silicone_cm3 is None else f"{o.silicone_cm3:.2f} cm3"
-        mix = "-" if o.mix_g is None else f"{o.mix_g:g}"
-        move = (f"{o.bend_deg:.1f} deg" if o.bend_deg is not None else
-                f"{o.extension_mm:.2f} mm" if o.extension_mm is not None else "-")
-        note = o.reason or ", ".join(f"{k}={v}" for k, v in o.changed.items())
-        print(f"{o.recipe:<18} {o.label:<6} {o.status:<11} {o.verdict or '-':<8} {vol:>9} "
-              f"{mix:>7} {move:>9} {o.seconds:>6.1f}  {note}")
+    print_sweep_table(outcomes, sys.stdout)
     bad = [o for o in outcomes if not o.ok]
     print(f"{len(outcomes) - len(bad)} of {len(tasks)} variants built or up to date; report: "
           + ", ".join(str(p) for p in written[:2]))
@@ -375,6 +371,48 @@ def cmd_sweep(args: argparse.Namespace) -> int:
         print("interrupted: run the same command again to finish", file=sys.stderr)
         return 130
     return 1 if bad or len(outcomes) < len(tasks) else 0
+
+
+#: The morning report's columns: heading and whether the figures align right.
+SWEEP_COLUMNS = (("recipe", False), ("label", False), ("status", False), ("checks", False),
+                 ("silicone", True), ("mix g", True), ("motion", True), ("s", True),
+                 ("changed / reason", False))
+
+
+def _sweep_row(o: Outcome) -> tuple[str, ...]:
+    vol = "-" if o.silicone_cm3 is None else f"{o.silicone_cm3:.2f} cm3"
+    mix = "-" if o.mix_g is None else f"{o.mix_g:g}"
+    move = (f"{o.bend_deg:.1f} deg" if o.bend_deg is not None else
+            f"{o.extension_mm:.2f} mm" if o.extension_mm is not None else "-")
+    note = o.reason or ", ".join(f"{k}={v}" for k, v in o.changed.items())
+    return (o.recipe, o.label, str(o.status), o.verdict or "-", vol, mix, move,
+            f"{o.seconds:.1f}", note)
+
+
+def print_sweep_table(outcomes: Sequence[Outcome], out: TextIO) -> None:
+    """The morning report, one row per variant: a drawn table on a terminal, fixed-width
+    plain text (no control codes) in a log or pipe."""
+    from .sweep.progress import is_terminal
+
+    rows = [_sweep_row(o) for o in outcomes]
+    if not is_terminal(out):
+        widths = (18, 6, 11, 8, 9, 7, 9, 6)
+        for row in [tuple(h for h, _ in SWEEP_COLUMNS), *rows]:
+            cells = [c.rjust(w) if right else c.ljust(w)
+                     for c, w, (_, right) in zip(row, widths, SWEEP_COLUMNS)]
+            print(" ".join(cells) + "  " + row[-1], file=out)
+        return
+    from rich.console import Console
+    from rich.table import Table
+
+    table = Table(box=None, pad_edge=False, header_style="bold")
+    for heading, right in SWEEP_COLUMNS:
+        table.add_column(heading, justify="right" if right else "left", no_wrap=True)
+    for row in rows:
+        table.add_row(*row)
+    # Never squeezed to the window: a narrow terminal wraps whole rows, as it wraps the
+    # plain text, rather than rich cutting figures or notes short.
+    Console(file=out, force_terminal=True, highlight=False, width=10_000).print(table)
 
 
 def _family_manifests(folder: str) -> tuple[list, list[str]]:

@@ -7,7 +7,8 @@ morning report.
   whose files all carry the recorded digests, is up to date and not built again.
 - ``executors``: where variants run (:class:`ProcessPool`, :class:`DaskCluster`).
 - ``runner``: one variant: build, refuse an error-level mold set unless forced, write.
-- ``progress``: a line per finished variant; ``driver``: the whole sweep.
+- ``progress``: a line per finished variant (and a live bar on a terminal); ``driver``:
+  the whole sweep.
 - The report is written by :mod:`soft_molds.export.reports` (re-exported here).
 
 Outputs are byte-identical whatever the number of workers: each variant is built alone,

@@ -31,6 +31,17 @@ def run_sweep(tasks: Sequence[Task], out_root: str | os.PathLike[str], jobs: int
     ``force`` writes variants with an error-level finding too."""
     root = str(Path(out_root).resolve())  # workers (or cluster nodes) may run elsewhere
     prog = progress if progress is not None else Progress(len(tasks))
+    try:
+        return _run(tasks, root, jobs, force, recycle_after, prog, worker, scheduler,
+                    executor)
+    finally:
+        if progress is None and isinstance(prog, Progress):
+            prog.close()  # an interrupted run leaves no live bar behind
+
+
+def _run(tasks: Sequence[Task], root: str, jobs: int, force: bool, recycle_after: int,
+         prog: ProgressSink, worker: Worker, scheduler: str | None,
+         executor: Executor | None) -> tuple[list[Outcome], bool]:
     outcomes: dict[str, Outcome] = {}
 
     def report(t: Task, o: Outcome) -> None:
