@@ -85,8 +85,9 @@ def test_two_workers_write_the_same_bytes_as_one(one_job, recipe_file, tmp_path)
     outcomes, _ = run_sweep(plan_tasks([recipe_file]), tmp_path, jobs=2, progress=Quiet())
     assert all(o.status == "built" for o in outcomes)
     a, b = _files(out1), _files(tmp_path)
-    # 4 STL, 4 STEP, a print plate and its picture, 2 cards, the manifest
-    assert sorted(a) == sorted(b) and len(a) == 3 * 13
+    # 4 STL, 4 STEP, a print plate and its picture, two assembly pictures, the preview
+    # page, 2 cards, the manifest
+    assert sorted(a) == sorted(b) and len(a) == 3 * 16
     assert all(a[k] == b[k] for k in a)
 
 
