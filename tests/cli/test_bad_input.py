@@ -17,6 +17,7 @@ from pathlib import Path
 
 import pytest
 from recipe_text import FINGER_TEXT, edit, line_of
+from refusals import Expect, assert_reported
 
 from soft_molds.cli import main
 from soft_molds.errors import SoftMoldsError
@@ -48,23 +49,6 @@ i: &i [*h, *h, *h, *h, *h, *h, *h, *h, *h]
 
 
 
-
-
-@dataclass(frozen=True)
-class Expect:
-    """One stderr line: ``error: FILE[:LINE]:[ PATH:] MESSAGE... [(got GOT)][; allowed: ...]``.
-    ``path`` "" is a problem of the document itself; ``line`` None where no line exists
-    (no file, or nothing in it). ``file`` names another file of the case (a grades table)
-    when the problem is located there. With ``exact`` the line is exactly
-    ``MESSAGE (got GOT); allowed: ALLOWED`` (each part only when given)."""
-
-    path: str
-    line: int | None
-    message: str
-    got: str | None = None
-    allowed: str | None = None
-    file: str | None = None
-    exact: bool = False
 
 
 FIFO = b"<a named pipe>"  # marks a file of a case made with os.mkfifo
@@ -408,29 +392,6 @@ def write_case(case: Case, directory: Path, name: str = "recipe.yaml") -> Path:
     for other, content in case.files:
         _write(directory / other, content)
     return path
-
-
-def assert_reported(stderr: str, label: str, expect: tuple[Expect, ...]) -> None:
-    assert "Traceback" not in stderr
-    lines = stderr.splitlines()
-    assert len(lines) == len(expect), stderr
-    for text, e in zip(lines, expect):
-        file = label if e.file is None else str(Path(label).resolve().parent / e.file)
-        where = f"{file}:{e.line}:" if e.line is not None else f"{file}:"
-        prefix = f"error: {where}" + (f" {e.path}:" if e.path else "") + " "
-        assert text.startswith(prefix), (text, prefix)
-        body = text[len(prefix):]
-        if e.exact:
-            got = "" if e.got is None else f" (got {e.got})"
-            allowed = "" if e.allowed is None else f"; allowed: {e.allowed}"
-            assert body == e.message + got + allowed, body
-            continue
-        assert body.startswith(e.message), (body, e.message)
-        if e.got is not None:
-            assert f"(got {e.got})" in body, body
-        if e.allowed is not None:
-            assert "; allowed: " in body, body
-            assert e.allowed in body.split("; allowed: ", 1)[1], body
 
 
 def test_at_least_fifteen_distinct_bad_inputs_are_covered():

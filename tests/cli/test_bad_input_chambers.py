@@ -8,38 +8,12 @@ written here, known by construction."""
 from __future__ import annotations
 
 import re
-from typing import NamedTuple
 
 import pytest
 from recipe_text import FINGER_TEXT, edit, line_of
+from refusals import Expect, assert_reported
 
 from soft_molds.cli import main
-
-
-class Expect(NamedTuple):
-    """One stderr line ``error: FILE:LINE: PATH: MESSAGE... (got GOT); allowed: ...``: the
-    message's start, ``got`` whole and a part of ``allowed``."""
-
-    path: str
-    line: int
-    message: str
-    got: str | None
-    allowed: str | None
-
-
-def assert_reported(stderr: str, label: str, expect: tuple[Expect, ...]) -> None:
-    assert "Traceback" not in stderr
-    lines = stderr.splitlines()
-    assert len(lines) == len(expect), stderr
-    for text, e in zip(lines, expect):
-        prefix = f"error: {label}:{e.line}: {e.path}: "
-        assert text.startswith(prefix), (text, prefix)
-        body = text[len(prefix):]
-        assert body.startswith(e.message), (body, e.message)
-        if e.got is not None:
-            assert f"(got {e.got})" in body, body
-        if e.allowed is not None:
-            assert e.allowed in body.split("; allowed: ", 1)[1], body
 
 GRADED = ("a number, a list of numbers (one per chamber), or a linear grade {from: first, "
           "to: last}, each 0.05 <= value <= 1000 mm")

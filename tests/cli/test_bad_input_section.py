@@ -14,6 +14,7 @@ from pathlib import Path
 
 import pytest
 from recipe_text import edit, line_of
+from refusals import Expect, assert_reported
 
 from soft_molds.cli import main
 
@@ -53,16 +54,7 @@ POINTS = ("a list of 2 to 400 points [y, z], each value -1000 <= value <= 1000 m
 NUMBER = "a number, 0.05 <= value <= 1000 mm"
 
 
-@dataclass(frozen=True)
-class Expect:
-    """One stderr line: ``error: FILE:LINE: PATH: MESSAGE... (got GOT); allowed: ...``
-    (the message's start, ``got`` whole and a part of ``allowed``)."""
 
-    path: str
-    line: int | None
-    message: str
-    got: str | None = None
-    allowed: str | None = None
 
 
 @dataclass(frozen=True)
@@ -72,19 +64,7 @@ class Case:
     expect: tuple[Expect, ...]
 
 
-def assert_reported(stderr: str, label: str, expect: tuple[Expect, ...]) -> None:
-    assert "Traceback" not in stderr
-    lines = stderr.splitlines()
-    assert len(lines) == len(expect), stderr
-    for text, e in zip(lines, expect):
-        prefix = f"error: {label}:{e.line}: {e.path}: "
-        assert text.startswith(prefix), (text, prefix)
-        body = text[len(prefix):]
-        assert body.startswith(e.message), (body, e.message)
-        if e.got is not None:
-            assert f"(got {e.got})" in body, body
-        if e.allowed is not None:
-            assert e.allowed in body.split("; allowed: ", 1)[1], body
+
 
 
 def _e(path: str, line: int | None, message: str, got: str | None = None,
