@@ -634,6 +634,34 @@ def cmd_report(args: argparse.Namespace) -> int:
     return 0
 
 
+def cmd_show(args: argparse.Namespace) -> int:
+    """Build one variant in memory and send its parts to the optional viewer."""
+    variants, bad = _load([args.recipe], args.variant, folders=False)
+    if bad:
+        return 2
+    from .geometry.viewer import ViewerMissing, send_to_viewer, viewer
+
+    try:
+        viewer()  # before the build: say at once when it is missing
+    except ViewerMissing as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return 1
+    _, r = variants[0]
+    if r.process.layered:
+        print(f"error: {r.source}: show takes one-shot recipes for now", file=sys.stderr)
+        return 1
+    from .pipeline import build
+
+    try:
+        molds = build(r)
+    except SoftMoldsError as exc:
+        print(f"error: {r.source}: {exc}", file=sys.stderr)
+        return 1
+    n = send_to_viewer([(p.name, p.role, p.brep) for p in molds.parts])
+    print(f"{r.name} {r.label}: sent {n} parts to the viewer")
+    return 0
+
+
 def cmd_schema(args: argparse.Namespace) -> int:
     from .recipe.json_schema import schema_text
 
@@ -751,6 +779,14 @@ def make_parser() -> argparse.ArgumentParser:
     rp.add_argument("--maximise", choices=("bend_deg", "extension_mm"),
                     help="the quantity ranked (default: what the model predicts)")
     rp.set_defaults(func=cmd_report)
+    sh = sub.add_parser("show", help="send one variant's mold parts to the optional viewer",
+                        description="Build one variant of RECIPE in memory (nothing "
+                                    "written) and show its parts, coloured by role, in the "
+                                    "CAD library's viewer (install the viewer extra).")
+    sh.add_argument("recipe", metavar="RECIPE", help="path to a recipe YAML file")
+    sh.add_argument("--variant", metavar="LABEL", help="the variant to show (default: the "
+                    "first)")
+    sh.set_defaults(func=cmd_show)
     sch = sub.add_parser("schema", help="print the JSON Schema of a recipe (for editors)",
                          description="Print the JSON Schema (draft 2020-12) of a recipe file, "
                                      "generated from the same field declarations as the "

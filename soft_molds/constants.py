@@ -33,3 +33,8 @@ MESH_VOLUME_REL_TOL = 0.005
 mesh to it, and the tessellator (:func:`soft_molds.geometry.tessellate.tessellate_within`)
 refines a mesh that misses it, so a coarse ``mesh.chord_mm`` on a small curved part yields
 a finer mesh instead of a failed build."""
+
+ROLE_COLOURS = {"shell": "#9fb3c8", "core": "#f0a04b", "cast": "#6cc3a0"}
+"""Colours of the parts by role (shell, core, cast), as hex RGB: the pictures of the mold
+(:mod:`soft_molds.export.assembly`), the preview page and the optional CAD viewer
+(:mod:`soft_molds.geometry.viewer`) colour a part alike wherever a person sees it."""

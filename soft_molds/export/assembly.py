@@ -41,6 +41,7 @@ from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 from matplotlib.typing import RcKeyType
 
+from ..constants import ROLE_COLOURS
 from ..meshdata import TriMesh
 from .manifest import Manifest
 
@@ -49,8 +50,8 @@ SPLIT_PER_SIZE = 12.0  # the cut-away's triangles: edges under 1/12 of the set's
 GAP_FRACTION = 0.12  # clearance between exploded parts, as a fraction of the set's size
 PICTURE_IN = (8.0, 5.6)
 PICTURE_DPI = 100
-#: Colours by role (shell, core, cast); a second shell is drawn a shade darker.
-ROLE_COLOURS = {"shell": "#9fb3c8", "core": "#f0a04b", "cast": "#6cc3a0"}
+#: Colours by role: :data:`soft_molds.constants.ROLE_COLOURS`; a second shell is drawn a
+#: shade darker.
 OTHER_COLOUR = "#b0b0b0"
 OPENING_COLOURS = {"sprue": "#c62828", "vent": "#1565c0"}
 _RC: dict[RcKeyType, object] = {
