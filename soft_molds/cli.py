@@ -193,7 +193,7 @@ def cmd_build(args: argparse.Namespace) -> int:
     for _, r in variants:
         t = time.perf_counter()
         if r.process.layered:
-            status = max(status, _build_layered(r, args.out))
+            status = max(status, _build_layered(r, args))
             continue
         try:
             molds = build(r)
@@ -236,10 +236,14 @@ def cmd_build(args: argparse.Namespace) -> int:
     return status
 
 
-def _build_layered(r, out: str) -> int:
-    """Build and write a layered recipe: both steps' parts and the pours in order."""
+def _build_layered(r, args: argparse.Namespace) -> int:
+    """Build and write a layered recipe: both steps' parts, the pours in order and the
+    findings; like a one-shot mold, nothing is written on an error unless forced."""
+    from .analysis.findings import refuses_to_write, verdict
     from .export.layered import write_layered
     from .pipeline import build_layered
+
+    out = args.out
 
     t = time.perf_counter()
     try:
@@ -254,12 +258,21 @@ def _build_layered(r, out: str) -> int:
               f"{s.pour.mixed_g:.1f} g")
         for p in s.parts:
             print(_fmt_part(p))
+    for line in _findings_table(m.findings, show_info=args.verbose):
+        print(line)
+    errors = [f for f in m.findings if f.severity is Severity.ERROR]
+    if refuses_to_write(verdict(m.findings), args.force):
+        print(f"error: {r.source}: {r.label}: {len(errors)} check(s) failed; nothing "
+              "written (fix the recipe, or pass --force to write the files anyway)",
+              file=sys.stderr)
+        return 1
     try:
         paths = write_layered(m, out)
     except OSError as exc:
         print(f"error: cannot write under {out}: {exc.strerror or exc}", file=sys.stderr)
         return 1
-    print(f"  wrote {len(paths)} files to {paths[-1].parent}")
+    forced = " despite failed checks (--force)" if errors else ""
+    print(f"  wrote {len(paths)} files to {paths[-1].parent}{forced}")
     return 0
 
 
@@ -274,8 +287,8 @@ def cmd_check(args: argparse.Namespace) -> int:
     for _, r in variants:
         files.setdefault(r.source, True)
         if r.process.layered:
-            # Layered steps are checked as closed parts; the manufacturability checks of
-            # the one-shot review do not run on trays yet.
+            # Layered steps get their own checks (trays and a post bridge, not two
+            # shells and a core): see soft_molds.analysis.layered_checks.
             try:
                 lm = build_layered(r)
             except SoftMoldsError as exc:
@@ -283,11 +296,21 @@ def cmd_check(args: argparse.Namespace) -> int:
                 files[r.source] = False
                 print(f"FAIL {r.source} {r.label}: {exc}")
                 continue
-            print(f"ok   {r.source}: {r.name} {r.label}, {len(lm.steps)} pours, "
-                  f"{sum(len(s.parts) for s in lm.steps)} parts closed and consistent")
+            errs = [f for f in lm.findings if f.severity is Severity.ERROR]
+            warns = [f for f in lm.findings if f.severity is Severity.WARNING]
+            bad_layered = bool(errs) or (args.strict and bool(warns))
+            print(f"{'FAIL' if bad_layered else 'ok  '} {r.source}: {r.name} {r.label}, "
+                  f"{len(lm.steps)} pours, {sum(len(s.parts) for s in lm.steps)} parts "
+                  "closed and consistent")
             for st in lm.steps:
                 for p in st.parts:
                     print(_fmt_part(p))
+            for line in _findings_table(lm.findings, show_info=args.verbose):
+                print(line)
+            if bad_layered:
+                worst = (errs or warns)[0]
+                failed.append(f"{r.source} {r.label}: {worst.check}: {worst.message}")
+                files[r.source] = False
             continue
         try:
             molds = build(r)

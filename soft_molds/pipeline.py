@@ -153,6 +153,7 @@ def build_layered(recipe: Recipe, progress: Callable[[str], None] | None = None
                   ) -> LayeredMoldSet:
     """Plan, build, tessellate and check both steps of a layered recipe (see
     :mod:`soft_molds.plan.processes.layered`). Raises like :func:`build`."""
+    from .analysis.findings import worst_first
     from .analysis.integrity import check_mesh, require_ok
     from .analysis.layered import (
         LayerStep,
@@ -160,6 +161,7 @@ def build_layered(recipe: Recipe, progress: Callable[[str], None] | None = None
         least_post_draft_deg,
         pour_quantities,
     )
+    from .analysis.layered_checks import layered_findings
     from .geometry.layered import build_layers
     from .geometry.tessellate import tessellate_within
 
@@ -190,4 +192,7 @@ def build_layered(recipe: Recipe, progress: Callable[[str], None] | None = None
                  if is_chambered(layer) else None)
         steps.append(LayerStep(i, step.name, layer, tuple(parts),
                                pour_quantities(recipe, cast.brep_volume_mm3), draft))
-    return LayeredMoldSet(plan, tuple(steps), timings)
+    say("manufacturability checks")
+    with _stage(timings, "analysis", label):
+        findings = worst_first(layered_findings(recipe, steps))
+    return LayeredMoldSet(plan, tuple(steps), timings, findings)

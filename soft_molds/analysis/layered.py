@@ -17,6 +17,7 @@ from ..meshdata import TriMesh
 from ..plan.model import Layer, LayerKind, MoldPlan
 from ..recipe.model import Recipe
 from .casting import Quantities, silicone_quantities
+from .findings import Finding
 from .result import Part
 
 
@@ -46,11 +47,13 @@ class LayerStep:
 
 @dataclass(frozen=True, eq=False)
 class LayeredMoldSet:
-    """Everything built for a layered recipe, steps in pour order."""
+    """Everything built for a layered recipe, steps in pour order, and the findings of its
+    manufacturability checks (:mod:`soft_molds.analysis.layered_checks`)."""
 
     plan: MoldPlan
     steps: tuple[LayerStep, ...]
     timings_s: Mapping[str, float] = field(default_factory=dict)
+    findings: tuple[Finding, ...] = ()
 
     @property
     def recipe(self) -> Recipe:

@@ -2,7 +2,8 @@
 variant folder: per step a folder ``step-<n>-<name>/`` with its parts' STL files (pour
 orientation), the base step's strain-limiting sheet template (``sheet.svg``, 1:1), and at
 the top the casting card (both pours in order) and ``manifest.json`` listing the steps in
-order with every file's SHA-256, written last.
+order, the verdict and findings of the layered checks (``checks``) and every file's
+SHA-256, written last.
 """
 
 from __future__ import annotations
@@ -14,6 +15,7 @@ from collections.abc import Sequence
 from pathlib import Path
 from typing import Any
 
+from ..analysis.findings import Finding, verdict
 from ..analysis.layered import LayeredMoldSet, LayerStep
 from ..plan.model import Footprint
 from ..units import mm3_to_cm3
@@ -124,6 +126,19 @@ def card_text(m: LayeredMoldSet) -> bytes:
     return ("\n".join(lines) + "\n").encode()
 
 
+def _round4(x: float | None) -> float | None:
+    return None if x is None else round(float(x), 4) + 0.0
+
+
+def finding_record(f: Finding) -> dict[str, Any]:
+    """One finding as the manifest writes it (figures to 0.1 micrometre or 0.0001 deg, as
+    a one-shot manifest does)."""
+    return {"check": f.check, "severity": str(f.severity), "part": f.part,
+            "value": _round4(f.value), "limit": _round4(f.limit),
+            "where_mm": None if f.where_mm is None else [_round4(c) for c in f.where_mm],
+            "message": f.message}
+
+
 def manifest_of(m: LayeredMoldSet, files: dict[str, bytes]) -> dict[str, Any]:
     r = m.recipe
     steps = []
@@ -146,6 +161,8 @@ def manifest_of(m: LayeredMoldSet, files: dict[str, bytes]) -> dict[str, Any]:
                         "cover_margin_mm": r.process.cover_margin_mm,
                         "sheet": r.process.sheet},
             "actuator_volume_mm3": m.silicone_volume_mm3, "steps": steps,
+            "verdict": str(verdict(m.findings)),
+            "checks": [finding_record(f) for f in m.findings],
             "files": {k: hashlib.sha256(v).hexdigest() for k, v in sorted(files.items())}}
 
 

@@ -9,7 +9,7 @@ import resource
 import time
 from collections.abc import Callable
 
-from ..analysis.findings import Finding, counts, refuses_to_write, verdict
+from ..analysis.findings import Finding, Severity, counts, refuses_to_write, verdict
 from ..errors import SoftMoldsError
 from ..export.files import remove_stale_temps
 from ..pipeline import build
@@ -40,7 +40,7 @@ def run_variant(recipe: Recipe, out_root: str, force: bool = False) -> Outcome:
                        worker_rss_mb=_rss_mb(), worker_peak_mb=_peak_mb())
 
     if recipe.process.layered:
-        return _run_layered(recipe, out_root, done)
+        return _run_layered(recipe, out_root, done, force)
     try:
         molds = build(recipe)
     except SoftMoldsError as exc:
@@ -61,9 +61,10 @@ def run_variant(recipe: Recipe, out_root: str, force: bool = False) -> Outcome:
         motion_figures(molds.manifest().motion))
 
 
-def _run_layered(recipe: Recipe, out_root: str, done: Callable[..., Outcome]) -> Outcome:
-    """A layered variant: both steps built and written (no review of trays yet, so no
-    findings and no verdict to refuse on)."""
+def _run_layered(recipe: Recipe, out_root: str, done: Callable[..., Outcome],
+                 force: bool) -> Outcome:
+    """A layered variant: both steps built, checked (its own checks, see
+    :mod:`soft_molds.analysis.layered_checks`) and written unless an error refuses it."""
     from ..export.layered import write_layered
     from ..pipeline import build_layered
 
@@ -71,12 +72,17 @@ def _run_layered(recipe: Recipe, out_root: str, done: Callable[..., Outcome]) ->
         m = build_layered(recipe)
     except SoftMoldsError as exc:
         return done(Status.FAILED, str(exc).splitlines()[0])
+    findings = tuple(m.findings)
+    if refuses_to_write(verdict(findings), force):
+        first = next(f for f in findings if f.severity is Severity.ERROR)
+        return done(Status.REFUSED, f"{first.check}: {first.message}", findings)
     try:
         write_layered(m, out_root)
     except OSError as exc:
         return done(Status.FAILED, f"cannot write: {exc.strerror or exc}")
     grams = [p.grams for s in m.steps for p in s.pour.portions]
-    return done(Status.BUILT, "", (), report_figures(round(m.silicone_volume_mm3, 3), grams))
+    return done(Status.BUILT, "", findings,
+                report_figures(round(m.silicone_volume_mm3, 3), grams))
 
 
 def _rss_mb() -> float:

@@ -100,3 +100,14 @@ def test_casting_card_lists_the_two_pours_in_order_with_their_volumes(written):
 def test_the_same_build_gives_the_same_bytes():
     m = built_layered(NAME)
     assert encode_layered(m) == encode_layered(m)
+
+
+def test_manifest_records_the_verdict_and_every_finding_of_the_layered_checks(written):
+    m, folder = written
+    man = json.loads((folder / "manifest.json").read_text())
+    assert man["verdict"] == "ok"
+    assert [(f["check"], f["part"]) for f in man["checks"]] == [
+        (f.check, f.part) for f in m.findings]
+    cover = next(f for f in man["checks"] if f["check"] == "sheet-cover")
+    # Hand value: process.cover_margin_mm = 2 against checks.min_wall_mm = 1, to 4 places.
+    assert (cover["severity"], cover["value"], cover["limit"]) == ("info", 2.0, 1.0)
