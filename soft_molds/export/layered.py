@@ -121,7 +121,12 @@ def card_text(m: LayeredMoldSet) -> bytes:
              f"{r.process.draft_deg:g} deg (least measured on the mesh: "
              f"{first.least_post_draft_deg:.3f} deg).", "",
              "The feed groove opens on the inlet face: seal a tube into it with a drop of "
-             "the same silicone.", "", "## Cautions", ""]
+             "the same silicone.", "", "## Checks", ""]
+    # Every finding of both steps, errors first (the order the build keeps), so what the
+    # manifest records is what the person at the bench reads.
+    lines += [f"- {f.severity}: {f.check} ({f.part}): {f.message}" for f in m.findings] \
+        or ["- no findings"]
+    lines += ["", "## Cautions", ""]
     lines += [f"- {c}" for c in CAUTIONS]
     return ("\n".join(lines) + "\n").encode()
 

@@ -111,3 +111,14 @@ def test_manifest_records_the_verdict_and_every_finding_of_the_layered_checks(wr
     cover = next(f for f in man["checks"] if f["check"] == "sheet-cover")
     # Hand value: process.cover_margin_mm = 2 against checks.min_wall_mm = 1, to 4 places.
     assert (cover["severity"], cover["value"], cover["limit"]) == ("info", 2.0, 1.0)
+
+
+def test_casting_card_lists_every_finding_the_manifest_records(written):
+    m, folder = written
+    card = (folder / "casting-card.md").read_text()
+    man = json.loads((folder / "manifest.json").read_text())
+    checks = card[card.index("## Checks"):card.index("## Cautions")]
+    rows = [ln for ln in checks.splitlines() if ln.startswith("- ")]
+    assert len(rows) == len(man["checks"]) == len(m.findings) > 0
+    for row, f in zip(rows, man["checks"]):
+        assert row == f"- {f['severity']}: {f['check']} ({f['part']}): {f['message']}"
