@@ -46,3 +46,23 @@ def assert_reported(stderr: str, label: str, expect: tuple[Expect, ...]) -> None
         if e.allowed is not None:
             assert "; allowed: " in body, body
             assert e.allowed in body.split("; allowed: ", 1)[1], body
+
+
+def assert_build_refused(text: str, expect: tuple[Expect, ...], tmp_path: Path, capsys,
+                         monkeypatch) -> None:
+    """``soft-molds build`` of recipe ``text`` (written as ``recipe.yaml`` in ``tmp_path``,
+    the working folder) exits 2, prints nothing on stdout, one expected line per problem on
+    stderr, and writes nothing: no output root, no other file beside the recipe."""
+    from soft_molds.cli import main
+
+    monkeypatch.chdir(tmp_path)  # anything written relative to the cwd would show here
+    path = tmp_path / "recipe.yaml"
+    path.write_text(text, encoding="utf-8")
+    out = tmp_path / "out"
+    status = main(["build", str(path), "--out", str(out)])
+    cap = capsys.readouterr()
+    assert status == 2, cap.err
+    assert cap.out == ""
+    assert_reported(cap.err, str(path), expect)
+    assert not out.exists()
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["recipe.yaml"]

@@ -14,9 +14,7 @@ from pathlib import Path
 
 import pytest
 from recipe_text import edit, line_of
-from refusals import Expect, assert_reported
-
-from soft_molds.cli import main
+from refusals import Expect, assert_build_refused
 
 ROOT = Path(__file__).resolve().parents[2]
 TAPER = (ROOT / "recipes" / "seedling-taper-finger.yaml").read_text()
@@ -179,17 +177,7 @@ CASES = [
 @pytest.mark.parametrize("case", CASES, ids=[c.name for c in CASES])
 def test_bad_section_input_exits_2_with_one_located_line_per_problem_and_writes_nothing(
         case, tmp_path, capsys, monkeypatch, no_cad_work):
-    monkeypatch.chdir(tmp_path)
-    path = tmp_path / "recipe.yaml"
-    path.write_text(case.text, encoding="utf-8")
-    out = tmp_path / "out"
-    status = main(["build", str(path), "--out", str(out)])
-    cap = capsys.readouterr()
-    assert status == 2, cap.err
-    assert cap.out == ""
-    assert_reported(cap.err, str(path), case.expect)
-    assert not out.exists()
-    assert sorted(p.name for p in tmp_path.iterdir()) == ["recipe.yaml"]
+    assert_build_refused(case.text, case.expect, tmp_path, capsys, monkeypatch)
 
 
 def test_every_section_field_has_a_bad_input_case():
