@@ -3,8 +3,6 @@ file, and a filled one is never overwritten (demo scenario: the seedling finger)
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
-
 from soft_molds.analysis.findings import Verdict
 from soft_molds.export.reports import write_reports
 from soft_molds.export.results import (
@@ -15,30 +13,12 @@ from soft_molds.export.results import (
 )
 from soft_molds.export.writer import write_mold_set
 from soft_molds.recipe.results import read_results, results_from_text
+from soft_molds.sweep.outcome import Outcome, Status
 
 
-@dataclass(frozen=True)
-class Row:
-    recipe: str
-    label: str
-    family: str
-    status: str
-    out_dir: str
-    reason: str = ""
-    verdict: Verdict | None = None
-    errors: int = 0
-    warnings: int = 0
-    seconds: float = 0.0
-    silicone_cm3: float | None = None
-    mix_g: float | None = None
-    bend_deg: float | None = None
-    extension_mm: float | None = None
-    changed: dict[str, object] = field(default_factory=dict)
-    description: str = ""
-
-    @property
-    def ok(self) -> bool:
-        return self.status in ("built", "up to date")
+def Row(recipe: str, label: str, family: str, status: str, out_dir: str, **kw) -> Outcome:
+    """The sweep's own outcome of one variant (what the report stage is given)."""
+    return Outcome(recipe, label, family, Status(status), out_dir=out_dir, **kw)
 
 
 def test_the_template_reads_back_with_every_label_and_no_rows():
