@@ -11,9 +11,10 @@ from __future__ import annotations
 import hashlib
 import math
 import os
+import typing
 from collections.abc import Sequence
+from dataclasses import asdict
 from pathlib import Path
-from typing import Any
 
 from ..analysis.findings import Finding, verdict
 from ..analysis.layered import LayeredMoldSet, LayerStep
@@ -22,7 +23,17 @@ from ..units import mm3_to_cm3
 from ..version import __version__
 from .card import CAUTIONS
 from .files import json_bytes, write_file_set
+from .steps_manifest import (
+    STEPPED_FORMAT,
+    PortionRecord,
+    ProcessEcho,
+    StepPartRecord,
+    SteppedManifest,
+    StepPourRecord,
+    StepRecord,
+)
 from .stl import encode_binary_stl
+from .typedjson import JsonValue, to_json
 from .writer import output_dir
 
 MANIFEST_NAME = "manifest.json"
@@ -131,44 +142,42 @@ def card_text(m: LayeredMoldSet) -> bytes:
     return ("\n".join(lines) + "\n").encode()
 
 
+def _r4(x: float) -> float:
+    return round(float(x), 4) + 0.0  # + 0.0: no "-0.0" in the file
+
+
 def _round4(x: float | None) -> float | None:
-    return None if x is None else round(float(x), 4) + 0.0
+    return None if x is None else _r4(x)
 
 
-def finding_record(f: Finding) -> dict[str, Any]:
+def finding_record(f: Finding) -> Finding:
     """One finding as the manifest writes it (figures to 0.1 micrometre or 0.0001 deg, as
     a one-shot manifest does)."""
-    return {"check": f.check, "severity": str(f.severity), "part": f.part,
-            "value": _round4(f.value), "limit": _round4(f.limit),
-            "where_mm": None if f.where_mm is None else [_round4(c) for c in f.where_mm],
-            "message": f.message}
+    w = f.where_mm
+    return Finding(f.check, f.severity, f.part, _round4(f.value), _round4(f.limit),
+                   None if w is None else (_r4(w[0]), _r4(w[1]), _r4(w[2])), f.message)
 
 
-def manifest_of(m: LayeredMoldSet, files: dict[str, bytes]) -> dict[str, Any]:
+def _step_record(s: LayerStep) -> StepRecord:
+    parts = tuple(StepPartRecord(p.name, p.role, f"{s.folder}/{p.name}.stl", p.role != "cast",
+                                 p.brep_volume_mm3,
+                                 None if p.pull_dir is None else
+                                 (float(p.pull_dir[0]), float(p.pull_dir[1]),
+                                  float(p.pull_dir[2])))
+                  for p in s.parts)
+    pour = StepPourRecord(s.pour.cast_mm3, s.pour.mixed_mm3, s.pour.mixed_g,
+                          tuple(PortionRecord(p.what, p.grams) for p in s.pour.portions))
+    return StepRecord(s.index, s.name, s.folder, parts, pour, s.least_post_draft_deg)
+
+
+def manifest_of(m: LayeredMoldSet, files: dict[str, bytes]) -> SteppedManifest:
     r = m.recipe
-    steps = []
-    for s in m.steps:
-        steps.append({
-            "index": s.index, "name": s.name, "folder": s.folder,
-            "parts": [{"name": p.name, "role": p.role, "file": f"{s.folder}/{p.name}.stl",
-                       "printable": p.role != "cast", "volume_mm3": p.brep_volume_mm3,
-                       "pull_dir": None if p.pull_dir is None else list(p.pull_dir)}
-                      for p in s.parts],
-            "pour": {"cast_mm3": s.pour.cast_mm3, "mixed_mm3": s.pour.mixed_mm3,
-                     "mixed_g": s.pour.mixed_g,
-                     "portions": [{"what": p.what, "grams": p.grams} for p in s.pour.portions]},
-            "least_post_draft_deg": s.least_post_draft_deg,
-        })
-    return {"format": "soft-molds layered manifest", "version": __version__,
-            "recipe": r.name, "label": r.label, "params_sha256": m.plan.source_params_sha256,
-            "process": {"kind": r.process.kind, "draft_deg": r.process.draft_deg,
-                        "base_mm": r.process.base_mm,
-                        "cover_margin_mm": r.process.cover_margin_mm,
-                        "sheet": r.process.sheet},
-            "actuator_volume_mm3": m.silicone_volume_mm3, "steps": steps,
-            "verdict": str(verdict(m.findings)),
-            "checks": [finding_record(f) for f in m.findings],
-            "files": {k: hashlib.sha256(v).hexdigest() for k, v in sorted(files.items())}}
+    return SteppedManifest(
+        STEPPED_FORMAT, __version__, r.name, r.label, m.plan.source_params_sha256,
+        ProcessEcho(typing.cast("dict[str, JsonValue]", asdict(r.process))),
+        m.silicone_volume_mm3, tuple(_step_record(s) for s in m.steps),
+        verdict(m.findings), tuple(finding_record(f) for f in m.findings),
+        {k: hashlib.sha256(v).hexdigest() for k, v in sorted(files.items())})
 
 
 def encode_layered(m: LayeredMoldSet) -> dict[str, bytes]:
@@ -177,7 +186,7 @@ def encode_layered(m: LayeredMoldSet) -> dict[str, bytes]:
     for s in m.steps:
         files.update(step_files(s, m.recipe.label_text))
     files[CARD_NAME] = card_text(m)
-    files[MANIFEST_NAME] = json_bytes(manifest_of(m, files))
+    files[MANIFEST_NAME] = json_bytes(to_json(manifest_of(m, files)))
     return files
 
 

@@ -1,4 +1,5 @@
-"""The sweep refuses a layered variant whose checks fail, as it does a one-shot one.
+"""The sweep refuses a layered variant whose checks fail, as it does a one-shot one, and
+does not build a finished one again (its typed stepped manifest is the record).
 
 Demo recipe (our scenario): the co-op's layered seedling finger with its posts drafted
 0.6 deg against ``checks.min_draft_deg`` = 1 deg (common practice 0.5-2 deg for rigid
@@ -10,7 +11,12 @@ from __future__ import annotations
 from pathlib import Path
 
 from soft_molds import load_recipe
+from soft_molds.export.files import json_bytes
+from soft_molds.export.steps_manifest import read_stepped_manifest
+from soft_molds.export.typedjson import to_json
+from soft_molds.sweep.cache import earlier_outcome
 from soft_molds.sweep.outcome import Status
+from soft_molds.sweep.plan import plan_tasks
 from soft_molds.sweep.runner import run_variant
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -32,3 +38,22 @@ def test_a_layered_variant_with_too_little_post_draft_is_refused_and_nothing_wri
     o = run_variant(load_recipe(path), str(out), force=True)
     assert o.status is Status.BUILT
     assert (out / "seedling-layered-finger" / "A" / "manifest.json").exists()
+
+    # The same run, asked again: nothing is built. Without --force the earlier forced
+    # variant counts as refused; with it, as up to date with the figures the build gave.
+    (task,) = plan_tasks([path])
+    again = earlier_outcome(task, out, force=True)
+    assert again is not None and again.status is Status.UP_TO_DATE
+    assert (again.silicone_cm3, again.mix_g, again.errors) == (o.silicone_cm3, o.mix_g, 1)
+    refused = earlier_outcome(task, out, force=False)
+    assert refused is not None and refused.status is Status.REFUSED
+    assert refused.reason.endswith("(written earlier with --force)")
+    # The typed manifest reads back to the very bytes that were written.
+    folder = out / "seedling-layered-finger" / "A"
+    man = read_stepped_manifest(folder)
+    assert json_bytes(to_json(man)) == (folder / "manifest.json").read_bytes()
+    assert [s.folder for s in man.steps] == ["step-1-chambered", "step-2-base"]
+    # A part changed on disk since: the variant is built again.
+    stl = folder / man.steps[0].parts[0].file
+    stl.write_bytes(stl.read_bytes() + b"\0")
+    assert earlier_outcome(task, out, force=True) is None

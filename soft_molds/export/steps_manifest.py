@@ -1,0 +1,126 @@
+"""The manifest of a variant cast in several steps (``manifest.json`` at the top of its
+folder), typed: written from these dataclasses and read back into them, so the sweep's
+cache and reports read fields, never keys.
+
+Frames: every part's ``pull_dir`` is a unit vector in the step's pour orientation (+z up).
+Volumes in mm³, masses in g, angles in degrees. ``files`` maps every other file of the
+variant (``step-<n>-<name>/<part>.stl``, the card, ...) to its SHA-256 (hex).
+"""
+
+from __future__ import annotations
+
+import json
+import os
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from ..analysis.findings import Finding, Verdict, verdict
+from ..version import __version__
+from .manifest import MANIFEST_NAME, ManifestError
+from .typedjson import JsonValue, ShapeError, from_json
+
+#: The ``format`` word of a stepped manifest (a one-shot manifest has none).
+STEPPED_FORMAT = "soft-molds layered manifest"
+
+
+@dataclass(frozen=True)
+class StepPartRecord:
+    name: str
+    role: str
+    file: str                 # relative to the variant folder
+    printable: bool
+    volume_mm3: float         # exact (solid) volume
+    pull_dir: tuple[float, float, float] | None
+
+
+@dataclass(frozen=True)
+class PortionRecord:
+    what: str
+    grams: float
+
+
+@dataclass(frozen=True)
+class StepPourRecord:
+    cast_mm3: float
+    mixed_mm3: float
+    mixed_g: float
+    portions: tuple[PortionRecord, ...]
+
+
+@dataclass(frozen=True)
+class StepRecord:
+    index: int                # 1-based, pour order
+    name: str
+    folder: str
+    parts: tuple[StepPartRecord, ...]
+    pour: StepPourRecord
+    least_post_draft_deg: float | None
+
+
+@dataclass(frozen=True)
+class ProcessEcho:
+    """The recipe's ``process`` block as the build used it (kept whole for the reader;
+    its keys differ between processes)."""
+
+    data: Mapping[str, JsonValue]
+
+    @property
+    def kind(self) -> str:
+        return str(self.data.get("kind", ""))
+
+    def json_value(self) -> JsonValue:
+        return dict(self.data)
+
+    @classmethod
+    def from_json_value(cls, data: JsonValue, where: str) -> ProcessEcho:
+        if not isinstance(data, dict) or not isinstance(data.get("kind"), str):
+            raise ShapeError(where, "expected an object with a string 'kind'")
+        return cls(data)
+
+
+@dataclass(frozen=True)
+class SteppedManifest:
+    format: str
+    version: str
+    recipe: str
+    label: str
+    params_sha256: str        # the recipe as given
+    process: ProcessEcho
+    actuator_volume_mm3: float
+    steps: tuple[StepRecord, ...]
+    verdict: Verdict
+    checks: tuple[Finding, ...]
+    files: Mapping[str, str] = field(default_factory=dict)
+
+    @property
+    def mixed_grams(self) -> tuple[float, ...]:
+        """Every portion to weigh, all steps in pour order (g)."""
+        return tuple(p.grams for s in self.steps for p in s.pour.portions)
+
+
+def read_stepped_manifest(path: str | os.PathLike[str]) -> SteppedManifest:
+    """The stepped manifest at ``path`` (the file or its folder). Raises
+    :class:`ManifestError` naming the file and key when it is missing, not JSON, of another
+    format or tool version, misshapen, or its verdict disagrees with its checks."""
+    p = Path(path)
+    if p.is_dir():
+        p = p / MANIFEST_NAME
+    try:
+        data = json.loads(p.read_bytes().decode("utf-8"))
+    except FileNotFoundError:
+        raise ManifestError(p, "", "no such file") from None
+    except (OSError, UnicodeDecodeError, ValueError) as exc:
+        raise ManifestError(p, "", f"cannot read it as JSON: {exc}") from None
+    if not isinstance(data, dict) or data.get("format") != STEPPED_FORMAT:
+        raise ManifestError(p, "format", f"expected {STEPPED_FORMAT!r}")
+    if data.get("version") != __version__:
+        raise ManifestError(p, "version", f"written by soft_molds {data.get('version')!r}; "
+                            f"this is {__version__} (build the variant again)")
+    try:
+        man = from_json(SteppedManifest, data)
+    except ShapeError as exc:
+        raise ManifestError(p, exc.where, exc.problem) from None
+    if man.verdict is not verdict(man.checks):
+        raise ManifestError(p, "verdict", f"{man.verdict} disagrees with its checks")
+    return man
