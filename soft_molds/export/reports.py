@@ -35,8 +35,10 @@ from .sheet import (
     manifest_row,
     motion_curve,
     render_sheet,
+    stepped_row,
     unbuilt_row,
 )
+from .steps_manifest import SteppedManifest, read_stepped_manifest
 from .stl import read_binary_stl
 from .typedjson import ShapeError
 
@@ -249,6 +251,15 @@ def _manifest(folder: Path) -> Manifest | None:
         return None
 
 
+def _stepped_manifest(folder: Path) -> SteppedManifest | None:
+    """The stepped manifest in ``folder`` (a variant cast in several steps); None when
+    there is none or it is unreadable."""
+    try:
+        return read_stepped_manifest(folder)
+    except ManifestError:
+        return None
+
+
 def _sheet_row(v: ReportedVariant, man: Manifest | None,
                params: Mapping[str, object]) -> SheetVariant:
     """One variant's row of the family sheet: its key figures and a section of its cast
@@ -257,5 +268,8 @@ def _sheet_row(v: ReportedVariant, man: Manifest | None,
     own = man.params.data if man is not None else params
     changed = tuple(field_words(k, x, own) for k, x in v.changed.items())
     if man is None:
+        stepped = _stepped_manifest(Path(v.out_dir)) if v.ok else None
+        if stepped is not None:
+            return stepped_row(stepped, Path(v.out_dir), changed)
         return unbuilt_row(v.label, changed, str(v.status), v.reason)
     return manifest_row(man, Path(v.out_dir), changed)

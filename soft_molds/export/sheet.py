@@ -47,6 +47,7 @@ from ..analysis.section import section_segments
 from ..units import mm3_to_cm3
 from .card import verdict_word
 from .manifest import Manifest
+from .steps_manifest import SteppedManifest
 from .stl import read_binary_stl
 
 MAX_VARIANTS = 5
@@ -148,7 +149,7 @@ class SheetData:
 Pair = tuple[str, str]
 
 
-def worst_finding(man: Manifest) -> str:
+def worst_finding(man: Manifest | SteppedManifest) -> str:
     """The badge of a variant: "ok", or the severity and check of its worst finding
     (errors before warnings, then in review order), with "+n" for n other checks that
     found as bad, e.g. "warning: pressure +1"."""
@@ -213,6 +214,40 @@ def motion_curve(man: Manifest) -> SheetCurve | None:
     return SheetCurve(man.label, "angle_deg" if bending else "extension_mm",
                       tuple(p.pressure_kpa for p in mo.points),
                       tuple(p.angle_deg if bending else p.extension_mm for p in mo.points))
+
+
+#: Gap between the stacked sections of a stepped variant's casts on the sheet (mm).
+STEP_GAP_MM = 3.0
+
+
+def stepped_row(man: SteppedManifest, folder: Path,
+                changed: tuple[Pair, ...] = ()) -> SheetVariant:
+    """The row of a variant cast in several steps: each pour's silicone and its mix to
+    weigh, the verdict, and each step's cast cut across y through its middle (x along the
+    page, z up as poured), step 1 on top and each later step stacked below it."""
+    figs: list[Pair] = []
+    for s in man.steps:
+        mix = " + ".join(f"{p.grams:g} g {p.what.split()[-1]}" for p in s.pour.portions)
+        figs.append((f"step {s.index} {s.name}",
+                     f"{mm3_to_cm3(s.pour.cast_mm3):.2f} cm3, mix {mix}"))
+    figs.append(("recipe hash", man.params_sha256[:12]))
+    pieces: list[np.ndarray] = []
+    floor = 0.0
+    for s in man.steps:
+        cast = next((p for p in s.parts if p.role == "cast"), None)
+        if cast is None:
+            continue
+        mesh = read_binary_stl(folder / cast.file)
+        lo, hi = mesh.vertices.min(axis=0), mesh.vertices.max(axis=0)
+        seg, _ = section_segments(mesh, "y", float(lo[1] + hi[1]) / 2.0)
+        # Stack: this step's top sits STEP_GAP_MM below the previous step's bottom.
+        shift = 0.0 if not pieces else floor - STEP_GAP_MM - float(hi[2])
+        seg = seg + np.array([0.0, shift])
+        floor = float(lo[2]) + shift
+        pieces.append(seg)
+    section = np.concatenate(pieces) if pieces else np.empty((0, 2, 2))
+    return SheetVariant(man.label, changed, tuple(figs), verdict_word(man.verdict), section,
+                        ("x", "z"), worst_finding(man))
 
 
 def unbuilt_row(label: str, changed: tuple[Pair, ...], status: str,

@@ -10,8 +10,12 @@ from __future__ import annotations
 
 from pathlib import Path
 
+import pytest
+from stl import mesh as npstl
+
 from soft_molds import load_recipe
 from soft_molds.export.files import json_bytes
+from soft_molds.export.sheet import STEP_GAP_MM, stepped_row
 from soft_molds.export.steps_manifest import read_stepped_manifest
 from soft_molds.export.typedjson import to_json
 from soft_molds.sweep.cache import earlier_outcome
@@ -57,3 +61,22 @@ def test_a_layered_variant_with_too_little_post_draft_is_refused_and_nothing_wri
     stl = folder / man.steps[0].parts[0].file
     stl.write_bytes(stl.read_bytes() + b"\0")
     assert earlier_outcome(task, out, force=True) is None
+
+    # The family sheet's row for it: each pour's silicone, and each step's cast cut across
+    # y, stacked. Outside reference: the recipe's own sizes (a 70 mm long, 14 mm tall bar
+    # whose bond face is 4 mm up), read against the sections' extents, and the STL files
+    # read by numpy-stl (an independent reader) for each cast's height.
+    row = stepped_row(man, folder)
+    figs = dict(row.figures)
+    assert figs["step 1 chambered"].startswith(f"{man.steps[0].pour.cast_mm3 / 1000:.2f} cm3")
+    assert figs["step 2 base"].startswith(f"{man.steps[1].pour.cast_mm3 / 1000:.2f} cm3")
+    heights = []
+    for s in man.steps:
+        z = npstl.Mesh.from_file(str(folder / s.folder / "cast.stl")).vectors[:, :, 2]
+        heights.append(float(z.max() - z.min()))
+    assert heights == pytest.approx([14.0 - 4.0, 4.0], abs=1e-6)
+    xs, zs = row.section[:, :, 0], row.section[:, :, 1]
+    assert float(xs.max() - xs.min()) == pytest.approx(70.0, abs=1e-6)
+    # Two stacked pieces with the gap between them: total height = both casts + the gap.
+    assert float(zs.max() - zs.min()) == pytest.approx(sum(heights) + STEP_GAP_MM, abs=1e-6)
+    assert row.badge == "error: post-draft"
