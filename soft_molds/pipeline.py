@@ -161,7 +161,7 @@ def build_layered(recipe: Recipe, progress: Callable[[str], None] | None = None
         least_post_draft_deg,
         pour_quantities,
     )
-    from .analysis.layered_checks import layered_findings
+    from .analysis.layered_checks import layered_findings, print_plans, recipe_printer
     from .geometry.layered import build_layers
     from .geometry.tessellate import tessellate_within
 
@@ -194,5 +194,7 @@ def build_layered(recipe: Recipe, progress: Callable[[str], None] | None = None
                                pour_quantities(recipe, cast.brep_volume_mm3), draft))
     say("manufacturability checks")
     with _stage(timings, "analysis", label):
-        findings = worst_first(layered_findings(recipe, steps))
-    return LayeredMoldSet(plan, tuple(steps), timings, findings)
+        printer = recipe_printer(recipe)
+        plans = tuple(print_plans(s, printer) for s in steps)
+        findings = worst_first(layered_findings(recipe, steps, plans))
+    return LayeredMoldSet(plan, tuple(steps), timings, findings, plans)

@@ -18,6 +18,7 @@ from ..plan.model import Layer, LayerKind, MoldPlan
 from ..recipe.model import Recipe
 from .casting import Quantities, silicone_quantities
 from .findings import Finding
+from .printability import PrintPlan
 from .result import Part
 
 
@@ -54,6 +55,8 @@ class LayeredMoldSet:
     steps: tuple[LayerStep, ...]
     timings_s: Mapping[str, float] = field(default_factory=dict)
     findings: tuple[Finding, ...] = ()
+    #: Per step (pour order), how each printed part lies on the bed, by part name.
+    print_plans: tuple[Mapping[str, PrintPlan], ...] = ()
 
     @property
     def recipe(self) -> Recipe:

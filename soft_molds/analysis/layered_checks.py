@@ -22,13 +22,13 @@ Frames: pour orientation per step, as the parts are stored; mm, degrees.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 
 from ..plan.model import Footprint
 from ..recipe.model import Recipe
 from .findings import Finding, Severity, finding
 from .layered import LayerStep, is_chambered
-from .printability import Printer, plan_print, print_findings
+from .printability import Printer, PrintPlan, plan_print, print_findings
 from .trapped_air import trapped_air
 from .wording import point
 
@@ -55,13 +55,17 @@ def part_name(s: LayerStep, part: str) -> str:
     return f"{s.name} {part}"
 
 
-def printing_findings(s: LayerStep, printer: Printer) -> list[Finding]:
-    """Bed fit, flat face, wall thickness and overhang of every printed part of ``s``."""
+def print_plans(s: LayerStep, printer: Printer) -> dict[str, PrintPlan]:
+    """How each printed part of ``s`` lies on the bed (by part name, casts left out)."""
+    return {p.name: plan_print(p.mesh, part_name(s, p.name), printer)
+            for p in s.parts if p.role != "cast"}
+
+
+def printing_findings(plans: Mapping[str, PrintPlan], printer: Printer) -> list[Finding]:
+    """Bed fit, flat face, wall thickness and overhang of every printed part of a step
+    (``plans``: :func:`print_plans`)."""
     out: list[Finding] = []
-    for p in s.parts:
-        if p.role == "cast":
-            continue
-        plan = plan_print(p.mesh, part_name(s, p.name), printer)
+    for plan in plans.values():
         found = print_findings(plan, printer)
         if not any(f.check == "print-wall" for f in found):
             # A sound wall is worth a note too: the table then lists every printed part.
@@ -155,12 +159,14 @@ def sheet_cover_finding(cover_mm: float, min_wall_mm: float, part: str) -> Findi
                    f"side (at least {min_wall_mm:g} mm)", value=cover_mm, limit=min_wall_mm)
 
 
-def layered_findings(r: Recipe, steps: Sequence[LayerStep]) -> tuple[Finding, ...]:
-    """Every finding of a layered build, step by step in pour order."""
+def layered_findings(r: Recipe, steps: Sequence[LayerStep],
+                     plans: Sequence[Mapping[str, PrintPlan]]) -> tuple[Finding, ...]:
+    """Every finding of a layered build, step by step in pour order (``plans``: each
+    step's :func:`print_plans`)."""
     printer = recipe_printer(r)
     out: list[Finding] = []
-    for s in steps:
-        out.extend(printing_findings(s, printer))
+    for s, step_plans in zip(steps, plans, strict=True):
+        out.extend(printing_findings(step_plans, printer))
         if is_chambered(s.layer):
             assert s.least_post_draft_deg is not None
             out.append(post_draft_finding(s.least_post_draft_deg, r.process.draft_deg,

@@ -12,17 +12,20 @@ import hashlib
 import math
 import os
 import typing
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import asdict
 from pathlib import Path
 
 from ..analysis.findings import Finding, verdict
 from ..analysis.layered import LayeredMoldSet, LayerStep
+from ..analysis.plates import PlateItem, posed_vertices
+from ..analysis.printability import PrintPlan
 from ..plan.model import Footprint
 from ..units import mm3_to_cm3
 from ..version import __version__
 from .card import CAUTIONS
 from .files import json_bytes, write_file_set
+from .plates import plate_files
 from .steps_manifest import (
     STEPPED_FORMAT,
     PortionRecord,
@@ -92,6 +95,8 @@ def sheet_svg(outline: Sequence[tuple[float, float]], caption: str) -> bytes:
 
 
 def step_files(s: LayerStep, label: str) -> dict[str, bytes]:
+    """The STL of every part of ``s`` (pour orientation) and, for a step with a sheet, its
+    template."""
     out = {f"{s.folder}/{p.name}.stl": encode_binary_stl(p.mesh, f"{label} {s.name} {p.name}")
            for p in s.parts}
     inset = s.layer.sheet_inset_mm
@@ -102,6 +107,28 @@ def step_files(s: LayerStep, label: str) -> dict[str, bytes]:
     return out
 
 
+def step_print_files(m: LayeredMoldSet, s: LayerStep, plans: Mapping[str, PrintPlan]
+                     ) -> dict[str, bytes]:
+    """For CAD and the printer: the STEP (AP214, mm, pour orientation) of every printed
+    part of ``s`` and its print plates (3MF and a top-view PNG per bed, each part in the
+    pose its print check chose)."""
+    # Imported here: writing the meshes alone must not load the CAD kernel.
+    from ..geometry.tessellate import step_bytes
+
+    r = m.recipe
+    tag = f"{r.name}-{r.label}-{s.name}"
+    out = {f"{s.folder}/{name}.step": step_bytes(s.part(name).brep, f"{tag}-{name}")
+           for name in plans}
+    items = [PlateItem(r.label, name, posed_vertices(s.part(name).mesh.vertices, plan.down,
+                                                     plan.turn_deg))
+             for name, plan in plans.items()]
+    faces = {(r.label, it.part): s.part(it.part).mesh.faces for it in items}
+    bed = (float(r.printer.bed_mm[0]), float(r.printer.bed_mm[1]))
+    _, plates = plate_files([items], faces, bed, f"{r.name} {r.label} step {s.index} {s.name}")
+    out.update({f"{s.folder}/{name}": data for name, data in plates.items()})
+    return out
+
+
 def _pour_line(s: LayerStep) -> str:
     q = s.pour
     weigh = ", ".join(f"{p.what} {p.grams:g} g" for p in q.portions)
@@ -109,7 +136,7 @@ def _pour_line(s: LayerStep) -> str:
             f"({mm3_to_cm3(q.mixed_mm3):.2f} cm3 mixed with {q.waste_pct:g} % waste: {weigh})")
 
 
-def card_text(m: LayeredMoldSet) -> bytes:
+def card_text(m: LayeredMoldSet, files: Mapping[str, bytes]) -> bytes:
     r = m.recipe
     first, second = m.steps
     sheet = SHEETS.get(r.process.sheet)
@@ -132,7 +159,9 @@ def card_text(m: LayeredMoldSet) -> bytes:
              f"{r.process.draft_deg:g} deg (least measured on the mesh: "
              f"{first.least_post_draft_deg:.3f} deg).", "",
              "The feed groove opens on the inlet face: seal a tube into it with a drop of "
-             "the same silicone.", "", "## Checks", ""]
+             "the same silicone.", "", "## Parts to print", ""]
+    lines += _print_lines(m, files)
+    lines += ["", "## Checks", ""]
     # Every finding of both steps, errors first (the order the build keeps), so what the
     # manifest records is what the person at the bench reads.
     lines += [f"- {f.severity}: {f.check} ({f.part}): {f.message}" for f in m.findings] \
@@ -144,6 +173,22 @@ def card_text(m: LayeredMoldSet) -> bytes:
 
 def _r4(x: float) -> float:
     return round(float(x), 4) + 0.0  # + 0.0: no "-0.0" in the file
+
+
+def _print_lines(m: LayeredMoldSet, files: Mapping[str, bytes]) -> list[str]:
+    """Per step, each printed part with the face it is printed on and where its plates
+    are (the STEP beside it for CAD)."""
+    out = []
+    for s, plans in zip(m.steps, m.print_plans):
+        for name, plan in plans.items():
+            d = ", ".join(f"{c:g}" for c in (round(x, 3) + 0.0 for x in plan.down))
+            out.append(f"- {s.folder}/{name}: face ({d}) on the bed, turned "
+                       f"{plan.turn_deg:g} deg; {s.folder}/{name}.step for CAD")
+        plates = sorted(f for f in files if f.startswith(f"{s.folder}/") and f.endswith(".3mf"))
+        if plates:
+            out.append(f"- {s.folder}: print plates {', '.join(plates)} (a top-view PNG "
+                       "beside each)")
+    return out or ["- see each step's folder"]
 
 
 def _round4(x: float | None) -> float | None:
@@ -158,12 +203,16 @@ def finding_record(f: Finding) -> Finding:
                    None if w is None else (_r4(w[0]), _r4(w[1]), _r4(w[2])), f.message)
 
 
-def _step_record(s: LayerStep) -> StepRecord:
+def _step_record(s: LayerStep, files: Mapping[str, bytes]) -> StepRecord:
+    def step_file(name: str) -> str | None:
+        f = f"{s.folder}/{name}.step"
+        return f if f in files else None
+
     parts = tuple(StepPartRecord(p.name, p.role, f"{s.folder}/{p.name}.stl", p.role != "cast",
                                  p.brep_volume_mm3,
                                  None if p.pull_dir is None else
                                  (float(p.pull_dir[0]), float(p.pull_dir[1]),
-                                  float(p.pull_dir[2])))
+                                  float(p.pull_dir[2])), step_file(p.name))
                   for p in s.parts)
     pour = StepPourRecord(s.pour.cast_mm3, s.pour.mixed_mm3, s.pour.mixed_g,
                           tuple(PortionRecord(p.what, p.grams) for p in s.pour.portions))
@@ -175,7 +224,7 @@ def manifest_of(m: LayeredMoldSet, files: dict[str, bytes]) -> SteppedManifest:
     return SteppedManifest(
         STEPPED_FORMAT, __version__, r.name, r.label, m.plan.source_params_sha256,
         ProcessEcho(typing.cast("dict[str, JsonValue]", asdict(r.process))),
-        m.silicone_volume_mm3, tuple(_step_record(s) for s in m.steps),
+        m.silicone_volume_mm3, tuple(_step_record(s, files) for s in m.steps),
         verdict(m.findings), tuple(finding_record(f) for f in m.findings),
         {k: hashlib.sha256(v).hexdigest() for k, v in sorted(files.items())})
 
@@ -183,9 +232,11 @@ def manifest_of(m: LayeredMoldSet, files: dict[str, bytes]) -> SteppedManifest:
 def encode_layered(m: LayeredMoldSet) -> dict[str, bytes]:
     """Every file of ``m`` (relative path -> bytes), the manifest last."""
     files: dict[str, bytes] = {}
-    for s in m.steps:
+    for i, s in enumerate(m.steps):
         files.update(step_files(s, m.recipe.label_text))
-    files[CARD_NAME] = card_text(m)
+        if m.print_plans:
+            files.update(step_print_files(m, s, m.print_plans[i]))
+    files[CARD_NAME] = card_text(m, files)
     files[MANIFEST_NAME] = json_bytes(to_json(manifest_of(m, files)))
     return files
 

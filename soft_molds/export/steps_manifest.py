@@ -32,6 +32,7 @@ class StepPartRecord:
     printable: bool
     volume_mm3: float         # exact (solid) volume
     pull_dir: tuple[float, float, float] | None
+    step: str | None = None   # its STEP file (printed parts), relative to the variant folder
 
 
 @dataclass(frozen=True)

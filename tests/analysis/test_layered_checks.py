@@ -22,6 +22,7 @@ from soft_molds.analysis.layered_checks import (
     air_findings,
     base_layer_finding,
     post_draft_finding,
+    print_plans,
     printing_findings,
     recipe_printer,
     sheet_cover_finding,
@@ -169,7 +170,7 @@ def test_a_tray_longer_than_any_pose_on_a_small_printer_is_an_error(layered):
     # diagonal).
     s = layered.steps[0]
     small = replace(recipe_printer(layered.recipe), bed_mm=(50.0, 50.0), height_mm=50.0)
-    f = one(printing_findings(s, small), "build-volume", "chambered tray")
+    f = one(printing_findings(print_plans(s, small), small), "build-volume", "chambered tray")
     assert f.severity is Severity.ERROR
 
 

@@ -21,6 +21,7 @@ import trimesh
 from conftest import built_layered
 
 from soft_molds.export.layered import encode_layered, write_layered
+from tests.readers import read_3mf, volume
 
 NAME = "seedling-layered-finger"
 
@@ -38,9 +39,10 @@ def test_each_step_has_its_own_folder_with_its_parts(written):
     assert sorted(p.name for p in folder.iterdir()) == [
         "casting-card.md", "manifest.json", "step-1-chambered", "step-2-base"]
     assert sorted(p.name for p in (folder / "step-1-chambered").iterdir()) == [
-        "cast.stl", "post-bridge.stl", "tray.stl"]
+        "cast.stl", "plate-1.3mf", "plate-1.png", "post-bridge.step", "post-bridge.stl",
+        "tray.step", "tray.stl"]
     assert sorted(p.name for p in (folder / "step-2-base").iterdir()) == [
-        "cast.stl", "sheet.svg", "tray.stl"]
+        "cast.stl", "plate-1.3mf", "plate-1.png", "sheet.svg", "tray.step", "tray.stl"]
     for s in m.steps:
         for p in s.parts:
             # trimesh's own STL reader, which welds the triangles' corners.
@@ -122,3 +124,39 @@ def test_casting_card_lists_every_finding_the_manifest_records(written):
     assert len(rows) == len(man["checks"]) == len(m.findings) > 0
     for row, f in zip(rows, man["checks"]):
         assert row == f"- {f['severity']}: {f['check']} ({f['part']}): {f['message']}"
+
+
+def test_each_steps_plate_holds_its_printed_parts_on_the_bed_with_their_volumes(written,
+                                                                                tmp_path):
+    # Reader: lib3mf (the 3MF Consortium's reference library); volume by the divergence
+    # theorem against the solid's exact volume, to the mesh tolerance (0.5 %).
+    m, folder = written
+    bx, by = m.recipe.printer.bed_mm
+    for s in m.steps:
+        _, objects = read_3mf((folder / s.folder / "plate-1.3mf").read_bytes(), tmp_path)
+        printed = [p for p in s.parts if p.role != "cast"]
+        assert sorted(objects) == sorted(f"{p.name} A" for p in printed)
+        for p in printed:
+            v, t = objects[f"{p.name} A"]
+            assert volume(v, t) == pytest.approx(p.brep_volume_mm3, rel=0.005)
+            lo, hi = v.min(axis=0), v.max(axis=0)
+            assert lo[2] == pytest.approx(0.0, abs=1e-4)
+            assert lo[0] >= -1e-4 and lo[1] >= -1e-4 and hi[0] <= bx and hi[1] <= by
+
+
+def test_each_printed_parts_step_file_reads_back_as_one_solid_of_its_volume(written):
+    # Reader: the CAD kernel's own STEP reader (ISO 10303-21 AP214): one solid per file,
+    # its exact volume equal to the part's to 1e-6.
+    import cadquery as cq
+    m, folder = written
+    man = json.loads((folder / "manifest.json").read_text())
+    for s, rec in zip(m.steps, man["steps"]):
+        for p, prec in zip(s.parts, rec["parts"]):
+            if p.role == "cast":
+                assert prec["step"] is None
+                continue
+            assert prec["step"] == f"{s.folder}/{p.name}.step"
+            shape = cq.importers.importStep(str(folder / prec["step"]))
+            solids = shape.solids().vals()
+            assert len(solids) == 1
+            assert solids[0].Volume() == pytest.approx(p.brep_volume_mm3, rel=1e-6)

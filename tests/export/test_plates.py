@@ -14,13 +14,13 @@ import itertools
 import zipfile
 
 import lib3mf
-import numpy as np
 import pytest
 from stl import mesh as npstl
 
 from soft_molds.analysis.plates import PLATE_GAP_MM
 from soft_molds.export.formats import output_formats
 from soft_molds.export.threemf import DECIMALS
+from tests.readers import read_3mf, volume
 
 
 @pytest.fixture(scope="module")
@@ -31,31 +31,6 @@ def plate_set(finger):
 @pytest.fixture(scope="module")
 def stl_set(finger):
     return output_formats()["stl"].encode(finger, finger.manifest())
-
-
-def read_3mf(data: bytes, tmp_path, name="plate.3mf"):
-    """(unit, {object name: (vertices (n, 3), triangles (m, 3))}) as lib3mf reads them."""
-    path = tmp_path / name
-    path.write_bytes(data)
-    model = lib3mf.get_wrapper().CreateModel()
-    reader = model.QueryReader("3mf")
-    reader.ReadFromFile(str(path))
-    assert reader.GetWarningCount() == 0
-    out = {}
-    it = model.GetMeshObjects()
-    while it.MoveNext():
-        obj = it.GetCurrentMeshObject()
-        v = np.array([p.Coordinates[:] for p in obj.GetVertices()], dtype=np.float64)
-        t = np.array([t.Indices[:] for t in obj.GetTriangleIndices()], dtype=np.int64)
-        out[obj.GetName()] = (v, t)
-    assert model.GetBuildItems().Count() == len(out)
-    return model.GetUnit(), out
-
-
-def volume(v: np.ndarray, t: np.ndarray) -> float:
-    # divergence theorem: sum of signed tetrahedra from the origin
-    a, b, c = v[t[:, 0]], v[t[:, 1]], v[t[:, 2]]
-    return float(np.einsum("ij,ij->i", a, np.cross(b, c)).sum() / 6.0)
 
 
 def test_one_plate_holds_the_three_printed_parts_of_the_finger(plate_set):
