@@ -191,7 +191,8 @@ def build_layered(recipe: Recipe, progress: Callable[[str], None] | None = None
         draft = (least_post_draft_deg(next(p for p in parts if p.name == "post-bridge"), layer)
                  if is_chambered(layer) else None)
         steps.append(LayerStep(i, step.name, layer, tuple(parts),
-                               pour_quantities(recipe, cast.brep_volume_mm3), draft))
+                               pour_quantities(recipe, cast.brep_volume_mm3), draft,
+                               solids[step.name].label_boxes))
     say("manufacturability checks")
     with _stage(timings, "analysis", label):
         printer = recipe_printer(recipe)

@@ -34,6 +34,10 @@ class LayerStep:
     parts: tuple[Part, ...]
     pour: Quantities
     least_post_draft_deg: float | None
+    #: World box (lo, hi), mm, of the label cut into each labelled part: its strokes leave
+    #: thin ribs the print-wall check skips.
+    label_boxes: Mapping[str, tuple[tuple[float, float, float],
+                                    tuple[float, float, float]]] = field(default_factory=dict)
 
     @property
     def folder(self) -> str:

@@ -57,7 +57,9 @@ def part_name(s: LayerStep, part: str) -> str:
 
 def print_plans(s: LayerStep, printer: Printer) -> dict[str, PrintPlan]:
     """How each printed part of ``s`` lies on the bed (by part name, casts left out)."""
-    return {p.name: plan_print(p.mesh, part_name(s, p.name), printer)
+    return {p.name: plan_print(p.mesh, part_name(s, p.name), printer,
+                               ignore_boxes=[s.label_boxes[p.name]]
+                               if p.name in s.label_boxes else ())
             for p in s.parts if p.role != "cast"}
 
 

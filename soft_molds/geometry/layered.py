@@ -9,7 +9,7 @@ stands.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from dataclasses import dataclass, field, replace
 
 import cadquery as cq
 
@@ -17,6 +17,9 @@ from ..plan.model import CastingStep, Footprint, LayerKind, Post
 from ..recipe.model import Recipe
 from ..recipe.primitives import RoundedBox
 from .kernel import box, build_primitive, checked, cut, fuse, split_at
+from .mold import Label, cut_label
+
+Box = tuple[tuple[float, float, float], tuple[float, float, float]]
 
 #: Thickness of the post bridge's plate (mm): stiff enough not to sag between the posts.
 PLATE_MM = 4.0
@@ -31,6 +34,27 @@ class LayerSolids:
 
     parts: dict[str, cq.Shape]
     cast_in_actuator_frame: cq.Shape
+    #: The world box (lo, hi) of the label cut into each labelled part (pour orientation).
+    label_boxes: dict[str, Box] = field(default_factory=dict)
+
+
+def _turned_box(b: Box) -> Box:
+    """The box ``b`` after :func:`turn_over`."""
+    (x0, y0, z0), (x1, y1, z1) = b
+    return (x0, -y1, -z1), (x1, -y0, -z0)
+
+
+def _side_label(r: Recipe, shape: cq.Shape, part: str, y_mm: float, z0: float, z1: float,
+                upright: bool) -> tuple[cq.Shape, Label | None]:
+    """Cut the recipe's label into the flat -y side face of ``shape`` (at y = ``y_mm``,
+    spanning z0..z1), centred along the body; ``upright``: read with up along +z, else
+    along -z (a part turned over afterwards then reads upright in pour orientation)."""
+    lo, hi = r.body_bounds()
+    up = (0.0, 0.0, 1.0 if upright else -1.0)
+    # right x up must be the outward normal (-y): right = up x normal.
+    right = (1.0 if upright else -1.0, 0.0, 0.0)
+    centre = ((lo[0] + hi[0]) / 2.0, y_mm, (z0 + z1) / 2.0)
+    return cut_label(r, shape, part, centre, right, up, z1 - z0)
 
 
 def turn_over(shape: cq.Shape) -> cq.Shape:
@@ -100,6 +124,9 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
                if p.center_mm[0] - p.size_mm[0] / 2.0 < 0.0]
     tray = cut(_block(r, wall, bond, hi[2] + wall), [above, *notches], "tray",
                "chambered tray")
+    lo, _ = r.body_bounds()
+    tray, tray_label = _side_label(r, tray, "tray", lo[1] - wall, bond, hi[2] + wall,
+                                   upright=False)
     # The bridge: a plate on the tray's rim, a skirt over the rim's outside (locates it
     # in x and y), an overflow hole beyond the last chamber, and the posts below it.
     plate = _block(r, wall + layer.clearance_mm + SKIRT_WALL_MM, bond - PLATE_MM,
@@ -111,9 +138,18 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
         cutters.append(hole)
     plate = cut(plate, cutters, "post-bridge", "bridge plate")
     bridge = fuse([plate, *posts], "post-bridge", "bridge posts")
+    # The bridge's label goes on the plate's outer face (the face the posts stand on the
+    # other side of), centred over the posts so it clears the overflow hole.
+    far = max(p.center_mm[0] + p.size_mm[0] / 2.0 for p in layer.posts)
+    side = wall + layer.clearance_mm + SKIRT_WALL_MM
+    bridge, bridge_label = cut_label(
+        r, bridge, "post-bridge", ((lo[0] + far) / 2.0, (lo[1] + hi[1]) / 2.0, bond - PLATE_MM),
+        (-1.0, 0.0, 0.0), (0.0, 1.0, 0.0), hi[1] - lo[1] + 2.0 * side)
     parts = {"tray": turn_over(tray), "post-bridge": turn_over(bridge),
              "cast": turn_over(cast)}
-    return LayerSolids(parts, cast)
+    boxes = {name: _turned_box(lab.box) for name, lab in
+             (("tray", tray_label), ("post-bridge", bridge_label)) if lab is not None}
+    return LayerSolids(parts, cast, boxes)
 
 
 def _grown(p: Post, by_mm: float) -> Post:
@@ -147,4 +183,7 @@ def _base(r: Recipe, step: CastingStep, below: cq.Shape) -> LayerSolids:
     guide = footprint_prism(layer.footprint.inset(-c), bond, top + 1.0, "tray")
     block = _block(r, c + wall, lo[2] - wall, top)
     tray = cut(block, [below, guide], "tray", "base tray")
-    return LayerSolids({"tray": tray, "cast": below}, below)
+    tray, lab = _side_label(r, tray, "tray", lo[1] - c - wall, lo[2] - wall, top,
+                            upright=True)
+    return LayerSolids({"tray": tray, "cast": below}, below,
+                       {} if lab is None else {"tray": lab.box})

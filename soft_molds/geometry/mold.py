@@ -88,7 +88,7 @@ def _label_tool(r: Recipe, part: str, centre: Point, right: Point, up: Point,
     return tool, Label(part, text, h, (lo, hi))  # type: ignore[arg-type]
 
 
-def _cut_label(r: Recipe, shape: k.Shape, part: str, centre: Point, right: Point, up: Point,
+def cut_label(r: Recipe, shape: k.Shape, part: str, centre: Point, right: Point, up: Point,
                room_mm: float
                ) -> tuple[k.Shape, Label | None]:
     made = _label_tool(r, part, centre, right, up, room_mm)
@@ -164,7 +164,7 @@ def label_core(r: Recipe, step: CastingStep, core: k.Shape) -> tuple[k.Shape, La
     up = _axis(va)
     normal = _axis(wa)
     right = np.cross(up, normal)
-    return _cut_label(r, core, "core", centre, right, up, hi[va] - lo[va])
+    return cut_label(r, core, "core", centre, right, up, hi[va] - lo[va])
 
 
 @dataclass(frozen=True)

@@ -155,8 +155,10 @@ def test_every_printed_part_has_its_wall_measured(layered):
     assert sorted(walls) == ["base tray", "chambered post-bridge", "chambered tray"]
     assert all(f.severity is Severity.INFO for f in walls.values())
     # Base tray: the pocket and the guide are the body and the footprint grown by the
-    # clearance, the block by clearance + mold.wall_mm: walls of 5 mm (hand value).
-    assert walls["base tray"].value == pytest.approx(5.0, abs=0.01)
+    # clearance, the block by clearance + mold.wall_mm: walls of 5 mm, less the label cut
+    # into its side where the label stands (hand value).
+    depth = layered.recipe.label_settings.depth_mm
+    assert walls["base tray"].value == pytest.approx(5.0 - depth, abs=0.01)
     # Post bridge: its thinnest member is the feed groove's 2 mm square post, drafted 1 deg
     # over its 2 mm height: between 2 - 2 * 2 tan(1 deg) and 2 mm across (hand value).
     lo = 2.0 - 4.0 * math.tan(math.radians(1.0))
@@ -185,6 +187,8 @@ def test_check_on_the_bundled_layered_recipe_passes_and_lists_its_findings(capsy
     path = Path(__file__).resolve().parents[2] / "recipes" / f"{NAME}.yaml"
     assert main(["check", "-v", str(path)]) == 0
     out = capsys.readouterr().out
-    assert "checks: 0 error(s), 0 warning(s), 8 note(s)" in out
+    # Eight notes, and one overhang note per labelled part: the debossed strokes on a
+    # side wall have short ceilings that bridge (common practice: gaps under ~5 mm bridge).
+    assert "checks: 0 error(s), 0 warning(s), 11 note(s)" in out
     for check in ("print-wall", "post-draft", "trapped-air", "base-layer", "sheet-cover"):
         assert f"note    {check}" in out

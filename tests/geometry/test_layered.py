@@ -170,3 +170,24 @@ def test_posts_release_along_plus_z_with_at_least_the_set_draft(layered):
     assert post.sum() > 100
     assert draft.min() >= set_deg - 1e-6
     assert np.isclose(draft, set_deg, atol=1e-6).sum() > 50  # the post sides themselves
+
+
+def test_every_printed_part_carries_the_variant_label_cut_into_a_flat_face(layered):
+    # Variants cast side by side must not be mixed up: every tray and bridge has the label
+    # cut in. Outside reference: manifold3d's volume of the part against the same part with
+    # its label box filled back in (a union with the box clipped to the part's convex hull):
+    # the difference is the text cut away.
+    for s in layered.steps:
+        printed = {p.name for p in s.parts if p.role != "cast"}
+        assert set(s.label_boxes) == printed, s.name
+        for name, (lo, hi) in s.label_boxes.items():
+            part = manifold(s.part(name).mesh)
+            box = m3.Manifold.cube(np.subtract(hi, lo)).translate(lo)
+            hull = m3.Manifold.hull(part)
+            filled = part + (box ^ hull)
+            removed = filled.volume() - part.volume()
+            assert removed > 1.0, (s.name, name)                     # mm3: text was cut
+            # On an outer face: the box straddles one face of the part's bounding box.
+            v = s.part(name).mesh.vertices
+            plo, phi = v.min(axis=0), v.max(axis=0)
+            assert any(lo[k] < b < hi[k] for k in range(3) for b in (plo[k], phi[k]))
