@@ -258,6 +258,8 @@ def _build_layered(r, args: argparse.Namespace) -> int:
               f"{s.pour.mixed_g:.1f} g")
         for p in s.parts:
             print(_fmt_part(p))
+    if m.motion is not None:
+        print(f"  predicted motion ({m.motion.model}, an estimate): {m.motion.headline}")
     for line in _findings_table(m.findings, show_info=args.verbose):
         print(line)
     errors = [f for f in m.findings if f.severity is Severity.ERROR]

@@ -14,6 +14,7 @@ import time
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from dataclasses import replace
+from typing import TYPE_CHECKING
 
 from .analysis.integrity import check_mesh, require_ok
 from .analysis.layered import LayeredMoldSet
@@ -24,6 +25,9 @@ from .plan import MoldPlan, PlaneScore, Role, plan_mold, with_openings, with_par
 from .plan.parting import candidate_planes, rank
 from .plan.rules import first_rule_broken
 from .recipe.model import Recipe
+
+if TYPE_CHECKING:
+    from .geometry.layered import LayerSolids
 
 
 @contextmanager
@@ -162,6 +166,8 @@ def build_layered(recipe: Recipe, progress: Callable[[str], None] | None = None
         pour_quantities,
     )
     from .analysis.layered_checks import layered_findings, print_plans, recipe_printer
+    from .analysis.motion import predict_motion
+    from .analysis.pressure import pressure_findings, wall_pressures
     from .geometry.layered import build_layers
     from .geometry.tessellate import tessellate_within
 
@@ -197,5 +203,31 @@ def build_layered(recipe: Recipe, progress: Callable[[str], None] | None = None
     with _stage(timings, "analysis", label):
         printer = recipe_printer(recipe)
         plans = tuple(print_plans(s, printer) for s in steps)
-        findings = worst_first(layered_findings(recipe, steps, plans))
-    return LayeredMoldSet(plan, tuple(steps), timings, findings, plans)
+        e_mpa, walls = wall_pressures(recipe)
+        findings = worst_first((*layered_findings(recipe, steps, plans),
+                                *pressure_findings(recipe, e_mpa, walls)))
+    say("motion")
+    with _stage(timings, "motion", label):
+        motion = predict_motion(recipe, _actuator_mesh(recipe, solids), walls,
+                                _sheet_point(plan))
+    return LayeredMoldSet(plan, tuple(steps), timings, findings, plans, motion)
+
+
+def _actuator_mesh(recipe: Recipe, solids: dict[str, LayerSolids]) -> TriMesh:
+    """The finished layered actuator (actuator frame), meshed as the casts are."""
+    from .geometry.layered import assembled_actuator
+    from .geometry.tessellate import tessellate_within
+
+    solid = assembled_actuator(solids)
+    return tessellate_within(solid, recipe.mesh.chord_mm, recipe.mesh.angle_deg, "actuator",
+                             k_volume(solid))
+
+
+def _sheet_point(plan: MoldPlan) -> tuple[float, float] | None:
+    """A point (y, z) of the strain-limiting sheet, which lies on the bond face across the
+    footprint, or None without a sheet."""
+    for step in plan.steps:
+        layer = step.layer
+        if layer is not None and layer.sheet_inset_mm is not None:
+            return float(layer.footprint.center_mm[1]), float(layer.bond_z_mm)
+    return None

@@ -18,6 +18,7 @@ from ..plan.model import Layer, LayerKind, MoldPlan
 from ..recipe.model import Recipe
 from .casting import Quantities, silicone_quantities
 from .findings import Finding
+from .motion import MotionCurve
 from .printability import PrintPlan
 from .result import Part
 
@@ -61,6 +62,8 @@ class LayeredMoldSet:
     findings: tuple[Finding, ...] = ()
     #: Per step (pour order), how each printed part lies on the bed, by part name.
     print_plans: tuple[Mapping[str, PrintPlan], ...] = ()
+    #: The finished actuator's predicted motion (None: no modulus, or no model applies).
+    motion: MotionCurve | None = None
 
     @property
     def recipe(self) -> Recipe:

@@ -25,6 +25,7 @@ from ..units import mm3_to_cm3
 from ..version import __version__
 from .card import CAUTIONS
 from .files import json_bytes, write_file_set
+from .manifest import motion_record
 from .plates import plate_files
 from .steps_manifest import (
     STEPPED_FORMAT,
@@ -159,7 +160,9 @@ def card_text(m: LayeredMoldSet, files: Mapping[str, bytes]) -> bytes:
              f"{r.process.draft_deg:g} deg (least measured on the mesh: "
              f"{first.least_post_draft_deg:.3f} deg).", "",
              "The feed groove opens on the inlet face: seal a tube into it with a drop of "
-             "the same silicone.", "", "## Parts to print", ""]
+             "the same silicone.", ""]
+    lines += _motion_lines(m)
+    lines += ["## Parts to print", ""]
     lines += _print_lines(m, files)
     lines += ["", "## Checks", ""]
     # Every finding of both steps, errors first (the order the build keeps), so what the
@@ -173,6 +176,20 @@ def card_text(m: LayeredMoldSet, files: Mapping[str, bytes]) -> bytes:
 
 def _r4(x: float) -> float:
     return round(float(x), 4) + 0.0  # + 0.0: no "-0.0" in the file
+
+
+def _motion_lines(m: LayeredMoldSet) -> list[str]:
+    """The predicted bend at the working pressure, with the model's name (an estimate)."""
+    mo = m.motion
+    if mo is None:
+        return []
+    at = mo.at_working
+    where = (f"about {at.angle_deg:.0f} deg of tip bend at {at.pressure_kpa:g} kPa"
+             if at is not None else f"no prediction at the working pressure (the curve stops "
+             f"at {mo.valid_to_kpa:.0f} kPa: {mo.stop})")
+    return [f"Predicted motion ({mo.model}, an estimate for comparing variants, not a "
+            f"rating): {where}; {mo.linear_deg_per_kpa:.3f} deg per kPa at small pressure.",
+            ""]
 
 
 def _print_lines(m: LayeredMoldSet, files: Mapping[str, bytes]) -> list[str]:
@@ -225,7 +242,8 @@ def manifest_of(m: LayeredMoldSet, files: dict[str, bytes]) -> SteppedManifest:
         STEPPED_FORMAT, __version__, r.name, r.label, m.plan.source_params_sha256,
         ProcessEcho(typing.cast("dict[str, JsonValue]", asdict(r.process))),
         m.silicone_volume_mm3, tuple(_step_record(s, files) for s in m.steps),
-        verdict(m.findings), tuple(finding_record(f) for f in m.findings),
+        None if m.motion is None else motion_record(m.motion), verdict(m.findings),
+        tuple(finding_record(f) for f in m.findings),
         {k: hashlib.sha256(v).hexdigest() for k, v in sorted(files.items())})
 
 

@@ -480,7 +480,7 @@ def manifest_of(molds: BuiltMoldSet) -> Manifest:
             else round(review.modulus_mpa, 4),
             r.inflate.working_pressure_kpa,
             tuple(_wall(w, r.inflate.working_pressure_kpa) for w in molds.pressures)),
-        motion=None if molds.motion is None else _motion(molds.motion),
+        motion=None if molds.motion is None else motion_record(molds.motion),
         params=RecipeEcho(json.loads(json_bytes(r.params()))),
     )
 
@@ -559,7 +559,7 @@ def _motion_point(p: MotionPoint) -> MotionPointRecord:
                              round(p.extension_mm, 4) + 0.0, round(p.max_stretch, 4))
 
 
-def _motion(m: MotionCurve) -> MotionRecord:
+def motion_record(m: MotionCurve) -> MotionRecord:
     i = m.inputs
     return MotionRecord(
         model=m.model, kind=m.kind, youngs_modulus_mpa=round(i.youngs_modulus_mpa, 4),

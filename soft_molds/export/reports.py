@@ -180,8 +180,12 @@ def _family_files(folder: Path, recipe: str, fam: str, members: Sequence[Reporte
             printed.append((man, meshes))
     title = f"{recipe}" + (f" family {fam}" if fam else "")
     written = []
-    curves = tuple(c for c in (motion_curve(m) for m in mans) if c is not None)
-    works = {m.motion.working_pressure_kpa for m in mans if m.motion is not None}
+    stepped = [_stepped_manifest(Path(v.out_dir)) for v, m in zip(members, manifests)
+               if m is None and v.ok]
+    curves = tuple(c for c in (motion_curve(m) for m in (*mans, *stepped) if m is not None)
+                   if c is not None)
+    works = {m.motion.working_pressure_kpa for m in (*mans, *stepped)
+             if m is not None and m.motion is not None}
     # No date on the sheet: the same recipe and version give the same bytes; the version
     # here and the recipe hash on each row name the build instead.
     png, svg = render_sheet(SheetData(title, f"soft-molds {__version__}", tuple(rows),

@@ -204,7 +204,7 @@ def manifest_figures(man: Manifest) -> tuple[Pair, ...]:
     return tuple(figs)
 
 
-def motion_curve(man: Manifest) -> SheetCurve | None:
+def motion_curve(man: Manifest | SteppedManifest) -> SheetCurve | None:
     """The plot's curve of a built variant: its predicted tip angle (a bender) or extension
     (an extender) against pressure, from the manifest; None without a prediction."""
     mo = man.motion
@@ -228,8 +228,13 @@ def stepped_row(man: SteppedManifest, folder: Path,
     figs: list[Pair] = []
     for s in man.steps:
         mix = " + ".join(f"{p.grams:g} g {p.what.split()[-1]}" for p in s.pour.portions)
-        figs.append((f"step {s.index} {s.name}",
-                     f"{mm3_to_cm3(s.pour.cast_mm3):.2f} cm3, mix {mix}"))
+        figs.append((f"pour {s.index}",
+                     f"{s.name} {mm3_to_cm3(s.pour.cast_mm3):.2f} cm3, mix {mix}"))
+    mo = man.motion
+    if mo is not None and mo.working_pressure_kpa is not None:
+        w = mo.at_working
+        figs.append((f"bends at {mo.working_pressure_kpa:.0f} kPa",
+                     f"beyond the {mo.stop}" if w is None else f"about {w.angle_deg:.0f} deg"))
     figs.append(("recipe hash", man.params_sha256[:12]))
     pieces: list[np.ndarray] = []
     floor = 0.0

@@ -17,7 +17,7 @@ from pathlib import Path
 
 from ..analysis.findings import Finding, Verdict, verdict
 from ..version import __version__
-from .manifest import MANIFEST_NAME, ManifestError
+from .manifest import MANIFEST_NAME, ManifestError, MotionRecord
 from .typedjson import JsonValue, ShapeError, from_json
 
 #: The ``format`` word of a stepped manifest (a one-shot manifest has none).
@@ -90,6 +90,7 @@ class SteppedManifest:
     process: ProcessEcho
     actuator_volume_mm3: float
     steps: tuple[StepRecord, ...]
+    motion: MotionRecord | None   # the finished actuator's predicted motion
     verdict: Verdict
     checks: tuple[Finding, ...]
     files: Mapping[str, str] = field(default_factory=dict)

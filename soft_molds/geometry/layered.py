@@ -187,3 +187,11 @@ def _base(r: Recipe, step: CastingStep, below: cq.Shape) -> LayerSolids:
                             upright=True)
     return LayerSolids({"tray": tray, "cast": below}, below,
                        {} if lab is None else {"tray": lab.box})
+
+
+def assembled_actuator(solids: dict[str, LayerSolids]) -> cq.Shape:
+    """The finished actuator (actuator frame): every step's cast joined at the bond face.
+    Its faces split where a chamber's floor meets the base, so a mesh of it tells void
+    surface from the bond."""
+    return fuse([s.cast_in_actuator_frame for s in solids.values()], "actuator",
+                "join the layers")

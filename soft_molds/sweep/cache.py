@@ -105,8 +105,10 @@ def _earlier_stepped(t: Task, root: str | os.PathLike[str], force: bool) -> Outc
     n = counts(man.checks)
     refused = refuses_to_write(man.verdict, force)
     vol, mix = report_figures(round(man.actuator_volume_mm3, 3), man.mixed_grams)
+    bend, ext = motion_figures(man.motion)
     return Outcome(t.recipe.name, t.recipe.label, t.spec.family,
                    Status.REFUSED if refused else Status.UP_TO_DATE,
                    reason=_refusal(man.checks, refused),
                    verdict=man.verdict, errors=n.errors, warnings=n.warnings,
-                   silicone_cm3=vol, mix_g=mix, out_dir=str(output_dir(root, t.recipe)))
+                   silicone_cm3=vol, mix_g=mix, bend_deg=bend, extension_mm=ext,
+                   out_dir=str(output_dir(root, t.recipe)))

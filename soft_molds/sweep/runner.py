@@ -66,6 +66,7 @@ def _run_layered(recipe: Recipe, out_root: str, done: Callable[..., Outcome],
     """A layered variant: both steps built, checked (its own checks, see
     :mod:`soft_molds.analysis.layered_checks`) and written unless an error refuses it."""
     from ..export.layered import write_layered
+    from ..export.manifest import motion_record
     from ..pipeline import build_layered
 
     try:
@@ -82,7 +83,8 @@ def _run_layered(recipe: Recipe, out_root: str, done: Callable[..., Outcome],
         return done(Status.FAILED, f"cannot write: {exc.strerror or exc}")
     grams = [p.grams for s in m.steps for p in s.pour.portions]
     return done(Status.BUILT, "", findings,
-                report_figures(round(m.silicone_volume_mm3, 3), grams))
+                report_figures(round(m.silicone_volume_mm3, 3), grams),
+                motion_figures(None if m.motion is None else motion_record(m.motion)))
 
 
 def _rss_mb() -> float:

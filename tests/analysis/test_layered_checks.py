@@ -187,8 +187,27 @@ def test_check_on_the_bundled_layered_recipe_passes_and_lists_its_findings(capsy
     path = Path(__file__).resolve().parents[2] / "recipes" / f"{NAME}.yaml"
     assert main(["check", "-v", str(path)]) == 0
     out = capsys.readouterr().out
-    # Eight notes, and one overhang note per labelled part: the debossed strokes on a
-    # side wall have short ceilings that bridge (common practice: gaps under ~5 mm bridge).
-    assert "checks: 0 error(s), 0 warning(s), 11 note(s)" in out
+    # Eight notes, one overhang note per labelled part (the debossed strokes on a side
+    # wall have short ceilings that bridge; common practice: gaps under ~5 mm bridge) and
+    # one pressure note per wall group of the chamber row (four).
+    assert "checks: 0 error(s), 0 warning(s), 15 note(s)" in out
     for check in ("print-wall", "post-draft", "trapped-air", "base-layer", "sheet-cover"):
         assert f"note    {check}" in out
+
+
+# --- pressure and motion of the finished actuator ----------------------------------------
+
+
+def test_the_finished_actuator_gets_its_walls_checked_and_bends_about_its_sheet(layered):
+    # The pressure check runs on the finished actuator as on a one-shot cast: one finding
+    # per wall group of the chamber row (the closed-form membranes of the recipe).
+    groups = [f for f in layered.findings if f.check == "pressure"]
+    assert len(groups) == 4 and all(f.severity is Severity.INFO for f in groups)
+    mo = layered.motion
+    assert mo is not None and mo.model == "sheet-bending"
+    # The sheet lies on the bond face, where each chamber's floor is: the pressure's lever
+    # arm about it is half the chamber's height (8 mm in the recipe), to the mesh's
+    # accuracy along the slightly tilted bending direction the feed groove gives.
+    assert mo.inputs.lever_arm_mm == pytest.approx(4.0, abs=0.05)
+    assert mo.at_working is not None and mo.at_working.angle_deg > 0.0
+    assert mo.valid_to_kpa == pytest.approx(min(f.value for f in groups if f.value), rel=1e-3)

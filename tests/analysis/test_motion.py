@@ -178,7 +178,7 @@ def test_neo_hookean_fibre_is_hookes_law_near_unit_stretch():
 
 def test_models_are_registered_bender_first():
     names = [m.name for m in registered_models()]
-    assert names == ["beam-bending", "axial-extending"]
+    assert names == ["sheet-bending", "beam-bending", "axial-extending"]
 
 
 # --- on a built cast ----------------------------------------------------------------------

@@ -68,8 +68,8 @@ def test_a_layered_variant_with_too_little_post_draft_is_refused_and_nothing_wri
     # read by numpy-stl (an independent reader) for each cast's height.
     row = stepped_row(man, folder)
     figs = dict(row.figures)
-    assert figs["step 1 chambered"].startswith(f"{man.steps[0].pour.cast_mm3 / 1000:.2f} cm3")
-    assert figs["step 2 base"].startswith(f"{man.steps[1].pour.cast_mm3 / 1000:.2f} cm3")
+    assert figs["pour 1"].startswith(f"chambered {man.steps[0].pour.cast_mm3 / 1000:.2f} cm3")
+    assert figs["pour 2"].startswith(f"base {man.steps[1].pour.cast_mm3 / 1000:.2f} cm3")
     heights = []
     for s in man.steps:
         z = npstl.Mesh.from_file(str(folder / s.folder / "cast.stl")).vectors[:, :, 2]

@@ -54,20 +54,22 @@ def void_facet_mask(r: Recipe, mesh: TriMesh) -> np.ndarray:
 
 
 def profile_of(mesh: TriMesh, void_facets: np.ndarray, from_mm: float, to_mm: float,
-               void_kinds: Sequence[str], spacing_mm: float = SECTION_SPACING_MM) -> Profile:
+               void_kinds: Sequence[str], spacing_mm: float = SECTION_SPACING_MM,
+               sheet_yz_mm: tuple[float, float] | None = None) -> Profile:
     """Sections of ``mesh`` at the middles of equal slices of [from_mm, to_mm]."""
     count = max(int(np.ceil((to_mm - from_mm) / spacing_mm)), 1)
     dx = (to_mm - from_mm) / count
     xs = from_mm + dx * (np.arange(count) + 0.5)
     return Profile(cut_sections(mesh, xs, void_facets), dx, from_mm, to_mm,
-                   tuple(void_kinds))
+                   tuple(void_kinds), sheet_yz_mm)
 
 
-def predict_motion(r: Recipe, cast: TriMesh, walls: Sequence[WallPressure]
-                   ) -> MotionCurve | None:
+def predict_motion(r: Recipe, cast: TriMesh, walls: Sequence[WallPressure],
+                   sheet_yz_mm: tuple[float, float] | None = None) -> MotionCurve | None:
     """The motion curve of the cast ``cast`` of recipe ``r`` (None when the silicone's
     modulus is unknown, or no model applies). ``walls``: the pressure check's weakest wall
-    per group (their lowest limit ends the curve)."""
+    per group (their lowest limit ends the curve). ``sheet_yz_mm``: a point (y, z) of a
+    strain-limiting sheet bonded flat in the cast (a layered finger's), or None."""
     e = r.material.silicone.youngs_modulus_mpa()
     if e is None or not r.voids:
         return None
@@ -76,7 +78,7 @@ def predict_motion(r: Recipe, cast: TriMesh, walls: Sequence[WallPressure]
     if hi[0] <= start:
         return None
     prof = profile_of(cast, void_facet_mask(r, cast), start, float(hi[0]),
-                      [type(v).KIND for v in r.voids])
+                      [type(v).KIND for v in r.voids], sheet_yz_mm=sheet_yz_mm)
     limits = [w.limit_kpa for w in walls if w.limit_kpa is not None]
     return motion_curve(prof, e, min(limits) if limits else None,
                         r.inflate.working_pressure_kpa,

@@ -29,13 +29,16 @@ _SHARED = frozenset({"registry", "model", "sections", "beam"})
 class Profile:
     """The cast's sections over its pressurised length, evenly spaced: section i is the
     cut at the middle of the i-th slice of thickness ``dx_mm`` between ``from_mm`` and
-    ``to_mm``. ``void_kinds``: the recipe's void kinds (e.g. ``chambers``, ``bore``)."""
+    ``to_mm``. ``void_kinds``: the recipe's void kinds (e.g. ``chambers``, ``bore``).
+    ``sheet_yz_mm``: a point (y, z), mm, of a bonded strain-limiting sheet lying flat across
+    every section (None: no sheet)."""
 
     sections: tuple[Section, ...]
     dx_mm: float
     from_mm: float
     to_mm: float
     void_kinds: tuple[str, ...]
+    sheet_yz_mm: tuple[float, float] | None = None
 
     def load_direction(self) -> tuple[tuple[float, float], float]:
         """Unit (y, z) direction of the pressure's mean offset from the neutral axis, and
