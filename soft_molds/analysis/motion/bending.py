@@ -16,6 +16,9 @@ not a calibration):
   which holds while every wall is well below its balloon limit (the curve stops there).
   The walls between chambers are taken as rigid plates: their own bulging, which makes
   real chambered fingers bend more, is not modelled, so the angle is a lower estimate.
+  Against a nonlinear finite-element solution of the seedling finger's section (package
+  docstring) it gives 72 % of the FE angle at small pressure, falling as the chambers
+  swell.
 - Material: one homogeneous, incompressible neo-Hookean silicone (Young's modulus E from
   the recipe: measured, or Shore A by Gent's relation), each fibre in uniaxial stress
   sigma = (E/3)(l - 1/l^2) (nominal), so the neutral axis is the silicone's centroid at
