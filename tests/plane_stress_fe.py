@@ -228,8 +228,9 @@ def inflate(bar: ChamberedBar, e_mpa: float, pressures_kpa: np.ndarray, x1_mm: f
     iters = 0
     rot, top = [], []
     for target in pressures_kpa:
-        # From rest the first Newton step overshoots (the tip swings well past its
-        # equilibrium, then comes back): start with a quarter step, then double.
+        # From rest a full step's first Newton update overshoots (its largest displacement
+        # five times the converged one at 5 kPa) and the iteration diverges: start with a
+        # quarter step, then double.
         step = min(target - done_kpa, max_step_kpa if done_kpa > 0 else max_step_kpa / 4)
         while done_kpa < target - 1e-12:
             p_try = min(done_kpa + step, target)
