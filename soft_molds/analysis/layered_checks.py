@@ -23,12 +23,14 @@ Frames: pour orientation per step, as the parts are stored; mm, degrees.
 from __future__ import annotations
 
 from collections.abc import Sequence
+from typing import Protocol
 
 from ..plan.model import Footprint
 from ..recipe.model import Recipe
 from .findings import Finding, Severity, finding
 from .layered import LayerStep, is_chambered
 from .printability import Printer, plan_print, print_findings
+from .result import Part
 from .trapped_air import trapped_air
 from .wording import point
 
@@ -50,12 +52,22 @@ def recipe_printer(r: Recipe) -> Printer:
                    overhang_deg=pr.overhang_deg)
 
 
-def part_name(s: LayerStep, part: str) -> str:
+class StepParts(Protocol):
+    """A step of a multi-step process as the printing checks read it."""
+
+    @property
+    def name(self) -> str: ...
+
+    @property
+    def parts(self) -> tuple[Part, ...]: ...
+
+
+def part_name(s: StepParts, part: str) -> str:
     """How a finding names one step's part, e.g. ``chambered post-bridge``."""
     return f"{s.name} {part}"
 
 
-def printing_findings(s: LayerStep, printer: Printer) -> list[Finding]:
+def printing_findings(s: StepParts, printer: Printer) -> list[Finding]:
     """Bed fit, flat face, wall thickness and overhang of every printed part of ``s``."""
     out: list[Finding] = []
     for p in s.parts:
