@@ -11,9 +11,12 @@
   (error narrower than one nozzle width; warning under two, common practice for a slot
   that prints open);
 - ``release``: each printed part moved along its pull against its step's cast (manifold3d).
-  A helical ridge crosses the parting line at a slant, so near that line each shell half
-  drags the ridge's flank: a small locked volume that the soft silicone flexes out of
-  (common practice for thread-guide molds) is a warning, and the volume is printed;
+  A helical ridge crosses the parting plane at a slant, and a gapped ridge ends in a face
+  across it, so a shell half pulled straight off drags slivers of the ridges (measured: up
+  to about 1 mm of travel, none once the half is a few mm off); a small locked volume that
+  the soft silicone flexes out of (common practice for thread-guide molds) is a warning,
+  and the volume is printed. The measure includes the slivers two meshes of one surface
+  share (chord-sized; a fraction of a mm3 here);
 - ``thread``: the thread to cut per helix (a note).
 
 Frame: the actuator frame (mm), z up in pour orientation.
@@ -78,8 +81,8 @@ def release_finding(rel: Release, step: str) -> Finding:
     if rel.locked_mm3 > TOUCH_MM3:
         return finding("release", Severity.WARNING, part,
                        f"pulled along {pull} it drags {rel.locked_mm3:.2f} mm3 of silicone "
-                       f"(at {rel.at_mm:g} mm): the guide ridges' flanks near the parting "
-                       "line; ease the half off, the silicone flexes out",
+                       f"(most at {rel.at_mm:g} mm of travel): slivers of the guide ridges, "
+                       "slanted across its pull; ease the half off, the silicone flexes out",
                        value=rel.locked_mm3, limit=TOUCH_MM3)
     return finding("release", Severity.INFO, part,
                    f"pulled along {pull} it clears the cast (at most {rel.locked_mm3:.4f} "
