@@ -191,3 +191,35 @@ def test_each_part_pulled_along_its_pull_clears_all_but_the_ridge_flanks(om):
             assert rel.locked_mm3 < 0.05 * ridges
             away = manifold(p.mesh).translate(tuple(c * 2 * big for c in p.pull_dir))
             assert (cast ^ away).volume() < TOUCH_MM3
+
+
+@pytest.mark.parametrize("guides", ["single", "none"])
+def test_single_and_no_guides_build_to_their_closed_forms(guides):
+    # A shorter rod (3 turns of guide) keeps this quick; the same closed forms as above:
+    # one helix of 2 pi x turns, or none.
+    from pathlib import Path
+
+    from recipe_text import edit, planned_from_text
+
+    from soft_molds.geometry.overmold import build_casts
+    from soft_molds.plan import plan_mold
+
+    text = (Path(__file__).resolve().parents[2] / "recipes" / f"{NAME}.yaml").read_text()
+    text = edit(text, "guides: double", f"guides: {guides}")
+    text = edit(text, "  length_mm: 60\n", "  length_mm: 24\n")
+    text = edit(text, "length_mm: 56 ", "length_mm: 20 ")
+    r = planned_from_text(text, "short.yaml", "short")
+    first, second = plan_mold(r).steps
+    casts = build_casts(first.overmold, second.overmold)
+    big, small, length = r.body.diameter_mm / 2, r.voids[0].diameter_mm / 2, 24.0
+    p = r.process
+    turns = (length - 2 * GUIDE_MARGIN_MM) / p.guide_pitch_mm
+    ridges = (p.guide_width_mm * p.guide_height_mm * (big + p.guide_height_mm / 2)
+              * 2 * math.pi * turns) if guides == "single" else 0.0
+    tube = math.pi * (big ** 2 - small ** 2) * length
+    assert casts.bladder.Volume() == pytest.approx(tube + ridges, rel=1e-5)
+    sk = second.overmold
+    skin = (math.pi * sk.cavity_radius_mm ** 2 * sk.cavity_end_x_mm
+            - math.pi * big ** 2 * length - ridges
+            - math.pi * small ** 2 * (sk.core.end_x_mm - length))
+    assert casts.skin.Volume() == pytest.approx(skin, rel=1e-5)
