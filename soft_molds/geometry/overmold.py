@@ -83,7 +83,7 @@ def build_casts(bladder_step: Overmold, skin_step: Overmold) -> OvermoldCasts:
     ridges = [ridge_piece(bl, p) for p in bl.pieces]
     full = math.pi * bl.outer_radius_mm ** 2 * bl.length_mm + bl.ridge_volume_mm3()
     outside = k.fuse([tube, *ridges], "cast", "fuse the guide ridges to the tube",
-                     volume_mm3=full, )
+                     volume_mm3=full)
     core = build_core(bladder_step.core)
     bladder = k.cut(outside, [core], "cast", "cut the bore", volume_mm3=bl.volume_mm3())
     rs, end = skin_step.cavity_radius_mm, skin_step.cavity_end_x_mm
