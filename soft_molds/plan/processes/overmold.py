@@ -46,8 +46,6 @@ GUIDE_MARGIN_MM = 3.0
 #: the pieces never touch, so they are fused to the tube one by one in one boolean (two
 #: crossing helical sweeps fused together took over half a minute and often failed).
 CROSSING_CLEAR_RAD = 0.25
-#: Longest piece of a single guide (rad): half a turn.
-SINGLE_PIECE_RAD = math.pi
 #: Shortest piece of a gapped ridge worth building (rad).
 MIN_PIECE_RAD = 0.05
 #: Wall kept between the core's seat and the far wall's outside (mm).
@@ -111,8 +109,7 @@ def crossing_gap_rad(r: Recipe) -> float:
 
 
 def guide_pieces(r: Recipe) -> tuple[GuidePiece, ...]:
-    """The guide ridges as pieces. Single: one right-handed helix in touching pieces of
-    at most SINGLE_PIECE_RAD. Double: a right- and a
+    """The guide ridges as pieces. Single: one right-handed helix. Double: a right- and a
     left-handed helix from the same start; they cross wherever t = k pi, and each crossing
     leaves one of them whole and the other gapped (the right at even k, the left at odd k),
     so no two pieces meet."""
@@ -122,10 +119,7 @@ def guide_pieces(r: Recipe) -> tuple[GuidePiece, ...]:
     if p.guides == "none" or total <= 0.0:
         return ()
     if p.guides == "single":
-        # Touching pieces of at most half a turn: one sweep over many turns fused to the
-        # tube lost 4e-5 of the volume (3 turns); half-turn pieces fused to 2e-7.
-        n = math.ceil(total / SINGLE_PIECE_RAD)
-        return tuple(GuidePiece(1, total * i / n, total * (i + 1) / n) for i in range(n))
+        return (GuidePiece(1, 0.0, total),)
     gap = crossing_gap_rad(r)
     out = []
     for hand, parity in ((1, 0), (-1, 1)):
