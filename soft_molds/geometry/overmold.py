@@ -28,8 +28,11 @@ from . import kernel as k
 RIDGE_ROOT_MM = 0.3
 #: The sprue and vent cuts start this far inside the cavity (mm), as the one-shot shells'.
 CAVITY_OVERLAP_MM = 0.3
-#: Relative slack of a ridged solid's volume against its closed form: the helical sweep's
-#: B-spline surfaces carry it to about 1e-6 (measured); 1e-4 is far above that.
+#: Relative slack of a ridged solid's volume against its closed form: one helical sweep
+#: carries it to about 1e-6, but a sweep over several turns fused to the tube came out
+#: 4e-5 short (measured: 3 turns of a single guide; the double guide's shorter pieces fuse
+#: to 1e-7). Cutting a long single guide into touching half turns was worse (1.4 % short
+#: at a 2 mm pitch), so the slack is 1e-4 and a single guide is one sweep.
 RIDGE_VOLUME_TOL = 1e-4
 
 
@@ -83,15 +86,19 @@ def build_casts(bladder_step: Overmold, skin_step: Overmold) -> OvermoldCasts:
     ridges = [ridge_piece(bl, p) for p in bl.pieces]
     full = math.pi * bl.outer_radius_mm ** 2 * bl.length_mm + bl.ridge_volume_mm3()
     outside = k.fuse([tube, *ridges], "cast", "fuse the guide ridges to the tube",
-                     volume_mm3=full)
+                     volume_mm3=full, rel_tol=RIDGE_VOLUME_TOL)
     core = build_core(bladder_step.core)
-    bladder = k.cut(outside, [core], "cast", "cut the bore", volume_mm3=bl.volume_mm3())
+    # The cuts are checked against the fused outside as measured (its closed form was
+    # checked above, to RIDGE_VOLUME_TOL): the core's rod fills the bore over the length.
+    out_vol = k.volume(outside)
+    bore = math.pi * bl.bore_radius_mm ** 2 * bl.length_mm
+    bladder = k.cut(outside, [core], "cast", "cut the bore", volume_mm3=out_vol - bore)
     rs, end = skin_step.cavity_radius_mm, skin_step.cavity_end_x_mm
     cavity = k.cylinder(0, (0.0, 0.0, 0.0), end, rs)
     c = skin_step.core
     beyond = math.pi * c.radius_mm ** 2 * (c.end_x_mm - bl.length_mm)
     skin = k.cut(cavity, [outside, core], "cast", "cut the bladder from the skin cavity",
-                 volume_mm3=math.pi * rs * rs * end - full - beyond)
+                 volume_mm3=math.pi * rs * rs * end - out_vol - beyond)
     return OvermoldCasts(outside, bladder, core, cavity, skin)
 
 
