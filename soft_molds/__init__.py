@@ -12,8 +12,8 @@ Public API::
 ``load_recipe`` and ``load_variants`` check the recipe and the rules of the mold it plans
 (parting plane, block features), every problem at once, before any CAD kernel is loaded;
 ``build``, ``MoldSet`` and ``Part`` load the mesh and CAD libraries on first use. A recipe
-with ``process: {kind: layered}`` is built by ``build_layered`` (two pours, see
-``soft_molds.export.layered.write_layered`` for its files).
+with ``process: {kind: layered}`` or ``{kind: overmold}`` is built by ``build_steps`` (two
+pours; ``soft_molds.export.overmold.write_steps`` writes its files).
 """
 
 from __future__ import annotations
@@ -33,11 +33,11 @@ from .version import __version__
 
 __all__ = [
     "GeometryError", "MeshIntegrityError", "MoldSet", "Part", "Recipe", "RecipeError",
-    "SoftMoldsError", "__version__", "build", "build_layered", "load_recipe",
+    "SoftMoldsError", "__version__", "build", "build_layered", "build_steps", "load_recipe",
     "load_variants",
 ]
 
-_LAZY = {"build", "build_layered", "MoldSet", "Part"}
+_LAZY = {"build", "build_layered", "build_steps", "MoldSet", "Part"}
 
 
 def load_recipe(path: str | os.PathLike) -> Recipe:

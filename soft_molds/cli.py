@@ -192,8 +192,8 @@ def cmd_build(args: argparse.Namespace) -> int:
     status = 0
     for _, r in variants:
         t = time.perf_counter()
-        if r.process.layered:
-            status = max(status, _build_layered(r, args))
+        if r.process.multi_step:
+            status = max(status, _build_steps(r, args))
             continue
         try:
             molds = build(r)
@@ -236,22 +236,23 @@ def cmd_build(args: argparse.Namespace) -> int:
     return status
 
 
-def _build_layered(r, args: argparse.Namespace) -> int:
-    """Build and write a layered recipe: both steps' parts, the pours in order and the
-    findings; like a one-shot mold, nothing is written on an error unless forced."""
+def _build_steps(r, args: argparse.Namespace) -> int:
+    """Build and write a recipe of a multi-step process (layered, overmold): every step's
+    parts, the pours in order and the findings; like a one-shot mold, nothing is written
+    on an error unless forced."""
     from .analysis.findings import refuses_to_write, verdict
-    from .export.layered import write_layered
-    from .pipeline import build_layered
+    from .export.overmold import write_steps
+    from .pipeline import build_steps
 
     out = args.out
 
     t = time.perf_counter()
     try:
-        m = build_layered(r)
+        m = build_steps(r)
     except SoftMoldsError as exc:
         print(f"error: {r.source}: {exc}", file=sys.stderr)
         return 1
-    print(f"{r.name} {r.label}: built in {time.perf_counter() - t:.1f} s (layered, "
+    print(f"{r.name} {r.label}: built in {time.perf_counter() - t:.1f} s ({r.process.kind}, "
           f"{len(m.steps)} pours)")
     for s in m.steps:
         print(f"  pour {s.index} ({s.name}): {mm3_to_cm3(s.pour.cast_mm3):.2f} cm3, mix "
@@ -269,7 +270,7 @@ def _build_layered(r, args: argparse.Namespace) -> int:
               file=sys.stderr)
         return 1
     try:
-        paths = write_layered(m, out)
+        paths = write_steps(m, out)
     except OSError as exc:
         print(f"error: cannot write under {out}: {exc.strerror or exc}", file=sys.stderr)
         return 1
@@ -282,17 +283,17 @@ def cmd_check(args: argparse.Namespace) -> int:
     variants, bad = _load(args.recipes)
     if bad:
         return 2
-    from .pipeline import build, build_layered
+    from .pipeline import build, build_steps
 
     failed = []
     files: dict[str, bool] = {}  # recipe file -> every variant passed
     for _, r in variants:
         files.setdefault(r.source, True)
-        if r.process.layered:
-            # Layered steps get their own checks (trays and a post bridge, not two
-            # shells and a core): see soft_molds.analysis.layered_checks.
+        if r.process.multi_step:
+            # Multi-step processes get their own checks (trays and a post bridge, or two
+            # pours on one core): see soft_molds.analysis.layered_checks, overmold_checks.
             try:
-                lm = build_layered(r)
+                lm = build_steps(r)
             except SoftMoldsError as exc:
                 failed.append(f"{r.source} {r.label}: {exc}".splitlines()[0])
                 files[r.source] = False
@@ -300,8 +301,8 @@ def cmd_check(args: argparse.Namespace) -> int:
                 continue
             errs = [f for f in lm.findings if f.severity is Severity.ERROR]
             warns = [f for f in lm.findings if f.severity is Severity.WARNING]
-            bad_layered = bool(errs) or (args.strict and bool(warns))
-            print(f"{'FAIL' if bad_layered else 'ok  '} {r.source}: {r.name} {r.label}, "
+            bad_steps = bool(errs) or (args.strict and bool(warns))
+            print(f"{'FAIL' if bad_steps else 'ok  '} {r.source}: {r.name} {r.label}, "
                   f"{len(lm.steps)} pours, {sum(len(s.parts) for s in lm.steps)} parts "
                   "closed and consistent")
             for st in lm.steps:
@@ -309,7 +310,7 @@ def cmd_check(args: argparse.Namespace) -> int:
                     print(_fmt_part(p))
             for line in _findings_table(lm.findings, show_info=args.verbose):
                 print(line)
-            if bad_layered:
+            if bad_steps:
                 worst = (errs or warns)[0]
                 failed.append(f"{r.source} {r.label}: {worst.check}: {worst.message}")
                 files[r.source] = False
@@ -672,7 +673,7 @@ def cmd_show(args: argparse.Namespace) -> int:
         print(f"error: {exc}", file=sys.stderr)
         return 1
     _, r = variants[0]
-    if r.process.layered:
+    if r.process.multi_step:
         print(f"error: {r.source}: show takes one-shot recipes for now", file=sys.stderr)
         return 1
     from .pipeline import build

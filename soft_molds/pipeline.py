@@ -18,16 +18,29 @@ from typing import TYPE_CHECKING
 
 from .analysis.integrity import check_mesh, require_ok
 from .analysis.layered import LayeredMoldSet
+from .analysis.overmold import OvermoldMoldSet
 from .errors import GeometryError, SoftMoldsError
 from .meshdata import TriMesh
 from .moldset import MoldSet, Part
-from .plan import MoldPlan, PlaneScore, Role, plan_mold, with_openings, with_parting
+from .plan import (
+    MoldPlan,
+    Opening,
+    PlaneScore,
+    Role,
+    plan_mold,
+    with_openings,
+    with_parting,
+)
 from .plan.parting import candidate_planes, rank
 from .plan.rules import first_rule_broken
 from .recipe.model import Recipe
 
 if TYPE_CHECKING:
     from .geometry.layered import LayerSolids
+
+#: What a multi-step build returns: its ``steps`` (each with ``index``, ``name``, ``parts``,
+#: ``pour`` and ``folder``), ``findings`` and ``recipe``.
+StepwiseMoldSet = LayeredMoldSet | OvermoldMoldSet
 
 
 @contextmanager
@@ -61,8 +74,9 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     from .geometry import mold
     from .geometry.tessellate import tessellate_within
 
-    if recipe.process.layered:
-        raise ValueError(f"{recipe.name}: a layered recipe is built by build_layered")
+    if recipe.process.multi_step:
+        raise ValueError(f"{recipe.name}: a {recipe.process.kind} recipe is built by "
+                         "build_steps")
     say = progress or (lambda _msg: None)
     timings: dict[str, float] = {}
     label = recipe.label
@@ -202,7 +216,7 @@ def build_layered(recipe: Recipe, progress: Callable[[str], None] | None = None
     say("manufacturability checks")
     with _stage(timings, "analysis", label):
         printer = recipe_printer(recipe)
-        plans = tuple(print_plans(s, printer) for s in steps)
+        plans = tuple(print_plans(s, printer, s.label_boxes) for s in steps)
         e_mpa, walls = wall_pressures(recipe)
         findings = worst_first((*layered_findings(recipe, steps, plans),
                                 *pressure_findings(recipe, e_mpa, walls)))
@@ -231,3 +245,104 @@ def _sheet_point(plan: MoldPlan) -> tuple[float, float] | None:
         if layer is not None and layer.sheet_inset_mm is not None:
             return float(layer.footprint.center_mm[1]), float(layer.bond_z_mm)
     return None
+
+
+def build_overmold(recipe: Recipe, progress: Callable[[str], None] | None = None
+                   ) -> OvermoldMoldSet:
+    """Plan, build, tessellate and check both steps of an overmold recipe (see
+    :mod:`soft_molds.plan.processes.overmold`). Raises like :func:`build`."""
+    from .analysis.findings import worst_first
+    from .analysis.highpoints import plan_openings
+    from .analysis.overmold import (
+        OvermoldStep,
+        axis_yz_mm,
+        pour_quantities,
+        radial_extent_mm,
+        releases,
+        thread_plan,
+    )
+    from .analysis.overmold_checks import overmold_findings
+    from .geometry import overmold as g
+    from .geometry.tessellate import tessellate_within
+
+    say = progress or (lambda _msg: None)
+    timings: dict[str, float] = {}
+    label = recipe.label
+    chord, angle = recipe.mesh.chord_mm, recipe.mesh.angle_deg
+    plan = plan_mold(recipe)
+    first, second = plan.steps
+    assert first.overmold is not None and second.overmold is not None
+    say("bladder, core and skin")
+    with _stage(timings, "casts", label):
+        casts = g.build_casts(first.overmold, second.overmold)
+    cavities = {first.name: casts.outside, second.name: casts.skin_cavity}
+    step_casts = {first.name: casts.bladder, second.name: casts.skin}
+    steps = []
+    for i, step in enumerate(plan.steps, start=1):
+        om = step.overmold
+        assert om is not None
+        cast = step_casts[step.name]
+        with _stage(timings, "tessellate", label):
+            vol = k_volume(cast)
+            cast_mesh = tessellate_within(cast, chord, angle, f"{step.name} cast", vol)
+        say(f"{step.name}: sprue, vents and shells")
+        with _stage(timings, "features", label):
+            plan = with_openings_of(plan, step.name, plan_openings(
+                cast_mesh, step.settled_parting.up, recipe.mold.sprue_diameter_mm / 2.0,
+                recipe.mold.vent_diameter_mm / 2.0))
+            step = next(s for s in plan.steps if s.name == step.name)
+        with _stage(timings, "shell", label):
+            shells = g.build_shells(om, cavities[step.name], casts.core, step.openings)
+        solids = {"shell-lower": shells.lower, "shell-upper": shells.upper,
+                  "core": casts.core, "cast": cast}
+        parts = []
+        for spec in step.parts:
+            solid = solids[spec.name]
+            name = f"{step.name} {spec.name}"
+            with _stage(timings, "tessellate", label):
+                v = vol if spec.role is Role.CAST else k_volume(solid)
+                mesh = cast_mesh if spec.role is Role.CAST else tessellate_within(
+                    solid, chord, angle, name, v)
+                report = check_mesh(mesh, name, v)
+            require_ok(report, label)
+            parts.append(Part(spec.name, str(spec.role), solid, mesh, v, spec.pull_dir,
+                              report))
+        with _stage(timings, "analysis", label):
+            rel = releases([p for p in parts if p.role != Role.CAST], cast_mesh)
+        steps.append(OvermoldStep(i, step.name, om, tuple(parts),
+                                  pour_quantities(recipe, vol, shells.fill_volume_mm3),
+                                  step.openings, rel))
+    say("manufacturability checks")
+    with _stage(timings, "analysis", label):
+        bladder_mesh = steps[0].part("cast").mesh
+        skin_mesh = steps[1].part("cast").mesh
+        bl = first.overmold.bladder
+        skin_r = second.overmold.cavity_radius_mm
+        # The bore's surface of the bladder against the skin cavity's wall.
+        by, bz = axis_yz_mm(bladder_mesh, 0.0, (bl.bore_radius_mm + bl.outer_radius_mm) / 2)
+        sy, sz = axis_yz_mm(skin_mesh, skin_r - 0.25 * (skin_r - bl.crest_radius_mm), skin_r
+                            + 1.0)
+        offset = float(((by - sy) ** 2 + (bz - sz) ** 2) ** 0.5)
+        over = radial_extent_mm(skin_mesh) - max(
+            radial_extent_mm(bladder_mesh),
+            bl.outer_radius_mm + recipe.process.thread_diameter_mm)
+        thread = thread_plan(recipe, bl)
+        findings = worst_first(overmold_findings(recipe, steps, over, offset, thread))
+    return OvermoldMoldSet(plan, tuple(steps), thread, over, offset, timings, findings)
+
+
+def with_openings_of(plan: MoldPlan, step_name: str, openings: tuple[Opening, ...]
+                     ) -> MoldPlan:
+    """The plan with the openings the analysis stage located on one step's cast."""
+    step = next(s for s in plan.steps if s.name == step_name)
+    return plan.with_step(replace(step, openings=tuple(openings)))
+
+
+def build_steps(recipe: Recipe, progress: Callable[[str], None] | None = None
+                ) -> StepwiseMoldSet:
+    """Build a recipe of a multi-step process (``process.multi_step``) by its kind."""
+    if recipe.process.layered:
+        return build_layered(recipe, progress)
+    if recipe.process.kind == "overmold":
+        return build_overmold(recipe, progress)
+    raise ValueError(f"{recipe.name}: process {recipe.process.kind!r} is built by build")

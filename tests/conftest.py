@@ -51,17 +51,20 @@ def twister():
     return built("wrist-twister")
 
 
-def _layered(path: Path) -> bool:
-    """Recipes cast by the layered process build into a different result (two steps of
-    trays): the tests of the one-shot mold set leave them to tests/*/test_layered*.py."""
+def _process(path: Path) -> str:
+    """The casting process of a recipe file. Recipes of a multi-step process (layered,
+    overmold) build into a different result (steps): the tests of the one-shot mold set
+    leave them to tests/*/test_layered*.py and tests/*/test_overmold*.py."""
     import yaml
 
     doc = yaml.safe_load(path.read_text())
-    return isinstance(doc.get("process"), dict) and doc["process"].get("kind") == "layered"
+    block = doc.get("process")
+    return str(block.get("kind", "one-shot")) if isinstance(block, dict) else "one-shot"
 
 
-BUNDLED = sorted(p.stem for p in RECIPES.glob("*.yaml") if not _layered(p))
-LAYERED = sorted(p.stem for p in RECIPES.glob("*.yaml") if _layered(p))
+BUNDLED = sorted(p.stem for p in RECIPES.glob("*.yaml") if _process(p) == "one-shot")
+LAYERED = sorted(p.stem for p in RECIPES.glob("*.yaml") if _process(p) == "layered")
+MULTI_STEP = sorted(p.stem for p in RECIPES.glob("*.yaml") if _process(p) != "one-shot")
 
 
 def built_layered(name: str):
@@ -72,6 +75,18 @@ def built_layered(name: str):
         from soft_molds.pipeline import build_layered
 
         _cache[key] = build_layered(load_recipe(recipe_path(name)))
+    return _cache[key]
+
+
+def built_steps(name: str):
+    """The built set of a bundled multi-step recipe ``name`` (built on first use, then
+    shared; a layered recipe's is :func:`built_layered`'s)."""
+    key = f"layered:{name}"
+    if key not in _cache:
+        from soft_molds import load_recipe
+        from soft_molds.pipeline import build_steps
+
+        _cache[key] = build_steps(load_recipe(recipe_path(name)))
     return _cache[key]
 
 

@@ -23,12 +23,14 @@ Frames: pour orientation per step, as the parts are stored; mm, degrees.
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
+from typing import Protocol
 
 from ..plan.model import Footprint
 from ..recipe.model import Recipe
 from .findings import Finding, Severity, finding
 from .layered import LayerStep, is_chambered
 from .printability import Printer, PrintPlan, plan_print, print_findings
+from .result import Part
 from .trapped_air import trapped_air
 from .wording import point
 
@@ -50,16 +52,32 @@ def recipe_printer(r: Recipe) -> Printer:
                    overhang_deg=pr.overhang_deg)
 
 
-def part_name(s: LayerStep, part: str) -> str:
+class StepParts(Protocol):
+    """A step of a multi-step process as the printing checks read it."""
+
+    @property
+    def name(self) -> str: ...
+
+    @property
+    def parts(self) -> tuple[Part, ...]: ...
+
+
+def part_name(s: StepParts, part: str) -> str:
     """How a finding names one step's part, e.g. ``chambered post-bridge``."""
     return f"{s.name} {part}"
 
 
-def print_plans(s: LayerStep, printer: Printer) -> dict[str, PrintPlan]:
-    """How each printed part of ``s`` lies on the bed (by part name, casts left out)."""
+Box = tuple[tuple[float, float, float], tuple[float, float, float]]
+
+
+def print_plans(s: StepParts, printer: Printer, label_boxes: Mapping[str, Box] | None = None
+                ) -> dict[str, PrintPlan]:
+    """How each printed part of ``s`` lies on the bed (by part name, casts left out);
+    ``label_boxes``: the world box of the label cut into a part, whose strokes' thin ribs
+    the wall check skips."""
+    boxes = label_boxes or {}
     return {p.name: plan_print(p.mesh, part_name(s, p.name), printer,
-                               ignore_boxes=[s.label_boxes[p.name]]
-                               if p.name in s.label_boxes else ())
+                               ignore_boxes=[boxes[p.name]] if p.name in boxes else ())
             for p in s.parts if p.role != "cast"}
 
 

@@ -13,7 +13,6 @@ import math
 import os
 import typing
 from collections.abc import Mapping, Sequence
-from dataclasses import asdict
 from pathlib import Path
 
 from ..analysis.findings import Finding, verdict
@@ -240,9 +239,10 @@ def manifest_of(m: LayeredMoldSet, files: dict[str, bytes]) -> SteppedManifest:
     r = m.recipe
     return SteppedManifest(
         STEPPED_FORMAT, __version__, r.name, r.label, m.plan.source_params_sha256,
-        ProcessEcho(typing.cast("dict[str, JsonValue]", asdict(r.process))),
+        ProcessEcho(typing.cast("dict[str, JsonValue]", r.process.params())),
         m.silicone_volume_mm3, tuple(_step_record(s, files) for s in m.steps),
-        None if m.motion is None else motion_record(m.motion), verdict(m.findings),
+        None if m.motion is None else motion_record(m.motion), None, None, None,
+        verdict(m.findings),
         tuple(finding_record(f) for f in m.findings),
         {k: hashlib.sha256(v).hexdigest() for k, v in sorted(files.items())})
 

@@ -20,8 +20,10 @@ from ..version import __version__
 from .manifest import MANIFEST_NAME, ManifestError, MotionRecord
 from .typedjson import JsonValue, ShapeError, from_json
 
-#: The ``format`` word of a stepped manifest (a one-shot manifest has none).
+#: The ``format`` word of a stepped manifest, per process (a one-shot manifest has none).
 STEPPED_FORMAT = "soft-molds layered manifest"
+OVERMOLD_FORMAT = "soft-molds overmold manifest"
+STEPPED_FORMATS = (STEPPED_FORMAT, OVERMOLD_FORMAT)
 
 
 @dataclass(frozen=True)
@@ -50,13 +52,38 @@ class StepPourRecord:
 
 
 @dataclass(frozen=True)
+class OpeningRecord:
+    kind: str                 # sprue or vent
+    center_mm: tuple[float, float, float]
+    radius_mm: float
+
+
+@dataclass(frozen=True)
 class StepRecord:
+    """One pour. ``least_post_draft_deg``: a layered chambered step's least post draft;
+    ``openings``: sprue and vents of a closed shell; ``release_locked_mm3``: per part, the
+    cast it drags when pulled (overmold shells over the thread guides)."""
+
     index: int                # 1-based, pour order
     name: str
     folder: str
     parts: tuple[StepPartRecord, ...]
     pour: StepPourRecord
     least_post_draft_deg: float | None
+    openings: tuple[OpeningRecord, ...] = ()
+    release_locked_mm3: Mapping[str, float] = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class ThreadRecord:
+    """The thread to cut for an overmolded bladder's guides (mm)."""
+
+    helices: int
+    turns: float
+    diameter_mm: float
+    pitch_mm: float
+    per_helix_mm: float
+    total_mm: float
 
 
 @dataclass(frozen=True)
@@ -91,6 +118,9 @@ class SteppedManifest:
     actuator_volume_mm3: float
     steps: tuple[StepRecord, ...]
     motion: MotionRecord | None   # the finished actuator's predicted motion
+    thread: ThreadRecord | None   # overmold: the thread for the guides
+    skin_over_guides_mm: float | None
+    axis_offset_mm: float | None
     verdict: Verdict
     checks: tuple[Finding, ...]
     files: Mapping[str, str] = field(default_factory=dict)
@@ -114,8 +144,8 @@ def read_stepped_manifest(path: str | os.PathLike[str]) -> SteppedManifest:
         raise ManifestError(p, "", "no such file") from None
     except (OSError, UnicodeDecodeError, ValueError) as exc:
         raise ManifestError(p, "", f"cannot read it as JSON: {exc}") from None
-    if not isinstance(data, dict) or data.get("format") != STEPPED_FORMAT:
-        raise ManifestError(p, "format", f"expected {STEPPED_FORMAT!r}")
+    if not isinstance(data, dict) or data.get("format") not in STEPPED_FORMATS:
+        raise ManifestError(p, "format", f"expected one of {', '.join(STEPPED_FORMATS)}")
     if data.get("version") != __version__:
         raise ManifestError(p, "version", f"written by soft_molds {data.get('version')!r}; "
                             f"this is {__version__} (build the variant again)")

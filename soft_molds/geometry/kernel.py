@@ -328,14 +328,15 @@ def build_primitive(p: Primitive, part: str) -> cq.Shape:
 
 
 def fuse(shapes: Sequence[cq.Shape], part: str, step: str,
-         volume_mm3: float | None = None, solids: int | None = 1) -> cq.Shape:
+         volume_mm3: float | None = None, solids: int | None = 1,
+         rel_tol: float = VOLUME_REL_TOL) -> cq.Shape:
     """Fuse many solids in one boolean (one by one grows quadratically, kernel-notes).
     ``solids``: how many separate solids the result must have (None: any number, e.g. voids
     that meet only in the tube socket, fused with it later)."""
     if not shapes:
         raise GeometryError(step, "nothing to fuse", part)
     if len(shapes) == 1:
-        return checked(shapes[0], part, step, volume_mm3=volume_mm3)
+        return checked(shapes[0], part, step, volume_mm3=volume_mm3, rel_tol=rel_tol)
     try:
         out = shapes[0]._bool_op((shapes[0],), shapes[1:], BRepAlgoAPI_Fuse(),
                                  parallel=_PARALLEL)
@@ -346,7 +347,7 @@ def fuse(shapes: Sequence[cq.Shape], part: str, step: str,
     # the count was left open, so the booleans downstream see the same input.
     found = len(solids_of(shape))
     return checked(shape, part, step, 1 if found == 1 else solids, volume_mm3=volume_mm3,
-                   known_valid=valid, known_volume=vol)
+                   rel_tol=rel_tol, known_valid=valid, known_volume=vol)
 
 
 def cut(base: cq.Shape, tools: Sequence[cq.Shape], part: str, step: str,

@@ -25,7 +25,7 @@ from .model import (
     PlaneScore,
     Role,
 )
-from .processes import steps_of
+from .processes import own_problems, steps_of
 from .rules import first_rule_broken, frame_problems, parting_problems, printer_problems
 
 __all__ = ["CastingStep", "ChosenBy", "CoreSupport", "Inlet", "Layout", "MoldPlan", "Opening",
@@ -42,10 +42,9 @@ def plan_problems(r: Recipe) -> list[Problem]:
     out = frame_problems(r, line)
     if out:
         return out
-    if r.process.layered:
-        from .processes.layered import layered_problems
-
-        return layered_problems(r, line)
+    own = own_problems(r.process.kind)
+    if own is not None:
+        return own(r, line)
     if not r.parting.auto:
         assert r.parting.offset_mm is not None
         return parting_problems(r, r.parting.axis, r.parting.offset_mm, line)

@@ -272,6 +272,122 @@ class Layer:
         return self.kind is LayerKind.CHAMBERED
 
 
+class OvermoldKind(StrEnum):
+    """``bladder``: the first pour, the ridged tube around the rod core; ``skin``: the
+    second, the skin cast over the wound bladder on the same core."""
+
+    BLADDER = "bladder"
+    SKIN = "skin"
+
+
+@dataclass(frozen=True)
+class GuidePiece:
+    """One piece of a helical guide ridge (actuator frame, mm, rad): the ridge's section,
+    ``width`` along x by ``height`` out of the bladder, in a plane through the x axis,
+    screwed about +x: at helix angle t it is turned by ``hand`` x t about +x (the right
+    hand rule; 0 = +z) and moved to x = start + pitch t / (2 pi). The piece spans t in
+    [``t0_rad``, ``t1_rad``]."""
+
+    hand: int
+    t0_rad: float
+    t1_rad: float
+
+    @property
+    def span_rad(self) -> float:
+        return self.t1_rad - self.t0_rad
+
+
+@dataclass(frozen=True)
+class Bladder:
+    """The first pour (actuator frame, mm): a tube x in [0, ``length_mm``] between
+    ``bore_radius_mm`` and ``outer_radius_mm`` about the x axis, with guide ridges whose
+    helices start at x = ``guide_start_x_mm``."""
+
+    outer_radius_mm: float
+    bore_radius_mm: float
+    length_mm: float
+    guide_pitch_mm: float
+    guide_height_mm: float
+    guide_width_mm: float
+    guide_start_x_mm: float
+    pieces: tuple[GuidePiece, ...]
+
+    @property
+    def crest_radius_mm(self) -> float:
+        """Radius of the ridges' crests (the outer radius with no guides)."""
+        return self.outer_radius_mm + (self.guide_height_mm if self.pieces else 0.0)
+
+    def ridge_volume_mm3(self) -> float:
+        """Closed form (Pappus' theorem for a screw motion): a plane section of area A in a
+        plane through the axis, screwed through angle T, sweeps A x rho_c x T, rho_c the
+        section's centroid radius; the pieces never overlap."""
+        a = self.guide_width_mm * self.guide_height_mm
+        rho = self.outer_radius_mm + self.guide_height_mm / 2.0
+        return a * rho * sum(p.span_rad for p in self.pieces)
+
+    def volume_mm3(self) -> float:
+        """The tube, pi (R^2 - r^2) L, plus the ridges."""
+        r_o, r_i = self.outer_radius_mm, self.bore_radius_mm
+        return math.pi * (r_o * r_o - r_i * r_i) * self.length_mm + self.ridge_volume_mm3()
+
+
+@dataclass(frozen=True)
+class OvermoldCore:
+    """The rod core (actuator frame, mm): radius ``radius_mm`` about the x axis from
+    ``start_x_mm`` (the handle's end, outside the inlet wall) to ``end_x_mm`` (its tip,
+    seated in the bladder mold's far wall), with a square key ``key_box`` (lo, hi corners)
+    in the inlet wall; the same core and key locate both steps."""
+
+    radius_mm: float
+    start_x_mm: float
+    end_x_mm: float
+    key_box: tuple[Vec3, Vec3]
+
+    def volume_mm3(self) -> float:
+        (x0, y0, z0), (x1, y1, z1) = self.key_box
+        rod = math.pi * self.radius_mm ** 2 * (self.end_x_mm - self.start_x_mm)
+        key = (x1 - x0) * ((y1 - y0) * (z1 - z0) - math.pi * self.radius_mm ** 2)
+        return rod + key
+
+
+@dataclass(frozen=True)
+class Overmold:
+    """One step of the overmold process (actuator frame, mm; parting plane z = 0 through
+    the core's axis, the upper shell pulls +z, the lower -z). The cavity: the bladder
+    (``bladder`` step) or a cylinder of ``cavity_radius_mm`` from x = 0 to
+    ``cavity_end_x_mm`` (``skin`` step, the far end capped)."""
+
+    kind: OvermoldKind
+    bladder: Bladder
+    core: OvermoldCore
+    cavity_radius_mm: float
+    cavity_end_x_mm: float
+    wall_mm: float
+    flange_mm: float
+    clearance_mm: float
+    key_diameter_mm: float
+    key_height_mm: float
+
+    @property
+    def block_lo(self) -> Vec3:
+        c = self.cavity_radius_mm
+        return (-self.wall_mm, -(c + self.wall_mm + self.flange_mm), -(c + self.wall_mm))
+
+    @property
+    def block_hi(self) -> Vec3:
+        c = self.cavity_radius_mm
+        return (self.cavity_end_x_mm + self.wall_mm, c + self.wall_mm + self.flange_mm,
+                c + self.wall_mm)
+
+    def keys_xy(self) -> tuple[tuple[float, float], ...]:
+        """Registration keys in the flange on both sides, a quarter of the block in from
+        each end (x, y)."""
+        (x0, _, _), (x1, y1, _) = self.block_lo, self.block_hi
+        y = y1 - self.flange_mm / 2.0
+        xs = (x0 + (x1 - x0) / 4.0, x1 - (x1 - x0) / 4.0)
+        return tuple((x, s * y) for x in xs for s in (-1.0, 1.0))
+
+
 @dataclass(frozen=True)
 class CastingStep:
     """One pour: the mold that is closed around the core(s) and filled.
@@ -288,6 +404,8 @@ class CastingStep:
     openings: tuple[Opening, ...] = ()
     #: Set for the steps of the layered process (trays instead of two shells and a core).
     layer: Layer | None = None
+    #: Set for the steps of the overmold process (two shells about the rod core each).
+    overmold: Overmold | None = None
 
     @property
     def parts(self) -> tuple[PartPlan, ...]:
@@ -301,9 +419,15 @@ class CastingStep:
             return (PartPlan("tray", Role.SHELL, down), *bridge,
                     PartPlan("cast", Role.CAST, None))
         p = self.settled_parting
+        if self.overmold is not None and self.overmold.kind is OvermoldKind.SKIN:
+            # The core stays in the bladder from the first step: nothing new to print.
+            return (PartPlan("shell-lower", Role.SHELL, p.down),
+                    PartPlan("shell-upper", Role.SHELL, p.up),
+                    PartPlan("cast", Role.CAST, None))
         return (PartPlan("shell-lower", Role.SHELL, p.down),
                 PartPlan("shell-upper", Role.SHELL, p.up),
-                PartPlan("core", Role.CORE, self.core_supports[0].pull_dir),
+                PartPlan("core", Role.CORE, self.core_supports[0].pull_dir
+                         if self.core_supports else unit(0, -1.0)),
                 PartPlan("cast", Role.CAST, None))
 
     @property

@@ -146,20 +146,47 @@ class MeshSettings:
 
 @dataclass(frozen=True)
 class Process:
-    """How the actuator is cast: ``kind`` "one-shot" or "layered"; for layered, the draft on
-    the first step's posts (deg), the base layer's thickness (mm, from the body's bottom to
-    the bond face), the strain-limiting sheet's inset from the footprint (mm) and the sheet
-    ("paper", "fabric" or "none")."""
+    """How the actuator is cast: ``kind`` "one-shot", "layered" or "overmold".
+
+    Layered: the draft on the first step's posts (deg), the base layer's thickness (mm,
+    from the body's bottom to the bond face), the strain-limiting sheet's inset from the
+    footprint (mm) and the sheet ("paper", "fabric" or "none"). Overmold: the skin's
+    thickness (mm), the thread guides ("none", "single", "double"), their helix pitch,
+    ridge height and width (mm) and the thread's diameter (mm)."""
 
     kind: str = "one-shot"
     draft_deg: float = 1.0
     base_mm: float = 4.0
     cover_margin_mm: float = 2.0
     sheet: str = "paper"
+    skin_mm: float = 1.5
+    guides: str = "double"
+    guide_pitch_mm: float = 6.0
+    guide_height_mm: float = 0.8
+    guide_width_mm: float = 1.2
+    thread_diameter_mm: float = 0.5
 
     @property
     def layered(self) -> bool:
         return self.kind == "layered"
+
+    @property
+    def multi_step(self) -> bool:
+        """Cast in more than one pour: built and written step by step."""
+        return self.kind != "one-shot"
+
+    def params(self) -> dict[str, Any]:
+        """The values of this kind of process (a layered recipe's hash is the same as
+        before the overmold fields existed)."""
+        names = (LAYERED_FIELDS if self.layered else OVERMOLD_FIELDS)
+        values = asdict(self)
+        return {"kind": self.kind, **{n: values[n] for n in names}}
+
+
+#: The process fields each multi-step kind reads.
+LAYERED_FIELDS = ("draft_deg", "base_mm", "cover_margin_mm", "sheet")
+OVERMOLD_FIELDS = ("skin_mm", "guides", "guide_pitch_mm", "guide_height_mm",
+                   "guide_width_mm", "thread_diameter_mm")
 
 
 @dataclass(frozen=True)
@@ -237,7 +264,7 @@ class Recipe:
             "printer": asdict(self.printer),
             # A one-shot recipe's values (and so its hash and manifest) are the same with
             # or without a process block.
-            **({"process": asdict(self.process)} if self.process.layered else {}),
+            **({"process": self.process.params()} if self.process.multi_step else {}),
         }
 
     def params_sha256(self) -> str:

@@ -139,8 +139,10 @@ MESH_FIELDS: tuple[Field, ...] = (
 PROCESS_FIELDS: tuple[Field, ...] = (
     choice("kind", "how the actuator is cast: one-shot (one pour into a two-part shell "
            "around a pull-out core) or layered (a chambered layer poured in an open tray "
-           "around posts, then pressed face down onto a liquid base layer)",
-           ("one-shot", "layered"), "one-shot"),
+           "around posts, then pressed face down onto a liquid base layer) or overmold (a "
+           "round bladder with helical thread guides cast around a rod core, wound with "
+           "thread, then a skin cast over it on the same core)",
+           ("one-shot", "layered", "overmold"), "one-shot"),
     number("draft_deg", "draft on the posts of the layered first step (1 deg or more "
            "releases cleanly from a printed post; common practice)", 1.0, unit="deg",
            lo=0.5, hi=10.0, lo_open=False),
@@ -152,6 +154,19 @@ PROCESS_FIELDS: tuple[Field, ...] = (
            lo_open=False),
     choice("sheet", "strain-limiting sheet laid on the liquid base layer (layered)",
            ("paper", "fabric", "none"), "paper"),
+    number("skin_mm", "thickness of the skin cast over the wound bladder, over the guide "
+           "ridges and beyond the far end (overmold)", 1.5, lo=0.3, hi=20.0, lo_open=False),
+    choice("guides", "helical thread guides on the bladder: none, single (one helix) or "
+           "double (two opposite-handed helices, each ridge gapped where the other crosses "
+           "it) (overmold)", ("none", "single", "double"), "double"),
+    number("guide_pitch_mm", "axial advance of each guide helix per turn (overmold)", 6.0,
+           lo=1.0, hi=100.0, lo_open=False),
+    number("guide_height_mm", "how far the guide ridges stand out of the bladder (overmold)",
+           0.8, lo=0.2, hi=5.0, lo_open=False),
+    number("guide_width_mm", "axial width of a guide ridge (overmold)", 1.2, lo=0.2,
+           hi=10.0, lo_open=False),
+    number("thread_diameter_mm", "diameter of the thread wound along the guides; the skin "
+           "covers it too (overmold)", 0.5, lo=0.05, hi=3.0, lo_open=False),
 )
 
 BLOCKS: dict[str, tuple[Field, ...]] = {

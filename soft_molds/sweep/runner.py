@@ -39,8 +39,8 @@ def run_variant(recipe: Recipe, out_root: str, force: bool = False) -> Outcome:
                        out_dir=str(d), worker_pid=os.getpid(),
                        worker_rss_mb=_rss_mb(), worker_peak_mb=_peak_mb())
 
-    if recipe.process.layered:
-        return _run_layered(recipe, out_root, done, force)
+    if recipe.process.multi_step:
+        return _run_steps(recipe, out_root, done, force)
     try:
         molds = build(recipe)
     except SoftMoldsError as exc:
@@ -61,16 +61,17 @@ def run_variant(recipe: Recipe, out_root: str, force: bool = False) -> Outcome:
         motion_figures(molds.manifest().motion))
 
 
-def _run_layered(recipe: Recipe, out_root: str, done: Callable[..., Outcome],
-                 force: bool) -> Outcome:
-    """A layered variant: both steps built, checked (its own checks, see
-    :mod:`soft_molds.analysis.layered_checks`) and written unless an error refuses it."""
-    from ..export.layered import write_layered
+def _run_steps(recipe: Recipe, out_root: str, done: Callable[..., Outcome],
+               force: bool) -> Outcome:
+    """A variant of a multi-step process: every step built, checked (the process's own
+    checks, e.g. :mod:`soft_molds.analysis.layered_checks`) and written unless an error
+    refuses it."""
     from ..export.manifest import motion_record
-    from ..pipeline import build_layered
+    from ..export.overmold import write_steps
+    from ..pipeline import build_steps
 
     try:
-        m = build_layered(recipe)
+        m = build_steps(recipe)
     except SoftMoldsError as exc:
         return done(Status.FAILED, str(exc).splitlines()[0])
     findings = tuple(m.findings)
@@ -78,7 +79,7 @@ def _run_layered(recipe: Recipe, out_root: str, done: Callable[..., Outcome],
         first = next(f for f in findings if f.severity is Severity.ERROR)
         return done(Status.REFUSED, f"{first.check}: {first.message}", findings)
     try:
-        write_layered(m, out_root)
+        write_steps(m, out_root)
     except OSError as exc:
         return done(Status.FAILED, f"cannot write: {exc.strerror or exc}")
     grams = [p.grams for s in m.steps for p in s.pour.portions]

@@ -24,7 +24,7 @@ RECIPES = sorted((ROOT / "recipes").glob("*.yaml"))
 
 def _digests_of_folder(folder: Path, prefix: str) -> dict[str, str]:
     out = {}
-    # Files of step folders (layered recipes) are named by their path in the folder.
+    # Files of step folders (multi-step recipes) are named by their path in the folder.
     for path in sorted(p for p in folder.rglob("*") if p.is_file()):
         data = path.read_bytes()
         if path.name == "manifest.json":
@@ -43,12 +43,12 @@ def _variants():
 
 def _digests_of(recipe, molds=None) -> dict[str, str]:
     from soft_molds import build
-    from soft_molds.export.layered import write_layered
-    from soft_molds.pipeline import build_layered
+    from soft_molds.export.overmold import write_steps
+    from soft_molds.pipeline import build_steps
 
     with tempfile.TemporaryDirectory() as tmp:
-        if recipe.process.layered:
-            write_layered(molds if molds is not None else build_layered(recipe), tmp)
+        if recipe.process.multi_step:
+            write_steps(molds if molds is not None else build_steps(recipe), tmp)
         else:
             (molds if molds is not None else build(recipe)).export(tmp)
         return _digests_of_folder(Path(tmp) / recipe.name / recipe.label,
@@ -67,11 +67,11 @@ _IDS = [f"{p.stem}-{r.label}" for p, r in _variants()]
 
 @pytest.mark.parametrize("index", range(len(_IDS)), ids=_IDS)
 def test_every_written_file_matches_the_recorded_digest(index):
-    from conftest import LAYERED, built_layered, built_variant
+    from conftest import MULTI_STEP, built_steps, built_variant
 
     path, recipe = _variants()[index]
     # Every variant is built once per session and shared with the other tests.
-    shared = (built_layered(path.stem) if path.stem in LAYERED
+    shared = (built_steps(path.stem) if path.stem in MULTI_STEP
               else built_variant(path.stem, recipe.label))
     got = _digests_of(recipe, shared)
     want = {k: v for k, v in json.loads(RECORD.read_text()).items()

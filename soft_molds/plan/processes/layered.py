@@ -33,7 +33,11 @@ ON_FACE_MM = 1e-6
 FEED_OVERRUN_MM = 1.0
 
 
-@casting_process("layered")
+def _problems(r: Recipe, line: LineOf) -> list[Problem]:
+    return layered_problems(r, line)
+
+
+@casting_process("layered", problems=_problems)
 def steps(r: Recipe) -> tuple[CastingStep, ...]:
     bond = bond_z_mm(r)
     foot = footprint(r)

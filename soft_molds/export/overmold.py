@@ -1,0 +1,167 @@
+"""Files of an overmold build (see :mod:`soft_molds.plan.processes.overmold`), written as
+one variant folder: per step a folder ``step-<n>-<name>/`` with its parts' STL files
+(actuator frame, z up as poured), and at the top the casting card (both pours in order,
+the thread in between) and ``manifest.json`` listing the steps in order, the thread, the
+verdict and findings of the overmold checks (``checks``) and every file's SHA-256, written
+last.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import os
+import typing
+from pathlib import Path
+
+from ..analysis.findings import verdict
+from ..analysis.layered import LayeredMoldSet
+from ..analysis.overmold import WRAP_TURNS_PER_END, OvermoldMoldSet, OvermoldStep
+from ..units import mm3_to_cm3
+from ..version import __version__
+from .card import CAUTIONS
+from .files import json_bytes, write_file_set
+from .layered import finding_record
+from .steps_manifest import (
+    OVERMOLD_FORMAT,
+    OpeningRecord,
+    PortionRecord,
+    ProcessEcho,
+    StepPartRecord,
+    SteppedManifest,
+    StepPourRecord,
+    StepRecord,
+    ThreadRecord,
+)
+from .stl import encode_binary_stl
+from .typedjson import JsonValue, to_json
+from .writer import output_dir
+
+MANIFEST_NAME = "manifest.json"
+CARD_NAME = "casting-card.md"
+
+#: Cautions of this process beyond every card's (common practice).
+THREAD_CAUTIONS = (
+    "Wind the thread snug but not tight: a thread pulled hard cuts into the cured bladder "
+    "and, when pressurised, a cut starts a tear.",
+    "The core stays in the bladder until the skin has cured: pulling it between the pours "
+    "lets the bladder sag off centre and the skin comes out thin on one side.",
+)
+
+
+def step_files(s: OvermoldStep, label: str) -> dict[str, bytes]:
+    return {f"{s.folder}/{p.name}.stl": encode_binary_stl(p.mesh, f"{label} {s.name} {p.name}")
+            for p in s.parts}
+
+
+def _pour_line(s: OvermoldStep) -> str:
+    q = s.pour
+    weigh = ", ".join(f"{p.what} {p.grams:g} g" for p in q.portions)
+    return (f"{mm3_to_cm3(q.cast_mm3):.2f} cm3 of silicone, {q.mixed_g:.1f} g mixed "
+            f"({mm3_to_cm3(q.mixed_mm3):.2f} cm3 with the sprue and vents and "
+            f"{q.waste_pct:g} % waste: {weigh})")
+
+
+def card_text(m: OvermoldMoldSet) -> bytes:
+    r = m.recipe
+    g = r.material.silicone
+    first, second = m.steps
+    om = first.overmold
+    bl = om.bladder
+    t = m.thread
+    cure = (f"Let it cure for at least {g.demold_h:g} h at room temperature (the grade's "
+            f"demold time; pot life {g.pot_life_min:g} min) before opening the shell.")
+    lines = [f"# Casting card: {r.name} {r.label} (overmold, two pours)", "",
+             r.description, "",
+             f"Silicone: {g.name}. The finished actuator holds "
+             f"{mm3_to_cm3(m.silicone_volume_mm3):.2f} cm3 (bladder and skin).", "",
+             "## Steps, in order", "",
+             f"1. {first.folder}: the bladder, {_pour_line(first)}. Push the core through "
+             f"the lower shell's inlet wall until its square key sits in its pocket and its "
+             f"tip in the seat of the far wall; close the upper shell on the registration "
+             f"keys, clamp, and pour through the sprue until silicone rises in every vent "
+             f"({len(first.openings) - 1} vents). {cure} Open the shell; leave the "
+             f"bladder on the core."]
+    if t is not None:
+        pattern = ("two opposite-handed helices (one along each guide; where they cross, "
+                   "one guide is gapped: lay that thread over the other)"
+                   if t.helices == 2 else "one helix along the guide")
+        lines.append(
+            f"2. Wind the thread: cut {t.helices} piece(s) of {t.per_helix_mm:.0f} mm "
+            f"({t.helix_mm:.0f} mm along {t.turns:.2f} turns at {t.pitch_mm:g} mm pitch on "
+            f"{t.diameter_mm:g} mm, the thread's centre line beside the ridges, plus "
+            f"{t.ends_mm:.0f} mm for {WRAP_TURNS_PER_END} wraps at each end and the knots). Wind "
+            f"{pattern}, starting {bl.guide_start_x_mm:g} mm from the inlet face; tie "
+            f"off each end with its wraps on the plain tube there.")
+    n = 3 if t is not None else 2
+    lines += [
+        f"{n}. Place the bladder, still on the core, in {second.folder}'s lower shell: the "
+        f"core's key in the same pocket of the inlet wall as before, so the bladder lies "
+        f"on the skin mold's axis.",
+        f"{n + 1}. {second.folder}: the skin, {_pour_line(second)}. Close the upper shell, "
+        f"pour until every vent shows silicone; the skin covers the guides by "
+        f"{m.skin_over_guides_mm:.2f} mm and caps the far end. {cure} Open the shell "
+        f"and pull the core out through the inlet.", "",
+        "The bore opens on the inlet face: seal a tube into it with a drop of the same "
+        "silicone.", "", "## Checks", ""]
+    lines += [f"- {f.severity}: {f.check} ({f.part}): {f.message}" for f in m.findings] \
+        or ["- no findings"]
+    lines += ["", "## Cautions", ""]
+    lines += [f"- {c}" for c in (*CAUTIONS, *THREAD_CAUTIONS)]
+    return ("\n".join(lines) + "\n").encode()
+
+
+def _step_record(s: OvermoldStep) -> StepRecord:
+    parts = tuple(StepPartRecord(p.name, p.role, f"{s.folder}/{p.name}.stl", p.role != "cast",
+                                 p.brep_volume_mm3,
+                                 None if p.pull_dir is None else
+                                 (float(p.pull_dir[0]), float(p.pull_dir[1]),
+                                  float(p.pull_dir[2])))
+                  for p in s.parts)
+    pour = StepPourRecord(s.pour.cast_mm3, s.pour.mixed_mm3, s.pour.mixed_g,
+                          tuple(PortionRecord(p.what, p.grams) for p in s.pour.portions))
+    openings = tuple(OpeningRecord(str(o.kind), (float(o.center_mm[0]), float(o.center_mm[1]),
+                                                 float(o.center_mm[2])), o.radius_mm)
+                     for o in s.openings)
+    return StepRecord(s.index, s.name, s.folder, parts, pour, None, openings,
+                      {rel.part: rel.locked_mm3 for rel in s.releases})
+
+
+def manifest_of(m: OvermoldMoldSet, files: dict[str, bytes]) -> SteppedManifest:
+    r = m.recipe
+    t = m.thread
+    thread = None if t is None else ThreadRecord(t.helices, t.turns, t.diameter_mm,
+                                                 t.pitch_mm, t.per_helix_mm, t.total_mm)
+    return SteppedManifest(
+        OVERMOLD_FORMAT, __version__, r.name, r.label, m.plan.source_params_sha256,
+        ProcessEcho(typing.cast("dict[str, JsonValue]", r.process.params())),
+        m.silicone_volume_mm3, tuple(_step_record(s) for s in m.steps), None, thread,
+        m.skin_over_guides_mm, m.axis_offset_mm, verdict(m.findings),
+        tuple(finding_record(f) for f in m.findings),
+        {k: hashlib.sha256(v).hexdigest() for k, v in sorted(files.items())})
+
+
+def encode_overmold(m: OvermoldMoldSet) -> dict[str, bytes]:
+    """Every file of ``m`` (relative path -> bytes), the manifest last."""
+    files: dict[str, bytes] = {}
+    for s in m.steps:
+        files.update(step_files(s, m.recipe.label_text))
+    files[CARD_NAME] = card_text(m)
+    files[MANIFEST_NAME] = json_bytes(to_json(manifest_of(m, files)))
+    return files
+
+
+def write_overmold(m: OvermoldMoldSet, root: str | os.PathLike[str] = "out") -> list[Path]:
+    """Write ``m`` under ``root/<recipe>/<label>/`` as a whole (see
+    :func:`soft_molds.export.files.write_file_set`)."""
+    directory = output_dir(root, m.recipe.name, m.recipe.label)
+    return write_file_set(directory, encode_overmold(m), last=MANIFEST_NAME, subfolders=True)
+
+
+def write_steps(m: LayeredMoldSet | OvermoldMoldSet, root: str | os.PathLike[str] = "out"
+                ) -> list[Path]:
+    """Write a multi-step build by its process."""
+    if isinstance(m, OvermoldMoldSet):
+        return write_overmold(m, root)
+    from .layered import write_layered
+
+    return write_layered(m, root)
