@@ -48,7 +48,7 @@ DEFAULT_RANGE_KPA = 100.0
 def void_facet_mask(r: Recipe, mesh: TriMesh) -> np.ndarray:
     """Facets of ``mesh`` on a void's or the tube socket's surface (the recipe primitives'
     exact distance functions, within the tolerance the checks use)."""
-    prims = tuple(p for group in r.void_primitives() for p in group) + (r.inlet.socket(),)
+    prims = tuple(p for group in r.void_primitives() for p in group) + r.sockets()
     tol = min(0.1, r.checks.min_wall_mm / 3.0)
     return np.abs(union_sdf(prims, mesh.triangles().mean(axis=1))) <= tol
 
@@ -72,10 +72,13 @@ def predict_motion(r: Recipe, cast: TriMesh, walls: Sequence[WallPressure]
     if e is None or not r.voids:
         return None
     lo, hi = bounds_of(tuple(p for group in r.void_primitives() for p in group))
-    start = max(float(lo[0]), r.inlet.socket_depth_mm)
-    if hi[0] <= start:
+    # The pressurised length lies between the start face's sockets and the end face's.
+    start = max([float(lo[0])] + [i.socket_depth_mm for i in r.inlets if not i.at_end])
+    end = min([float(hi[0])] + [r.body_length_mm - i.socket_depth_mm
+                                for i in r.inlets if i.at_end])
+    if end <= start:
         return None
-    prof = profile_of(cast, void_facet_mask(r, cast), start, float(hi[0]),
+    prof = profile_of(cast, void_facet_mask(r, cast), start, end,
                       [type(v).KIND for v in r.voids])
     limits = [w.limit_kpa for w in walls if w.limit_kpa is not None]
     return motion_curve(prof, e, min(limits) if limits else None,
