@@ -49,6 +49,9 @@ class CastSolids:
         return only
 
 
+#: Least gap between the grip tabs of two core prints in one face (mm).
+TAB_GAP_MM = 1.0
+
 #: Least land kept between a label and the edges of the face it is cut into (mm); never
 #: less than a printed wall (perimeters x nozzle) beyond the strokes' round ends.
 LABEL_MARGIN_MM = 1.5
@@ -134,11 +137,14 @@ def shell_label_tool(r: Recipe, lay: Layout, part: str, lower: bool
     return _label_tool(r, part, centre, right, up, w1 - w0)
 
 
-def core_tag(r: Recipe, support: CoreSupport, parting: PartingPlane
+def core_tag(r: Recipe, support: CoreSupport, parting: PartingPlane,
+             others: Sequence[CoreSupport] = ()
              ) -> tuple[tuple[float, float, float], tuple[float, float, float]] | None:
     """The flat grip tab at the outer end of the core print that carries the label: a box
     (lo, hi) in the parting plane's directions, thick enough for the cut and a printed wall
-    below it. None when labels are off."""
+    below it; no wider across than keeps TAB_GAP_MM to the tabs of the ``others`` prints in
+    the same face (each takes at most half the distance between centres). None when labels
+    are off."""
     from ..recipe.strokefont import text_width_mm
 
     ls = r.label_settings
@@ -150,6 +156,10 @@ def core_tag(r: Recipe, support: CoreSupport, parting: PartingPlane
     c = (0.0, cy, cz)
     length = text_width_mm(r.label_text, ls.height_mm) + 2.0 * label_margin(r)
     across = ls.height_mm + 2.0 * label_margin(r)
+    for o in others:
+        if o.part != support.part and o.outward == support.outward:
+            apart = abs(o.inlet.center_mm[va - 1] - support.inlet.center_mm[va - 1])
+            across = min(across, apart - TAB_GAP_MM)
     thick = max(2.5, ls.depth_mm + r.printer.perimeters * r.printer.nozzle_mm)
     lo, hi = [0.0] * 3, [0.0] * 3
     # The tab continues the print outward, away from the block.
@@ -168,7 +178,7 @@ def label_core(r: Recipe, step: CastingStep, core: k.Shape,
     cut the label into its +w face."""
     parting = step.settled_parting
     support = support or step.core_supports[0]
-    tab = core_tag(r, support, parting)
+    tab = core_tag(r, support, parting, step.core_supports)
     if tab is None:
         return core, None
     lo, hi = tab

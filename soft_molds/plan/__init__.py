@@ -46,6 +46,12 @@ def plan_problems(r: Recipe) -> list[Problem]:
         from .processes.layered import layered_problems
 
         return layered_problems(r, line)
+    if len(r.inlets) > 1:
+        from .processes.one_shot import print_problems
+
+        prints = print_problems(r, line)
+        if prints:
+            return prints
     if not r.parting.auto:
         assert r.parting.offset_mm is not None
         return parting_problems(r, r.parting.axis, r.parting.offset_mm, line)

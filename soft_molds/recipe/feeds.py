@@ -44,14 +44,25 @@ def opens_into(r: Recipe, j: int, i: int) -> bool:
 
 
 def fed_groups(r: Recipe) -> tuple[tuple[tuple[int, ...], tuple[int, ...]], ...]:
-    """Each group of joined voids with the inlets it opens into (see
-    :func:`voidgraph.feeds`)."""
-    return voidgraph.feeds(r.void_primitives(), lambda i, j: opens_into(r, j, i),
-                           len(r.inlets))
+    """The pieces of the void set, each with the inlets it opens into: (void indices,
+    inlet indices). Voids are one piece when they overlap (the void graph) or open into
+    the same socket (two rows meeting only in the socket are one core). A piece with no
+    inlet is not reached; one with two has two sockets for one core."""
+    pieces = [(set(g), set(js)) for g, js in voidgraph.feeds(
+        r.void_primitives(), lambda i, j: opens_into(r, j, i), len(r.inlets))]
+    merged: list[tuple[set[int], set[int]]] = []
+    for voids, inlets in pieces:
+        for other in [m for m in merged if m[1] & inlets]:
+            merged.remove(other)
+            voids |= other[0]
+            inlets |= other[1]
+        merged.append((voids, inlets))
+    out = sorted((tuple(sorted(v)), tuple(sorted(j))) for v, j in merged)
+    return tuple(out)
 
 
 def core_groups(r: Recipe) -> tuple[CoreGroup, ...]:
     """One core per inlet, in the inlets' order, for a recipe that passed validation (every
-    group fed by exactly one inlet, every inlet feeding a group)."""
+    piece of the void set fed by exactly one inlet, every inlet feeding a piece)."""
     by_inlet = {js[0]: g for g, js in fed_groups(r) if len(js) == 1}
     return tuple(CoreGroup(j, by_inlet.get(j, ())) for j in range(len(r.inlets)))

@@ -81,7 +81,7 @@ def sanity_problems(r: Recipe, lines: dict[str, int]) -> list[Problem]:
             _socket_wall_problems(out, r, j, void, path, line, per_prim)
         if i in lost:
             out.append(_unreached(r, lost[i], line(path)))
-    groups = [g for g, _ in fed]
+    groups = [g for g, js in fed if js]  # one core each
     for g, js in fed:
         for j in js[1:]:
             at = f"{r.inlet_path(j)}.center_mm"

@@ -4,9 +4,11 @@ face x = the body's length)."""
 
 from __future__ import annotations
 
+from ...errors import Problem
 from ...recipe.feeds import core_groups
 from ...recipe.model import InletFace, Recipe
-from ..layout import block_band_mm, plan_layout
+from ..layout import MIN_LAND_MM, block_band_mm, plan_layout
+from ..lines import LineOf
 from ..model import CastingStep, CoreSupport, Inlet, PartingPlane
 from . import casting_process
 
@@ -56,3 +58,33 @@ def core_support(r: Recipe, inlet: Inlet, part: str = "core",
     key = ((x0, cy - half, cz - half), (x0 + key_len, cy + half, cz + half))
     return CoreSupport(inlet, wall_x - r.mold.core_handle_mm, inlet.socket_depth_mm,
                        radius, key, part=part, voids=voids)
+
+
+def print_problems(r: Recipe, line: LineOf) -> list[Problem]:
+    """Two core prints in one face must keep a land of mold between their key pockets
+    (each the key grown by the fit's clearance), or the pockets merge and neither key is
+    held."""
+    sups = steps(r)[0].core_supports
+    c = r.mold.clearance_mm
+    out: list[Problem] = []
+    for b, sb in enumerate(sups):
+        for sa in sups[:b]:
+            if sa.inlet.face != sb.inlet.face:
+                continue
+            (alo, ahi), (blo, bhi) = sa.key_box, sb.key_box
+            gap = max(max(blo[k] - ahi[k], alo[k] - bhi[k]) for k in (1, 2)) - 2.0 * c
+            if gap >= MIN_LAND_MM:
+                continue
+            j = r.inlets.index(next(i for i in r.inlets if i.center_mm == sb.inlet.center_mm
+                                    and i.face == sb.inlet.face))
+            i = r.inlets.index(next(i for i in r.inlets if i.center_mm == sa.inlet.center_mm
+                                    and i.face == sa.inlet.face))
+            at = f"{r.inlet_path(j)}.center_mm"
+            need = (sa.inlet.socket_diameter_mm + sb.inlet.socket_diameter_mm) / 2.0 \
+                + 2.0 * KEY_SHOULDER_MM + 2.0 * c + MIN_LAND_MM
+            out.append(Problem(at, f"puts its core print's key pocket {gap:.2f} mm from the "
+                               f"key pocket of {r.inlet_path(i)}'s print", line(at),
+                               list(sb.inlet.center_mm),
+                               f"at least {MIN_LAND_MM:g} mm of mold between them: socket "
+                               f"centres at least {need:g} mm apart across the face"))
+    return out
