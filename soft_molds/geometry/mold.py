@@ -76,7 +76,7 @@ class Label:
 
 
 def _label_tool(r: Recipe, part: str, centre: Point, right: Point, up: Point,
-                room_mm: float) -> tuple[k.Shape, Label] | None:
+                room_mm: float, text: str | None = None) -> tuple[k.Shape, Label] | None:
     """The tool that cuts the recipe's label into the flat face through ``centre`` (the
     middle of the text), reading along ``right`` with capitals along ``up`` (outward
     normal right x up); ``room_mm`` is the face's height along ``up``. None when labels are
@@ -87,7 +87,7 @@ def _label_tool(r: Recipe, part: str, centre: Point, right: Point, up: Point,
     h = min(ls.height_mm, room_mm - 2.0 * label_margin(r))
     if ls.mode == "none" or h < LABEL_MIN_HEIGHT_MM:
         return None
-    text = r.label_text
+    text = r.label_text if text is None else text
     c, rv, uv = (np.asarray(v, dtype=np.float64) for v in (centre, right, up))
     width = text_width_mm(text, h)
     origin = c - rv * (width / 2.0) - uv * (h / 2.0)
@@ -103,9 +103,9 @@ def _label_tool(r: Recipe, part: str, centre: Point, right: Point, up: Point,
 
 
 def _cut_label(r: Recipe, shape: k.Shape, part: str, centre: Point, right: Point, up: Point,
-               room_mm: float
+               room_mm: float, text: str | None = None
                ) -> tuple[k.Shape, Label | None]:
-    made = _label_tool(r, part, centre, right, up, room_mm)
+    made = _label_tool(r, part, centre, right, up, room_mm, text)
     if made is None:
         return shape, None
     tool, lab = made
@@ -137,6 +137,13 @@ def shell_label_tool(r: Recipe, lay: Layout, part: str, lower: bool
     return _label_tool(r, part, centre, right, up, w1 - w0)
 
 
+def core_label_text(r: Recipe, support: CoreSupport) -> str:
+    """The label of a core: the recipe's, followed by the core's number when there are
+    several (``core-2`` carries "... 2"), so each core goes back to its own socket."""
+    number = support.part.removeprefix("core").removeprefix("-")
+    return f"{r.label_text} {number}" if number else r.label_text
+
+
 def core_tag(r: Recipe, support: CoreSupport, parting: PartingPlane,
              others: Sequence[CoreSupport] = ()
              ) -> tuple[tuple[float, float, float], tuple[float, float, float]] | None:
@@ -154,7 +161,7 @@ def core_tag(r: Recipe, support: CoreSupport, parting: PartingPlane,
     va = 3 - wa
     cy, cz = support.inlet.center_mm
     c = (0.0, cy, cz)
-    length = text_width_mm(r.label_text, ls.height_mm) + 2.0 * label_margin(r)
+    length = text_width_mm(core_label_text(r, support), ls.height_mm) + 2.0 * label_margin(r)
     across = ls.height_mm + 2.0 * label_margin(r)
     for o in others:
         if o.part != support.part and o.outward == support.outward:
@@ -192,7 +199,8 @@ def label_core(r: Recipe, step: CastingStep, core: k.Shape,
     up = _axis(va)
     normal = _axis(wa)
     right = np.cross(up, normal)
-    return _cut_label(r, core, support.part, centre, right, up, hi[va] - lo[va])
+    return _cut_label(r, core, support.part, centre, right, up, hi[va] - lo[va],
+                      core_label_text(r, support))
 
 
 @dataclass(frozen=True)
