@@ -206,10 +206,11 @@ def _unreached(r: Recipe, group: tuple[int, ...], at: int | None) -> Problem:
     socks = "; ".join(f"centre ({i.center_mm[0]:g}, {i.center_mm[1]:g}), radius "
                       f"{i.socket_diameter_mm / 2.0:g} mm, depth {i.socket_depth_mm:g} mm"
                       + (" on the end face" if i.at_end else "") for i in r.inlets)
-    which = "the inlet socket" if len(r.inlets) == 1 else "any inlet socket"
+    which, inside = (("the inlet socket", "the socket") if len(r.inlets) == 1
+                     else ("any inlet socket", "a socket"))
     return Problem(f"voids[{group[0]}]", f"is not reached from {which}" + also, at,
                    None, f"its entry (y, z) = ({ey:g}, {ez:g}) mm, radius {er:g} mm and "
-                   f"start x = {ex:g} mm must lie inside a socket ({socks}), or hold its "
+                   f"start x = {ex:g} mm must lie inside {inside} ({socks}), or hold its "
                    "whole section; or the void must overlap a void that is reached")
 
 
