@@ -17,9 +17,11 @@ from ..registry import CheckOutput, check
 
 @dataclass(frozen=True)
 class CoreDraft:
-    """The pull report of the void surface along the core's pull (part ``core``)."""
+    """The pull report of the void surface along the core's pull (part ``core``, or
+    ``core-1``), and those of the other cores (``core-2``, ...) in plan order."""
 
     report: PullReport
+    others: tuple[PullReport, ...] = ()
 
 
 @check("core-draft", order=200)
@@ -41,4 +43,4 @@ def core_draft(ctx: CheckContext) -> CheckOutput:
             "over it (see core-extraction)", value=rep.locked_area_mm2, limit=None,
             where=rep.locked_where_mm))
         reports.append(rep)
-    return CheckOutput(tuple(out), CoreDraft(reports[0]))
+    return CheckOutput(tuple(out), CoreDraft(reports[0], tuple(reports[1:])))
