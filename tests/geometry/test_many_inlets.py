@@ -195,3 +195,10 @@ def test_the_end_fed_pair_keeps_no_pry_notch_where_the_end_print_passes(end_fed)
     assert len(lay.notches) == 1
     u, v, _, _ = lay.notches[0]
     assert u < lay.block_hi[0]
+
+
+def test_no_motion_is_predicted_for_rows_inflated_one_socket_at_a_time(two_way):
+    """The motion models pressurise every void at once; a two-way finger inflates one row
+    at a time, so its mold set carries no predicted curve rather than a wrong one (two
+    rows mirrored about the axis would read as a pure extender)."""
+    assert two_way.motion is None

@@ -66,10 +66,12 @@ def profile_of(mesh: TriMesh, void_facets: np.ndarray, from_mm: float, to_mm: fl
 def predict_motion(r: Recipe, cast: TriMesh, walls: Sequence[WallPressure]
                    ) -> MotionCurve | None:
     """The motion curve of the cast ``cast`` of recipe ``r`` (None when the silicone's
-    modulus is unknown, or no model applies). ``walls``: the pressure check's weakest wall
-    per group (their lowest limit ends the curve)."""
+    modulus is unknown, when there are several sockets, or no model applies). ``walls``:
+    the pressure check's weakest wall per group (their lowest limit ends the curve)."""
     e = r.material.silicone.youngs_modulus_mpa()
-    if e is None or not r.voids:
+    # Every model pressurises every void at once; several sockets feed groups that are
+    # inflated one at a time (a two-way finger), which none of them describes.
+    if e is None or not r.voids or len(r.inlets) > 1:
         return None
     lo, hi = bounds_of(tuple(p for group in r.void_primitives() for p in group))
     # The pressurised length lies between the start face's sockets and the end face's.
