@@ -202,3 +202,56 @@ def test_no_motion_is_predicted_for_rows_inflated_one_socket_at_a_time(two_way):
     at a time, so its mold set carries no predicted curve rather than a wrong one (two
     rows mirrored about the axis would read as a pure extender)."""
     assert two_way.motion is None
+
+
+def test_the_end_fed_cast_surface_lies_on_mold_or_core_surfaces(end_fed):
+    """As tests/geometry/test_mold.py asks of the bundled recipes (trimesh proximity):
+    at least 99.5 % of the cast's sampled surface away from the sprue and vent mouths lies
+    within 0.05 mm of a shell or core, so the cores' prints and both sockets are formed."""
+    import trimesh
+
+    cast = end_fed.part("cast").mesh.to_trimesh()
+    tools = trimesh.util.concatenate([p.mesh.to_trimesh() for p in end_fed.parts
+                                      if p.role != "cast"])
+    pts, _ = trimesh.sample.sample_surface_even(cast, 3000, seed=7)
+    _, dist, _ = trimesh.proximity.closest_point(tools, pts)
+    w = end_fed.layout.frame.w_axis
+    mouth = np.zeros(len(pts), dtype=bool)
+    for o in end_fed.openings:
+        d = pts - np.asarray(o.center_mm)
+        radial = np.linalg.norm(np.delete(d, w, axis=1), axis=1)
+        mouth |= (radial <= o.radius_mm + 0.1) & (d[:, w] > -1.0)
+    assert np.mean((dist <= 0.05)[~mouth]) >= 0.995
+    assert np.mean(mouth) <= 0.02
+
+
+def test_the_end_fed_cavity_reaches_the_outside_only_through_the_top(end_fed):
+    """As tests/geometry/test_mold_release.py asks of the bundled recipes (manifold3d
+    booleans and connected pieces): with a lid on the top face, the air that holds the cast
+    is closed, holding no more than the cast and what stands in the sprue and vents; both
+    print seats (through the start wall and the end wall) are filled line to line with a
+    cylinder twice the chord proud of the print, as there."""
+    r = end_fed.recipe
+    rigid = [manifold(p.mesh) for p in end_fed.parts if p.role != "cast"]
+    seats = []
+    for sup in end_fed.plan.step.core_supports:
+        lo, hi = end_fed.part(sup.part).mesh.bbox_mm()
+        seat_r = sup.inlet.socket_diameter_mm / 2.0 + 2.0 * r.mesh.chord_mm
+        cy, cz = sup.inlet.center_mm
+        x0, x1 = ((r.body_length_mm + 0.05, hi[0]) if sup.pull_dir[0] > 0
+                  else (lo[0], -0.05))
+        seats.append(m3.Manifold.cylinder(x1 - x0, seat_r, seat_r, 96)
+                     .rotate([0.0, 90.0, 0.0]).translate([x0, cy, cz]))
+    closed = m3.Manifold.batch_boolean([*rigid, *seats], m3.OpType.Add)
+    box = closed.bounding_box()
+    lo, hi = np.array(box[:3]) - 10.0, np.array(box[3:]) + 10.0
+    air = m3.Manifold.cube(list(hi - lo)).translate(list(lo)) - closed
+    w = int(np.argmax(np.abs(end_fed.pour_up)))
+    lid_lo = lo.copy()
+    lid_lo[w] = box[3 + w] - 0.01
+    air = air - m3.Manifold.cube(list(hi - lid_lo)).translate(list(lid_lo))
+    cast = manifold(end_fed.part("cast").mesh)
+    cavity = max(air.decompose(), key=lambda piece: (piece ^ cast).volume())
+    assert (cavity ^ cast).volume() >= 0.995 * cast.volume()
+    fill = end_fed.volumes_mm3["fill"]
+    assert cavity.volume() <= 1.05 * (cast.volume() + fill) + 1.0
