@@ -73,3 +73,33 @@ def test_the_schema_refuses_inlet_and_inlets_together():
 def test_voids_are_grouped_into_one_core_per_socket(stem, groups):
     r = load_recipe(RECIPES / f"{stem}.yaml")
     assert [(g.inlet, g.voids) for g in core_groups(r)] == groups
+
+
+END_FED = """\
+name: end-fed-pair
+body: {kind: bar, length_mm: 100, width_mm: 20, height_mm: 14, edge_radius_mm: 2}
+voids:
+  - {kind: chambers, count: 4, pitch_mm: 8, depth_mm: 5, width_mm: 8, height_mm: 8,
+     corner_radius_mm: 1, center_mm: [-4.5, 0], feed_diameter_mm: 2}
+  - {kind: bore, diameter_mm: 6, length_mm: 67, start_mm: 30, center_mm: [4.5, 0]}
+inlets:
+  - {socket_diameter_mm: 4, socket_depth_mm: 6, center_mm: [-4.5, 0]}
+  - {socket_diameter_mm: 4, socket_depth_mm: 6, center_mm: [4.5, 0], face: end}
+parting: {axis: z, offset_mm: 0}
+"""
+
+
+def test_an_end_face_socket_is_checked_on_the_end_face():
+    from soft_molds.errors import RecipeError
+
+    r = recipe_from_text(END_FED)
+    assert [i.face for i in r.inlets] == [InletFace.START, InletFace.END]
+    # 1 mm lower than the 14 mm bar's top allows: centre z = -5, radius 2 plus the 1 mm
+    # least wall reaches z = -8, past the face's edge at -7 (elementary geometry); the bore
+    # it fed (z within 3 of 0) no longer opens into it.
+    moved = edit(END_FED, "center_mm: [4.5, 0], face: end", "center_mm: [4.5, -5], face: end")
+    with pytest.raises(RecipeError) as err:
+        recipe_from_text(moved)
+    found = {(p.path, p.message.split(" (")[0]) for p in err.value.problems}
+    assert ("inlets[1].center_mm", "puts the socket off the flat end face") in found
+    assert ("inlets[1].center_mm", "puts a socket that no void opens into") in found
