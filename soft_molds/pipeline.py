@@ -94,15 +94,21 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     if plan.step.parting is None:
         say("parting plane")
         with _stage(timings, "tessellate", label):
-            bare_core = tessellate_within(cs.core, chord, angle, "core",
-                                          cs.volumes_mm3["core"])
+            bare_cores = [tessellate_within(core, chord, angle, sup.part,
+                                            cs.volumes_mm3[sup.part])
+                          for core, sup in zip(cs.cores, plan.step.core_supports)]
         with _stage(timings, "analysis", label):
-            plan = with_parting(plan, _ranked_planes(plan, cast_mesh, bare_core))
+            plan = with_parting(plan, _ranked_planes(plan, cast_mesh, bare_cores))
     recipe, step = plan.recipe, plan.step
     say("labels")
     with _stage(timings, "labels", label):
-        core, core_label = mold.label_core(recipe, step, cs.core)
-        cs = replace(cs, core=core, volumes_mm3=dict(cs.volumes_mm3, core=k_volume(core)))
+        labelled = [mold.label_core(recipe, step, core, sup)
+                    for core, sup in zip(cs.cores, step.core_supports)]
+        core_labels = tuple(lab for _, lab in labelled)
+        cs = replace(cs, cores=tuple(c for c, _ in labelled),
+                     volumes_mm3=dict(cs.volumes_mm3, **{
+                         sup.part: k_volume(c) for (c, _), sup in zip(labelled,
+                                                                      step.core_supports)}))
     up = step.settled_parting.up
     say("sprue and vents")
     with _stage(timings, "features", label):
@@ -114,7 +120,8 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     with _stage(timings, "shell", label):
         shells = mold.build_shells(recipe, step, cs)
 
-    solids = {"shell-lower": shells.lower, "shell-upper": shells.upper, "core": cs.core,
+    solids = {"shell-lower": shells.lower, "shell-upper": shells.upper,
+              **{sup.part: c for c, sup in zip(cs.cores, step.core_supports)},
               "cast": cs.cast}
     parts = []
     say("tessellate and check")
@@ -129,7 +136,7 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
         parts.append(Part(spec.name, str(spec.role), solid, mesh, vol, spec.pull_dir, report))
     say("manufacturability checks")
     with _stage(timings, "analysis", label):
-        labels = tuple(x for x in (*shells.labels, core_label) if x is not None)
+        labels = tuple(x for x in (*shells.labels, *core_labels) if x is not None)
         rev = run_checks(CheckContext.for_step(
             plan, cast_mesh, {p.name: (p.mesh, p.pull_dir) for p in parts if p.role != "cast"},
             {lab.part: [lab.box] for lab in labels}))
@@ -150,18 +157,25 @@ def k_volume(shape: object) -> float:
     return volume(shape)  # type: ignore[arg-type]
 
 
-def _ranked_planes(plan: MoldPlan, cast_mesh: TriMesh, core_mesh: TriMesh
+def _ranked_planes(plan: MoldPlan, cast_mesh: TriMesh, core_meshes: list[TriMesh]
                    ) -> tuple[PlaneScore, ...]:
-    """Every candidate plane of the plan scored on the cast and bare core, best first."""
+    """Every candidate plane of the plan scored on the cast and bare cores (as one mesh),
+    best first."""
     from .analysis.context import core_print_facets, void_facets
     from .analysis.demold import Surface
     from .analysis.parting_scores import score_planes
+    from .analysis.trapped_air import combine
 
     r = plan.recipe
-    cast_s, core_s = Surface(cast_mesh), Surface(core_mesh)
-    block_lo_x = plan.step.core_supports[0].start_x_mm + r.mold.core_handle_mm
+    cast_s = Surface(cast_mesh)
+    core_s = Surface(core_meshes[0] if len(core_meshes) == 1 else combine(core_meshes))
+    sup = plan.step.core_supports[0]
+    block_lo_x = sup.start_x_mm + r.mold.core_handle_mm if sup.outward < 0 else \
+        -(r.mold.wall_mm + r.mold.flange_mm)
+    ends = r.body_length_mm if any(i.at_end for i in r.inlets) else None
     scores = score_planes(cast_s, ~void_facets(r, cast_s), core_s,
-                          core_print_facets(core_s, block_lo_x), candidate_planes(r),
+                          core_print_facets(core_s, block_lo_x, ends),
+                          candidate_planes(r),
                           lambda ax, off: first_rule_broken(r, ax, off),
                           r.checks.min_draft_deg)
     return tuple(rank(scores))

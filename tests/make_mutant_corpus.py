@@ -298,8 +298,13 @@ def plan_mutants() -> list[Mutant]:
         inside = [c for c in changes if c.klass == "in-range"
                   and (path, c.why) not in SLOW_TO_VALIDATE]
         if not full:
+            gap = [c for c in bad if c.why == "inside the gap"]
             bad = rng.sample(bad, min(BAD_PER_FIELD, len(bad)))
             inside = rng.sample(inside, min(IN_RANGE_PER_FIELD, len(inside)))
+            # A field with a gap in its range (e.g. "0 or 0.05 to 20") always gets a value
+            # inside it: the rarest refusal, and easy to lose to the sample.
+            if gap and gap[0] not in bad:
+                bad[-1] = gap[0]
         for c in bad + inside:
             add(base, "set", path, c.value, c.why, c.klass,
                 allowed=f.allowed() if c.klass == "bad" else None)

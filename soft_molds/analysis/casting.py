@@ -112,10 +112,10 @@ def plan_casting(r: Recipe, cast_mm3: float, fill_mm3: float,
     q = silicone_quantities(cast_mm3, fill_mm3, m.silicone, c.waste_pct, c.scale_resolution_g,
                             m.blend)
     wall = p.perimeters * p.nozzle_mm
-    # The core is estimated solid: a hollow core flexes while pulled and may take on
+    # Every core is estimated solid: a hollow core flexes while pulled and may take on
     # silicone through a pin hole in its skin.
     prints = tuple(print_estimate(name, mesh, vol, wall,
-                                  100.0 if name == "core" else c.infill_pct,
+                                  100.0 if name.startswith("core") else c.infill_pct,
                                   c.filament_density_g_cm3)
                    for name, mesh, vol in printed)
     return CastingPlan(m.silicone, m.blend, q, prints)

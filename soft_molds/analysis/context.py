@@ -1,8 +1,9 @@
 """What every check reads: the built mold set, each mesh prepared once.
 
 Frame: mm, world; the parting axis points up in pour orientation (``up``); the lower
-shell pulls along -up, the upper along +up, the core along
-:data:`soft_molds.constants.CORE_PULL` (-x) through the inlet opening at x = 0.
+shell pulls along -up, the upper along +up, each core out through its inlet socket:
+:data:`soft_molds.constants.CORE_PULL` (-x) from the start face x = 0, +x from the end
+face.
 
 :meth:`CheckContext.create` is the one place that turns the build's outputs into a
 context; the checks never build a :class:`Surface` or a ray index of their own.
@@ -18,9 +19,10 @@ from typing import Protocol
 import numpy as np
 
 from soft_molds.meshdata import TriMesh
-from soft_molds.plan.model import MoldPlan
-from soft_molds.recipe.model import Recipe
-from soft_molds.recipe.primitives import union_sdf
+from soft_molds.plan.model import CoreSupport, MoldPlan
+from soft_molds.plan.model import Inlet as PlanInlet
+from soft_molds.recipe.model import Inlet, Recipe
+from soft_molds.recipe.primitives import Primitive, union_sdf
 
 from .printability import Printer
 from .rays import RayCaster
@@ -28,7 +30,9 @@ from .surface import Surface
 from .trapped_air import combine
 
 RIGID_PARTS = ("shell-lower", "shell-upper", "core")
-"""The printed parts of a mold set, in the order the checks report them."""
+"""The printed parts of a one-core mold set, in the order the checks report them (a mold
+set with several cores lists ``core-1``, ``core-2``, ... in place of ``core``:
+:attr:`CheckContext.rigid_parts`)."""
 
 Box = tuple[Sequence[float], Sequence[float]]
 """A world box (lo, hi corners, mm)."""
@@ -55,19 +59,52 @@ class PreparedPart:
     pull: tuple[float, float, float] | None
 
 
-def void_facets(r: Recipe, cast: Surface) -> np.ndarray:
-    """Facets of the cast on the surface of the voids or the inlet socket (those the core
-    touches), found with the recipe primitives' exact distance functions."""
-    prims = tuple(p for group in r.void_primitives() for p in group) + (r.inlet.socket(),)
+@dataclass(frozen=True, eq=False)
+class CoreView:
+    """One core as the checks see it: its prepared part, the recipe inlet it leaves
+    through, that socket's primitive, the unit pull (out of the socket's face) and the cast
+    facets it forms (its voids and socket)."""
+
+    part: PreparedPart
+    inlet: Inlet
+    socket: Primitive
+    pull: tuple[float, float, float]
+    void_facets: np.ndarray
+
+
+def void_facets(r: Recipe, cast: Surface, voids: Sequence[int] | None = None,
+                inlets: Sequence[int] | None = None) -> np.ndarray:
+    """Facets of the cast on the surface of the voids or the inlet sockets (those the cores
+    touch; ``voids`` and ``inlets`` pick some by index), found with the recipe primitives'
+    exact distance functions."""
+    groups = r.void_primitives()
+    sockets = r.sockets()
+    prims = (tuple(p for i in (range(len(groups)) if voids is None else voids)
+                   for p in groups[i])
+             + tuple(sockets[j] for j in (range(len(sockets)) if inlets is None else inlets)))
     tol = min(0.1, r.checks.min_wall_mm / 3.0)
     return np.abs(union_sdf(prims, cast.centroids)) <= tol
 
 
-def core_print_facets(core: Surface, block_lo_x: float, tol_mm: float = 0.05) -> np.ndarray:
-    """Facets of the core between the mold block's inlet face and the body (the print and
-    its key, seated in the two shells)."""
+def core_print_facets(core: Surface, block_lo_x: float, body_length_mm: float | None = None,
+                      tol_mm: float = 0.05) -> np.ndarray:
+    """Facets of the cores between the mold block's end faces and the body (the prints and
+    their keys, seated in the two shells): on the start side between ``block_lo_x`` and
+    x = 0; with ``body_length_mm``, on the end side as far beyond the body's end as
+    ``block_lo_x`` lies before its start."""
     x = core.centroids[:, 0]
-    return (x > block_lo_x + tol_mm) & (x < -tol_mm)
+    out = (x > block_lo_x + tol_mm) & (x < -tol_mm)
+    if body_length_mm is not None:
+        out |= (x > body_length_mm + tol_mm) & (x < body_length_mm - block_lo_x - tol_mm)
+    return out
+
+
+def _one_core(r: Recipe) -> tuple[CoreSupport, ...]:
+    """The core support of a one-inlet recipe, as far as the checks need it."""
+    i = r.inlet
+    inlet = PlanInlet(i.center_mm, i.socket_diameter_mm, i.socket_depth_mm, i.face)
+    return (CoreSupport(inlet, 0.0, 0.0, 0.0, ((0.0, 0.0, 0.0), (0.0, 0.0, 0.0)),
+                        i.pull_dir()),)
 
 
 def _frozen(a: np.ndarray) -> np.ndarray:
@@ -100,6 +137,8 @@ class CheckContext:
     core_contact: np.ndarray
     mold: RayCaster
     printer: Printer
+    cores: tuple[CoreView, ...] = ()
+    all_cores: PreparedPart | None = None
 
     @property
     def outer_facets(self) -> np.ndarray:
@@ -108,7 +147,15 @@ class CheckContext:
 
     @property
     def core(self) -> PreparedPart:
-        return self.parts["core"]
+        """The core, or every core as one part (``core_contact`` indexes its facets)."""
+        return self.all_cores if self.all_cores is not None else self.parts["core"]
+
+    @property
+    def rigid_parts(self) -> tuple[str, ...]:
+        """The printed parts present, shells first, then the cores in plan order."""
+        names = [n for n in RIGID_PARTS if n in self.parts]
+        names += [c.part.name for c in self.cores if c.part.name not in names]
+        return tuple(names)
 
     @classmethod
     def create(
@@ -120,18 +167,35 @@ class CheckContext:
         block_lo_x: float,
         openings: Sequence[MoldOpening] = (),
         label_boxes: Mapping[str, Sequence[Box]] | None = None,
+        supports: Sequence[CoreSupport] = (),
     ) -> CheckContext:
         """Prepare every mesh once. ``parts`` maps part name -> (mesh, pull direction) for
-        shell-lower, shell-upper and core (the core is required); ``cast`` is the cast
-        part's mesh."""
+        shell-lower, shell-upper and the cores (required: ``core``, or the parts the
+        ``supports`` name); ``cast`` is the cast part's mesh."""
         prepared = {
             name: PreparedPart(name, Surface(mesh),
                                None if pull is None else _vec(pull))
             for name, (mesh, pull) in parts.items()
         }
         cast_s = Surface(cast)
-        core = prepared["core"].surface
-        rigid = [prepared[n].surface.mesh for n in RIGID_PARTS if n in prepared]
+        supports = tuple(supports) or _one_core(r)
+        inlets = [PlanInlet(i.center_mm, i.socket_diameter_mm, i.socket_depth_mm, i.face)
+                  for i in r.inlets]
+        sockets = r.sockets()
+        views = []
+        for sup in supports:
+            j = inlets.index(sup.inlet)
+            views.append(CoreView(prepared[sup.part], r.inlets[j], sockets[j],
+                                  _vec(sup.pull_dir),
+                                  _frozen(void_facets(r, cast_s, sup.voids or None, (j,)))))
+        all_cores = None
+        if len(views) > 1:
+            all_cores = PreparedPart("core", Surface(combine([v.part.surface.mesh
+                                                              for v in views])), None)
+        core = (all_cores or prepared["core"]).surface
+        names = [n for n in RIGID_PARTS if n in prepared]
+        names += [v.part.name for v in views if v.part.name not in names]
+        rigid = [prepared[n].surface.mesh for n in names]
         pr = r.printer
         printer = Printer(bed_mm=(float(pr.bed_mm[0]), float(pr.bed_mm[1])),
                           height_mm=pr.height_mm, nozzle_mm=pr.nozzle_mm,
@@ -146,9 +210,13 @@ class CheckContext:
             openings=tuple(openings),
             label_boxes=MappingProxyType({k: tuple(v) for k, v in (label_boxes or {}).items()}),
             void_facets=_frozen(void_facets(r, cast_s)),
-            core_contact=_frozen(core_print_facets(core, block_lo_x)),
+            core_contact=_frozen(core_print_facets(
+                core, block_lo_x, r.body_length_mm if any(i.at_end for i in r.inlets)
+                else None)),
             mold=RayCaster(combine(rigid)),
             printer=printer,
+            cores=tuple(views),
+            all_cores=all_cores,
         )
 
     @classmethod
@@ -163,7 +231,8 @@ class CheckContext:
         completed plan says."""
         step = plan.step
         return cls.create(plan.recipe, cast, parts, step.settled_parting.up,
-                          step.settled_layout.block_lo[0], step.openings, label_boxes)
+                          step.settled_layout.block_lo[0], step.openings, label_boxes,
+                          step.core_supports)
 
 
 def _vec(v: Sequence[float] | np.ndarray) -> tuple[float, float, float]:

@@ -71,10 +71,11 @@ class Review:
 
     @property
     def pulls(self) -> tuple[PullReport, ...]:
-        """The shells' pull reports, then the core's."""
+        """The shells' pull reports, then each core's."""
         shells = self.result(ShellRelease)
         core = self.result(CoreDraft)
-        return ((shells.reports if shells else ()) + ((core.report,) if core else ()))
+        return ((shells.reports if shells else ())
+                + ((core.report, *core.others) if core else ()))
 
     @property
     def extraction(self) -> Extraction | None:

@@ -25,15 +25,17 @@ ADVICE: dict[str, str] = {
         "hooks."),
     "core-lock": (
         "The rigid core print cannot leave a shell: the mold cannot be opened. Move the "
-        "parting plane through the core's axis (`parting.offset_mm`, `inlet.center_mm`) or "
-        "let the build choose it (`parting.axis: auto`)."),
+        "parting plane through the core's axis (`parting.offset_mm`, `inlet.center_mm`; with "
+        "several cores, through every socket: `inlets[i].center_mm`) or let the build choose "
+        "it (`parting.axis: auto`)."),
     "core-draft": (
         "A note only: the void faces that face against the core's pull are released by "
         "stretching the silicone; `core-extraction` says whether it can stretch that far."),
     "core-extraction": (
         "Pulling the core out through the inlet would stretch the silicone past its "
         "elongation at break: the inlet would tear. Make the tube socket wider "
-        "(`inlet.socket_diameter_mm`), the chambers narrower, or use a stretchier grade "
+        "(`inlet.socket_diameter_mm`, or that core's `inlets[i].socket_diameter_mm`: "
+        "core-n leaves through inlets[n-1]), the chambers narrower, or use a stretchier grade "
         "(`material.grade`, or your measured `material.elongation_pct`)."),
     "core-slenderness": (
         "The core print is long and thin between supports and may bend or break when cast "

@@ -22,7 +22,7 @@ from ..units import inhg_to_kpa, kpa_to_psi, mm3_to_cm3
 from .advice import advice_for
 from .assembly import Picture
 from .fasteners import NUT_MM, WASHER_MM, clamp_screws
-from .manifest import CastingRecord, Manifest
+from .manifest import CastingRecord, InletRecord, Manifest
 
 CAUTIONS = (
     "Platinum-cure silicone fails to cure (stays tacky) where it touches sulfur or "
@@ -68,6 +68,38 @@ STEPS = (
 Block = tuple[Any, ...]
 
 
+def _socket_words(rec: InletRecord, n: int) -> str:
+    face = "the x = 0 end" if rec.face == "start" else "the far end"
+    y, z = rec.center_mm
+    return f"socket {n} ({face}, centre y = {y:g}, z = {z:g} mm)"
+
+
+def steps_for(family: Sequence[Manifest]) -> list[str]:
+    """The casting steps: :data:`STEPS` for one core; with several, the seating, removal
+    and tube steps name each core and the socket it leaves through (core-n through
+    socket n, as the first variant with several inlets places them)."""
+    many = next((man for man in family if len(man.params.inlets) > 1), None)
+    if many is None:
+        return list(STEPS)
+    inlets = many.params.inlets
+    names = [f"core-{n}" for n in range(1, len(inlets) + 1)]
+    out = list(STEPS)
+    out[2] = ("Seat every core print (" + ", ".join(names) + ") in the lower shell, each "
+              "in the seat at its socket, close the upper shell on the keys (they fit one "
+              "way only) and bolt the halves with the clamp screws listed above, a washer "
+              "under each head and each nut, tightened evenly in a cross pattern.")
+    out[8] = ("Remove the cores one at a time, each through its own tube socket, slowly, "
+              "along the body's axis (the socket stretches as each chamber passes): "
+              + "; ".join(f"{name} out of {_socket_words(rec, n)}, pulled "
+                          + ("towards -x" if rec.face == "start" else "towards +x")
+                          for n, (name, rec) in enumerate(zip(names, inlets), 1)) + ".")
+    out[9] = ("Trim the sprue and vent stubs flush, then push one tube into each socket: "
+              + "; ".join(f"a {rec.socket_diameter_mm:g} mm tube into "
+                          f"{_socket_words(rec, n)}" for n, rec in enumerate(inlets, 1))
+              + ". Each tube feeds the chambers its core formed.")
+    return out
+
+
 def _fmt(x: float, nd: int = 1) -> str:
     return f"{x:.{nd}f}"
 
@@ -92,7 +124,7 @@ def card_blocks(family: Sequence[Manifest], title: str,
     blocks += _hardware_blocks([man for man, _ in cast])
     blocks += _picture_blocks([man for man, _ in cast], pictures or {})
     blocks.append(("h2", "Steps"))
-    blocks.append(("ol", list(STEPS)))
+    blocks.append(("ol", steps_for([man for man, _ in cast])))
     blocks += _pressure_blocks([man for man, _ in cast])
     blocks += _motion_blocks([man for man, _ in cast])
     blocks += _check_blocks([man for man, _ in cast])
@@ -332,12 +364,21 @@ def _screw_line(man: Manifest) -> str | None:
 def _tube_line(man: Manifest) -> str | None:
     inlet = man.params.data.get("inlet")
     if not isinstance(inlet, dict):
-        return None
+        return _tubes_line(man)
     d, depth = inlet.get("socket_diameter_mm"), inlet.get("socket_depth_mm")
     if not isinstance(d, (int, float)) or not isinstance(depth, (int, float)):
         return None
     return (f"Tube: {d:g} mm outer diameter (the socket's diameter; the silicone grips it), "
             f"pushed {depth:g} mm in to the bottom of the socket.")
+
+
+def _tubes_line(man: Manifest) -> str | None:
+    """One tube per socket of a recipe with an ``inlets`` list."""
+    inlets = man.params.inlets
+    parts = [f"{rec.socket_diameter_mm:g} mm outer diameter for {_socket_words(rec, n)}, "
+             f"pushed {rec.socket_depth_mm:g} mm in" for n, rec in enumerate(inlets, 1)]
+    return (f"Tubes ({len(inlets)}, one per socket; the silicone grips each): "
+            + "; ".join(parts) + ".")
 
 
 def _hardware_blocks(family: Sequence[Manifest]) -> list[Block]:

@@ -277,6 +277,18 @@ class MotionRecord:
 
 
 @dataclass(frozen=True)
+class InletRecord:
+    """One tube socket as the recipe echo lists it: its face (``start``: x = 0, ``end``:
+    x = the body's length), centre (y, z) on that face, diameter and depth (mm). Core
+    ``core-n`` leaves through inlet n (``core`` through the only one)."""
+
+    face: str
+    center_mm: Vec2
+    socket_diameter_mm: float
+    socket_depth_mm: float
+
+
+@dataclass(frozen=True)
 class RecipeEcho:
     """The resolved recipe as the manifest echoes it (``Recipe.params()``, JSON-shaped).
 
@@ -287,8 +299,13 @@ class RecipeEcho:
 
     @property
     def inlet_center_mm(self) -> Vec2:
-        """Centre of the tube socket on the inlet face (y, z), mm."""
+        """Centre of the first tube socket on its face (y, z), mm."""
         return _inlet_center(self.data, "params")
+
+    @property
+    def inlets(self) -> tuple[InletRecord, ...]:
+        """Every tube socket, in recipe order (the ``inlet`` block or the ``inlets`` list)."""
+        return _inlets(self.data, "params")
 
     @property
     def bed_mm(self) -> Vec2:
@@ -309,10 +326,33 @@ class RecipeEcho:
 
 
 def _inlet_center(data: Mapping[str, JsonValue], where: str) -> Vec2:
-    inlet = data.get("inlet")
-    if not isinstance(inlet, dict):
-        raise ShapeError(f"{where}.inlet", "missing or not an object")
-    return typing.cast(Vec2, convert(Vec2, inlet.get("center_mm"), f"{where}.inlet.center_mm"))
+    return _inlets(data, where)[0].center_mm
+
+
+def _inlets(data: Mapping[str, JsonValue], where: str) -> tuple[InletRecord, ...]:
+    """The echo's inlets: its ``inlet`` object, or each item of its ``inlets`` list."""
+    if "inlets" in data and "inlet" not in data:
+        items = data.get("inlets")
+        if not isinstance(items, list) or not items:
+            raise ShapeError(f"{where}.inlets", "missing or not a non-empty list")
+        named = [(f"{where}.inlets[{i}]", item) for i, item in enumerate(items)]
+    else:
+        named = [(f"{where}.inlet", data.get("inlet"))]
+    out = []
+    for path, item in named:
+        if not isinstance(item, dict):
+            raise ShapeError(path, "missing or not an object")
+        face = item.get("face", "start")
+        if face not in ("start", "end"):
+            raise ShapeError(f"{path}.face", f"expected start or end, got {face!r}")
+        out.append(InletRecord(
+            str(face), typing.cast(Vec2, convert(Vec2, item.get("center_mm"),
+                                                 f"{path}.center_mm")),
+            typing.cast(float, convert(float, item.get("socket_diameter_mm"),
+                                       f"{path}.socket_diameter_mm")),
+            typing.cast(float, convert(float, item.get("socket_depth_mm"),
+                                       f"{path}.socket_depth_mm"))))
+    return tuple(out)
 
 
 @dataclass(frozen=True)

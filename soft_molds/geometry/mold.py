@@ -2,8 +2,9 @@
 the casting step of the plan says (core support, layout, openings).
 
 Pour orientation: the parting axis w points up; the lower shell pulls along -w, the
-upper shell along +w and carries the sprue and vents; the core pulls out along -x through
-the inlet socket. All lengths mm.
+upper shell along +w and carries the sprue and vents; each core (one per group of joined
+voids) pulls out through its inlet socket, along -x from the start face x = 0 or along +x
+from the end face. All lengths mm.
 """
 
 from __future__ import annotations
@@ -18,6 +19,7 @@ from ..errors import GeometryError
 from ..plan.layout import MIN_LAND_MM, NOTCH_HALF_HEIGHT_MM, Layout
 from ..plan.model import CastingStep, CoreSupport, OpeningKind, PartingPlane
 from ..recipe.model import MoldSettings, Recipe
+from ..recipe.primitives import Primitive
 from . import kernel as k
 from . import labels
 
@@ -32,11 +34,23 @@ CAVITY_OVERLAP_MM = 0.3
 
 @dataclass(frozen=True)
 class CastSolids:
-    body: k.Shape
-    core: k.Shape
-    cast: k.Shape
-    volumes_mm3: dict[str, float]  # exact (BRep) volumes: body, void_set, core, cast
+    """Body, cores (in the step's core-support order) and cast; ``volumes_mm3`` holds the
+    exact (BRep) volumes: body, void_set, each core by its part name, cast."""
 
+    body: k.Shape
+    cores: tuple[k.Shape, ...]
+    cast: k.Shape
+    volumes_mm3: dict[str, float]
+
+    @property
+    def core(self) -> k.Shape:
+        """The core of a one-core step."""
+        (only,) = self.cores
+        return only
+
+
+#: Least gap between the grip tabs of two core prints in one face (mm).
+TAB_GAP_MM = 1.0
 
 #: Least land kept between a label and the edges of the face it is cut into (mm); never
 #: less than a printed wall (perimeters x nozzle) beyond the strokes' round ends.
@@ -62,7 +76,7 @@ class Label:
 
 
 def _label_tool(r: Recipe, part: str, centre: Point, right: Point, up: Point,
-                room_mm: float) -> tuple[k.Shape, Label] | None:
+                room_mm: float, text: str | None = None) -> tuple[k.Shape, Label] | None:
     """The tool that cuts the recipe's label into the flat face through ``centre`` (the
     middle of the text), reading along ``right`` with capitals along ``up`` (outward
     normal right x up); ``room_mm`` is the face's height along ``up``. None when labels are
@@ -73,7 +87,7 @@ def _label_tool(r: Recipe, part: str, centre: Point, right: Point, up: Point,
     h = min(ls.height_mm, room_mm - 2.0 * label_margin(r))
     if ls.mode == "none" or h < LABEL_MIN_HEIGHT_MM:
         return None
-    text = r.label_text
+    text = r.label_text if text is None else text
     c, rv, uv = (np.asarray(v, dtype=np.float64) for v in (centre, right, up))
     width = text_width_mm(text, h)
     origin = c - rv * (width / 2.0) - uv * (h / 2.0)
@@ -89,9 +103,9 @@ def _label_tool(r: Recipe, part: str, centre: Point, right: Point, up: Point,
 
 
 def cut_label(r: Recipe, shape: k.Shape, part: str, centre: Point, right: Point, up: Point,
-               room_mm: float
+              room_mm: float, text: str | None = None
                ) -> tuple[k.Shape, Label | None]:
-    made = _label_tool(r, part, centre, right, up, room_mm)
+    made = _label_tool(r, part, centre, right, up, room_mm, text)
     if made is None:
         return shape, None
     tool, lab = made
@@ -123,11 +137,21 @@ def shell_label_tool(r: Recipe, lay: Layout, part: str, lower: bool
     return _label_tool(r, part, centre, right, up, w1 - w0)
 
 
-def core_tag(r: Recipe, support: CoreSupport, parting: PartingPlane
+def core_label_text(r: Recipe, support: CoreSupport) -> str:
+    """The label of a core: the recipe's, followed by the core's number when there are
+    several (``core-2`` carries "... 2"), so each core goes back to its own socket."""
+    number = support.part.removeprefix("core").removeprefix("-")
+    return f"{r.label_text} {number}" if number else r.label_text
+
+
+def core_tag(r: Recipe, support: CoreSupport, parting: PartingPlane,
+             others: Sequence[CoreSupport] = ()
              ) -> tuple[tuple[float, float, float], tuple[float, float, float]] | None:
     """The flat grip tab at the outer end of the core print that carries the label: a box
     (lo, hi) in the parting plane's directions, thick enough for the cut and a printed wall
-    below it. None when labels are off."""
+    below it; no wider across than keeps TAB_GAP_MM to the tabs of the ``others`` prints in
+    the same face (each takes at most half the distance between centres). None when labels
+    are off."""
     from ..recipe.strokefont import text_width_mm
 
     ls = r.label_settings
@@ -137,20 +161,31 @@ def core_tag(r: Recipe, support: CoreSupport, parting: PartingPlane
     va = 3 - wa
     cy, cz = support.inlet.center_mm
     c = (0.0, cy, cz)
-    length = text_width_mm(r.label_text, ls.height_mm) + 2.0 * label_margin(r)
+    length = text_width_mm(core_label_text(r, support), ls.height_mm) + 2.0 * label_margin(r)
     across = ls.height_mm + 2.0 * label_margin(r)
+    for o in others:
+        if o.part != support.part and o.outward == support.outward:
+            apart = abs(o.inlet.center_mm[va - 1] - support.inlet.center_mm[va - 1])
+            across = min(across, apart - TAB_GAP_MM)
     thick = max(2.5, ls.depth_mm + r.printer.perimeters * r.printer.nozzle_mm)
     lo, hi = [0.0] * 3, [0.0] * 3
-    lo[0], hi[0] = support.start_x_mm - length, support.start_x_mm
+    # The tab continues the print outward, away from the block.
+    if support.outward > 0:
+        lo[0], hi[0] = support.start_x_mm, support.start_x_mm + length
+    else:
+        lo[0], hi[0] = support.start_x_mm - length, support.start_x_mm
     lo[va], hi[va] = c[va] - across / 2.0, c[va] + across / 2.0
     lo[wa], hi[wa] = c[wa] - thick / 2.0, c[wa] + thick / 2.0
     return tuple(lo), tuple(hi)  # type: ignore[return-value]
 
 
-def label_core(r: Recipe, step: CastingStep, core: k.Shape) -> tuple[k.Shape, Label | None]:
-    """Add the grip tab to the core print and cut the label into its +w face."""
+def label_core(r: Recipe, step: CastingStep, core: k.Shape,
+               support: CoreSupport | None = None) -> tuple[k.Shape, Label | None]:
+    """Add the grip tab to the print of ``support``'s core (default: the step's first) and
+    cut the label into its +w face."""
     parting = step.settled_parting
-    tab = core_tag(r, step.core_supports[0], parting)
+    support = support or step.core_supports[0]
+    tab = core_tag(r, support, parting, step.core_supports)
     if tab is None:
         return core, None
     lo, hi = tab
@@ -158,13 +193,14 @@ def label_core(r: Recipe, step: CastingStep, core: k.Shape) -> tuple[k.Shape, La
     va = 3 - wa
     plate = k.box(lo, hi)
     vol = k.volume(core) + float(np.prod(np.subtract(hi, lo)))
-    core = k.fuse([core, plate], "core", "add the grip tab", volume_mm3=vol)
+    core = k.fuse([core, plate], support.part, "add the grip tab", volume_mm3=vol)
     centre = [(a + b) / 2.0 for a, b in zip(lo, hi)]
     centre[wa] = hi[wa]
     up = _axis(va)
     normal = _axis(wa)
     right = np.cross(up, normal)
-    return cut_label(r, core, "core", centre, right, up, hi[va] - lo[va])
+    return cut_label(r, core, support.part, centre, right, up, hi[va] - lo[va],
+                     core_label_text(r, support))
 
 
 @dataclass(frozen=True)
@@ -201,31 +237,45 @@ def build_body(r: Recipe) -> k.Shape:
 
 
 def build_cast(r: Recipe, step: CastingStep, body: k.Shape | None = None) -> CastSolids:
-    """Void set, core and cast part (the body minus the core) for ``r``, the core held by
-    the step's core support."""
+    """Void set, cores and cast part (the body minus the cores) for ``r``: one core per
+    core support of the step, formed by its group of voids and held by its print."""
     if body is None:
         body = build_body(r)
-    void_prims = [p for group in r.void_primitives() for p in group]
+    sockets = r.sockets()
+    all_voids = r.void_primitives()
+    vols = {"body": k.volume(body), "void_set": 0.0}
+    cores = []
+    for sup in step.core_supports:
+        j = step.inlets.index(sup.inlet)
+        group = sup.voids or tuple(range(len(all_voids)))
+        core, void_vol = _build_core(sup, [p for i in group for p in all_voids[i]], sockets[j])
+        vols["void_set"] += void_vol
+        vols[sup.part] = k.volume(core)
+        cores.append(core)
+    what = "cut voids from body" if len(cores) == 1 else "cut every core's voids from body"
+    cast = k.cut(body, cores, "cast", what, volume_mm3=vols["body"] - vols["void_set"])
+    vols["cast"] = k.volume(cast)
+    return CastSolids(body, tuple(cores), cast, vols)
+
+
+def _build_core(sup: CoreSupport, void_prims: list[Primitive], socket_prim: Primitive
+                ) -> tuple[k.Shape, float]:
+    """One core (its voids, the print through its socket and the square key) and the
+    volume of its void set (voids and socket, mm3)."""
     # Voids may meet only in the tube socket (two rows on one socket): any number of
     # solids here, one once the socket joins them.
     voids = k.fuse([k.build_primitive(p, "voids") for p in void_prims], "voids", "fuse voids",
                    solids=None)
-    socket = k.build_primitive(r.inlet.socket(), "voids")
+    socket = k.build_primitive(socket_prim, "voids")
     void_set = k.fuse([voids, socket], "voids", "join voids to the inlet socket")
-
-    sup = step.core_supports[0]
     cy, cz = sup.inlet.center_mm
     # One cylinder is both the socket plug inside the body and the core print outside it.
-    x0 = sup.start_x_mm
-    print_cyl = k.cylinder(0, (x0, cy, cz), sup.end_x_mm - x0, sup.radius_mm)
+    x0 = min(sup.start_x_mm, sup.end_x_mm)
+    print_cyl = k.cylinder(0, (x0, cy, cz), abs(sup.end_x_mm - sup.start_x_mm), sup.radius_mm)
     key_lo, key_hi = sup.key_box
     key_box = k.box(key_lo, key_hi)
-    core = k.fuse([voids, print_cyl, key_box], "core", "build core")
-    vols = {"body": k.volume(body), "void_set": k.volume(void_set), "core": k.volume(core)}
-    cast = k.cut(body, [core], "cast", "cut voids from body",
-                 volume_mm3=vols["body"] - vols["void_set"])
-    vols["cast"] = k.volume(cast)
-    return CastSolids(body, core, cast, vols)
+    core = k.fuse([voids, print_cyl, key_box], sup.part, "build core")
+    return core, k.volume(void_set)
 
 
 def build_shells(r: Recipe, step: CastingStep, cs: CastSolids) -> ShellSolids:
@@ -237,10 +287,10 @@ def build_shells(r: Recipe, step: CastingStep, cs: CastSolids) -> ShellSolids:
     wa = f.w_axis
     block = k.box(lay.block_lo, lay.block_hi)
     c = m.clearance_mm
-    (klo, khi) = step.core_supports[0].key_box
-    pocket = k.box(tuple(a - c for a in klo), tuple(b + c for b in khi))
+    pockets = [k.box(tuple(a - c for a in klo), tuple(b + c for b in khi))
+               for klo, khi in (sup.key_box for sup in step.core_supports)]
     w_lo, w_hi = lay.block_lo[wa], lay.block_hi[wa]
-    tools = [cs.body, cs.core, pocket]
+    tools = [cs.body, *cs.cores, *pockets]
     if m.clamp_hole_mm is not None:
         for u, v in lay.bolts_uv:
             tools.append(k.cylinder(wa, f.world(u, v, w_lo - 1.0), w_hi - w_lo + 2.0,

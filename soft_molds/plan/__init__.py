@@ -45,6 +45,12 @@ def plan_problems(r: Recipe) -> list[Problem]:
     own = own_problems(r.process.kind)
     if own is not None:
         return own(r, line)
+    if len(r.inlets) > 1:
+        from .processes.one_shot import print_problems
+
+        prints = print_problems(r, line)
+        if prints:
+            return prints
     if not r.parting.auto:
         assert r.parting.offset_mm is not None
         return parting_problems(r, r.parting.axis, r.parting.offset_mm, line)
@@ -67,6 +73,13 @@ def auto_parting_problems(r: Recipe, line: LineOf) -> list[Problem]:
     planes = candidate_planes(r)
     if any(first_rule_broken(r, ax, off) is None for ax, off in planes):
         return []
+    if not planes:  # several sockets that no one plane runs through
+        ys = ", ".join(f"({i.center_mm[0]:g}, {i.center_mm[1]:g})" for i in r.inlets)
+        return [Problem("parting.axis", "auto finds no plane through every socket centre "
+                        f"(y, z) = {ys} mm: each core print must seat in both shells",
+                        line("parting.axis"), "auto",
+                        "sockets that share a y or a z (put both sockets at the same z, or "
+                        "at the same y), or a parting axis and offset of your own")]
     ax, off = planes[0]
     head = Problem("parting.axis", f"auto finds no candidate plane that keeps the rules of "
                    f"the mold ({len(planes)} tried); the plane through the socket, {ax} = "

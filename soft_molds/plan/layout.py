@@ -97,10 +97,11 @@ def plan_layout(r: Recipe, axis: str, offset_mm: float) -> Layout:
     # Three keys, no two related by the rectangle's symmetries (half turn about w, mirror
     # in u, mirror in v), so the halves close one way only.
     keys = ((mid_first, v0), (mid_last, v0), (mid_first, v1))
-    notches = (
-        (hi[0], (v0 + v1) / 2, 2 * NOTCH_DEPTH_MM, NOTCH_LENGTH_MM),  # far end face, centred
-        (mid_last, hi[va], NOTCH_LENGTH_MM, 2 * NOTCH_DEPTH_MM),      # +v face, no key there
-    )
+    side = (mid_last, hi[va], NOTCH_LENGTH_MM, 2 * NOTCH_DEPTH_MM)  # +v face, no key there
+    # The far end face's notch sits where an end-face core print passes: that face keeps
+    # none when a socket enters it.
+    far = (hi[0], (v0 + v1) / 2, 2 * NOTCH_DEPTH_MM, NOTCH_LENGTH_MM)  # centred
+    notches = (side,) if any(i.at_end for i in r.inlets) else (far, side)
     return Layout(frame, offset_mm, (lo[0], lo[1], lo[2]), (hi[0], hi[1], hi[2]), body_lo,
                   body_hi, bolts, keys, notches)
 

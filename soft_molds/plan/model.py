@@ -4,8 +4,8 @@ choice of a parting plane (``parting: auto``) and by the openings located on the
 
 Frame (mm, world): the body starts at the inlet face x = 0 and lies at x >= 0. In pour
 orientation the parting plane's normal axis (y or z) points up: the upper shell lies on its
-+ side and pulls along +up, the lower shell pulls along -up, and the core pulls along -x out
-through the inlet socket.
++ side and pulls along +up, the lower shell pulls along -up, and each core pulls out
+through its inlet socket: along -x from the start face x = 0, along +x from the end face.
 """
 
 from __future__ import annotations
@@ -14,7 +14,7 @@ import math
 from dataclasses import dataclass, replace
 from enum import StrEnum
 
-from ..recipe.model import Recipe
+from ..recipe.model import InletFace, Recipe
 from .layout import Layout
 
 Vec3 = tuple[float, float, float]
@@ -101,11 +101,13 @@ class PlaneScore:
 
 @dataclass(frozen=True)
 class Inlet:
-    """A tube socket into the inlet face: centre (y, z) on x = 0, diameter and depth (mm)."""
+    """A tube socket into an end face: centre (y, z) on the face, diameter and depth (mm);
+    ``face`` start is x = 0, end is x = the body's length."""
 
     center_mm: tuple[float, float]
     socket_diameter_mm: float
     socket_depth_mm: float
+    face: InletFace = InletFace.START
 
 
 @dataclass(frozen=True)
@@ -113,7 +115,10 @@ class CoreSupport:
     """How the core is held: one round print, both socket plug and the part seated in the
     shells, from ``start_x_mm`` (outside the block, < 0) to the socket floor ``end_x_mm``,
     radius ``radius_mm`` about the inlet centre; and a square ``key_box`` (lo, hi) in the
-    block's inlet wall whose flats stop it turning and shoulders stop it sliding."""
+    block's inlet wall whose flats stop it turning and shoulders stop it sliding. On the
+    end face ``start_x_mm`` lies beyond the block's +x face and ``pull_dir`` is +x.
+    ``part`` names the core's part (``core``, or ``core-1``, ``core-2``, ... when there are
+    several) and ``voids`` the recipe's voids it forms."""
 
     inlet: Inlet
     start_x_mm: float
@@ -121,6 +126,13 @@ class CoreSupport:
     radius_mm: float
     key_box: Box
     pull_dir: Vec3 = (-1.0, 0.0, 0.0)
+    part: str = "core"
+    voids: tuple[int, ...] = ()
+
+    @property
+    def outward(self) -> float:
+        """The sign of x pointing out of the socket's face: -1 start, +1 end."""
+        return self.pull_dir[0]
 
 
 @dataclass(frozen=True)
@@ -409,7 +421,7 @@ class CastingStep:
 
     @property
     def parts(self) -> tuple[PartPlan, ...]:
-        """shell-lower, shell-upper, core, cast, in the order files and reports list them;
+        """shell-lower, shell-upper, the core(s), cast, in the order files and reports list them;
         for a layered step tray, post-bridge (chambered only) and cast, pulls in pour
         orientation."""
         if self.layer is not None:
@@ -426,8 +438,8 @@ class CastingStep:
                     PartPlan("cast", Role.CAST, None))
         return (PartPlan("shell-lower", Role.SHELL, p.down),
                 PartPlan("shell-upper", Role.SHELL, p.up),
-                PartPlan("core", Role.CORE, self.core_supports[0].pull_dir
-                         if self.core_supports else unit(0, -1.0)),
+                *((PartPlan(c.part, Role.CORE, c.pull_dir) for c in self.core_supports)
+                  if self.core_supports else (PartPlan("core", Role.CORE, unit(0, -1.0)),)),
                 PartPlan("cast", Role.CAST, None))
 
     @property

@@ -22,7 +22,11 @@ OFFSET_FRACTIONS = (0.25, 0.5)
 def candidate_planes(r: Recipe) -> list[tuple[str, float]]:
     """Planes worth trying, for each cross axis (the body's thinner direction first): the
     plane through the socket axis (where the core print seats), the body's widest section
-    along that axis, and planes a quarter and a half of the half extent either side of it."""
+    along that axis, and planes a quarter and a half of the half extent either side of it.
+    With several sockets only the planes through every socket's axis are kept (each core
+    print must seat in both shells); there may then be none."""
+    from .rules import through_sockets
+
     cy, cz = r.inlet.center_mm
     lo, hi = r.body_bounds()
     prims = r.body_primitives()
@@ -39,6 +43,8 @@ def candidate_planes(r: Recipe) -> list[tuple[str, float]]:
             key = (ax, round(off, 6) + 0.0)
             if key not in out:
                 out.append(key)
+    if len(r.inlets) > 1:
+        out = [(ax, off) for ax, off in out if through_sockets(r, ax, off)]
     return out
 
 

@@ -33,14 +33,10 @@ def parting_problems(r: Recipe, axis: str, offset_mm: float, line: LineOf) -> li
     """The plane normal to ``axis`` at ``offset_mm``: through the socket axis and the widest
     section, and the mold-block rules of the layout it gives."""
     out: list[Problem] = []
-    cy, cz = r.inlet.center_mm
-    inlet_on_axis = cz if axis == "z" else cy
     parting_line = line("parting.offset_mm")
-    if abs(inlet_on_axis - offset_mm) > EPS_MM:
-        out.append(Problem("parting.offset_mm", "does not pass through the inlet socket axis",
-                           parting_line, offset_mm,
-                           f"{inlet_on_axis:g} mm (the socket centre's {axis}), so the core "
-                           "print can be seated in both shell parts"))
+    off_socket = socket_problem(r, axis, offset_mm, parting_line)
+    if off_socket is not None:
+        out.append(off_socket)
     elif not at_widest(r, axis, offset_mm):
         out.append(Problem("parting.offset_mm", "does not run through the body's widest "
                            "section: one shell part would lock the cast in an undercut",
@@ -51,6 +47,40 @@ def parting_problems(r: Recipe, axis: str, offset_mm: float, line: LineOf) -> li
     out.extend(layout_problems(r, lay, line))
     out.extend(printer_problems(r, lay, line))
     return out
+
+
+def _on_axis(r: Recipe, axis: str) -> list[float]:
+    """Every socket centre's coordinate along ``axis`` (mm), in inlet order."""
+    return [(i.center_mm[1] if axis == "z" else i.center_mm[0]) for i in r.inlets]
+
+
+def through_sockets(r: Recipe, axis: str, offset_mm: float) -> bool:
+    """Whether the plane normal to ``axis`` at ``offset_mm`` runs through every socket's
+    axis (every core print is seated in both shells)."""
+    return all(abs(c - offset_mm) <= EPS_MM for c in _on_axis(r, axis))
+
+
+def socket_problem(r: Recipe, axis: str, offset_mm: float, at: int | None
+                   ) -> Problem | None:
+    """The problem of a plane that misses a socket's axis, or None."""
+    coords = _on_axis(r, axis)
+    if through_sockets(r, axis, offset_mm):
+        return None
+    if len(coords) == 1:
+        return Problem("parting.offset_mm", "does not pass through the inlet socket axis",
+                       at, offset_mm, f"{coords[0]:g} mm (the socket centre's {axis}), so the "
+                       "core print can be seated in both shell parts")
+    if max(coords) - min(coords) <= EPS_MM:
+        return Problem("parting.offset_mm", "does not pass through the sockets' axes", at,
+                       offset_mm, f"{coords[0]:g} mm (every socket centre's {axis}), so each "
+                       "core print can be seated in both shell parts")
+    other = "y" if axis == "z" else "z"
+    listed = ", ".join(f"{c:g}" for c in coords)
+    return Problem("parting.offset_mm", f"cannot pass through every socket axis: the "
+                   f"socket centres lie at {axis} = {listed} mm", at, offset_mm,
+                   f"one plane through every core print: put the sockets at the same "
+                   f"{axis}, or set parting.axis: {other} (with the sockets at the same "
+                   f"{other})")
 
 
 def shell_sizes(lay: Layout) -> dict[str, tuple[float, float, float]]:

@@ -24,6 +24,7 @@ from .model import (
     Checks,
     Inflate,
     Inlet,
+    InletFace,
     LabelSettings,
     Material,
     MeshSettings,
@@ -35,7 +36,7 @@ from .model import (
 )
 from .registry import body_kinds, void_kinds
 from .sanity import sanity_problems
-from .schema import BLOCKS, TOP_FIELDS
+from .schema import BLOCKS, INLET_FIELDS, MAX_INLETS, TOP_FIELDS
 from .variants import (
     VariantSpec,
     apply_changes,
@@ -314,6 +315,7 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
         r = MapReader(top.node(block), block, problems, top.line)
         blocks[block] = r.take_all(fields)
         r.finish()
+    inlets_v = _read_inlets(top, blocks["inlet"], problems)
     top.finish()
 
     if problems or body is None or any(v is None for v in voids):
@@ -322,11 +324,14 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
     if problems:
         raise refused()
 
-    inlet_v = blocks["inlet"]
-    if inlet_v["center_mm"] is None:
-        inlet_v["center_mm"] = voids[0].entry()[0]
-    voids = _after_socket(body, voids, inlet_v["socket_depth_mm"]
-                          + blocks["checks"]["min_wall_mm"])
+    if inlets_v[0]["center_mm"] is None:
+        inlets_v[0]["center_mm"] = voids[0].entry()[0]
+    inlet_v = inlets_v[0]
+    # Default placements keep clear of the start face's sockets (the only face a void's
+    # default placement starts from).
+    start_depth = max((v["socket_depth_mm"] for v in inlets_v if v["face"] == "start"),
+                      default=0.0)
+    voids = _after_socket(body, voids, start_depth + blocks["checks"]["min_wall_mm"])
     parting_v = blocks["parting"]
     if parting_v["axis"] is None:
         lo, hi = bounds_of(body.primitives())
@@ -375,7 +380,9 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
 
     recipe = Recipe(
         name=name, label=label, description=vals["description"] or "", body=body,
-        voids=tuple(voids), inlet=Inlet(**inlet_v), parting=Parting(**parting_v),
+        voids=tuple(voids),
+        inlets=tuple(Inlet(**dict(v, face=InletFace(v["face"]))) for v in inlets_v),
+        parting=Parting(**parting_v),
         mold=MoldSettings(**blocks["mold"]), checks=Checks(**blocks["checks"]),
         mesh=MeshSettings(**blocks["mesh"]),
         material=Material(**blocks["material"], silicone=silicone, blend=blend),
@@ -394,6 +401,37 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
             exc.recipe = recipe
         raise exc
     return recipe
+
+
+def _read_inlets(top: MapReader, single: dict, problems: list[Problem]) -> list[dict]:
+    """The inlets' values: the ``inlets`` list, or the ``inlet`` block as a list of one.
+    Problems (both given, a bad list or item, a list item without its centre) are added to
+    ``problems``; the values returned then do not matter."""
+    node = top.node("inlets")
+    if node is None:
+        return [single]
+    where = node.key_line or node.line
+    if top.node("inlet") is not None:
+        top.problem("inlets", "is given with inlet", where, None,
+                    "one of the two: `inlet` (one socket) or `inlets` (a list)")
+        return [single]
+    if not isinstance(node.value, list) or not node.value or len(node.value) > MAX_INLETS:
+        top.problem("inlets", "must be a list of 1 to " f"{MAX_INLETS} inlet blocks", where,
+                    node.plain(), f"1 to {MAX_INLETS} mappings with socket_diameter_mm, "
+                    "socket_depth_mm, center_mm and face")
+        return [single]
+    out = []
+    for i, item in enumerate(node.value):
+        path = join_path("inlets", i)
+        r = MapReader(item, path, problems, item.line)
+        values = r.take_all(INLET_FIELDS)
+        r.finish()
+        if r.ok and values["center_mm"] is None and (i > 0 or values["face"] != "start"):
+            r.problem(f"{path}.center_mm", "is required", r.line, None,
+                      "(y, z) of the socket on its face, mm (only the first inlet on the "
+                      "start face may follow the first void)")
+        out.append(values)
+    return out
 
 
 def _follow_body(body: BodyKind, voids: list, problems: list[Problem],

@@ -12,6 +12,7 @@ import hashlib
 import json
 from collections.abc import Mapping
 from dataclasses import asdict, dataclass, field
+from enum import Enum
 from typing import Any
 
 from .contracts import BodyKind, VoidKind, bounds_of
@@ -22,17 +23,50 @@ from .primitives import Primitive, RoundedRod
 ISO273_MEDIUM_MM = {"M3": 3.4, "M4": 4.5, "M5": 5.5}
 
 
+class InletFace(str, Enum):
+    """The end face a tube socket enters: ``start`` is the x = 0 face (socket along +x),
+    ``end`` the x = body length face (socket along -x)."""
+
+    START = "start"
+    END = "end"
+
+
 @dataclass(frozen=True)
 class Inlet:
-    """Tube socket where the core leaves the body: a round hole into the -x face."""
+    """Tube socket where a core leaves the body: a round hole into one end face, centred
+    at (y, z) = ``center_mm`` on it, ``socket_depth_mm`` deep along the body's axis (mm)."""
 
     socket_diameter_mm: float
     socket_depth_mm: float
-    center_mm: tuple[float, float]  # (y, z) on the x = 0 face
+    center_mm: tuple[float, float]  # (y, z) on the face
+    face: InletFace = InletFace.START
 
-    def socket(self) -> RoundedRod:
-        return RoundedRod("x", 0.0, self.socket_depth_mm, self.center_mm,
+    @property
+    def at_end(self) -> bool:
+        return self.face is InletFace.END
+
+    def face_x_mm(self, body_length_mm: float) -> float:
+        """x of the face the socket enters (mm): 0 or the body's length."""
+        return body_length_mm if self.at_end else 0.0
+
+    def pull_dir(self) -> tuple[float, float, float]:
+        """The unit direction a core leaves through this socket: out of its face."""
+        return (1.0, 0.0, 0.0) if self.at_end else (-1.0, 0.0, 0.0)
+
+    def socket(self, body_length_mm: float = 0.0) -> RoundedRod:
+        """The socket as a primitive; ``body_length_mm`` places an ``end`` socket."""
+        x0 = body_length_mm - self.socket_depth_mm if self.at_end else 0.0
+        return RoundedRod("x", x0, self.socket_depth_mm, self.center_mm,
                           self.socket_diameter_mm / 2.0, 0.0)
+
+    def echo(self) -> dict[str, Any]:
+        """The recipe echo of this inlet: the face only when it is not the default."""
+        out: dict[str, Any] = {"socket_diameter_mm": self.socket_diameter_mm,
+                               "socket_depth_mm": self.socket_depth_mm,
+                               "center_mm": self.center_mm}
+        if self.at_end:
+            out["face"] = self.face.value
+        return out
 
 
 @dataclass(frozen=True)
@@ -199,7 +233,7 @@ class Recipe:
     description: str
     body: BodyKind
     voids: tuple[VoidKind, ...]
-    inlet: Inlet
+    inlets: tuple[Inlet, ...]
     parting: Parting
     mold: MoldSettings
     checks: Checks
@@ -213,6 +247,22 @@ class Recipe:
     process: Process = field(default_factory=Process)
     #: Field path -> source line, for problems found after loading (the plan stage's).
     lines: Mapping[str, int] = field(default_factory=dict, compare=False, repr=False)
+
+    @property
+    def inlet(self) -> Inlet:
+        """The first inlet (the only one of a recipe with an ``inlet`` block; the layered
+        process has one feed)."""
+        return self.inlets[0]
+
+    def inlet_path(self, i: int) -> str:
+        """The recipe path of inlet ``i``: ``inlets[i]``, or ``inlet`` when the recipe
+        wrote the one-socket block."""
+        return f"inlets[{i}]" if "inlets" in self.lines else "inlet"
+
+    def sockets(self) -> tuple[RoundedRod, ...]:
+        """Every inlet's tube socket as a primitive, in recipe order (mm, world)."""
+        length = self.body_length_mm
+        return tuple(i.socket(length) for i in self.inlets)
 
     @property
     def label_text(self) -> str:
@@ -252,7 +302,11 @@ class Recipe:
             "label": self.label,
             "body": kind_dict(self.body),
             "voids": [kind_dict(v) for v in self.voids],
-            "inlet": asdict(self.inlet),
+            # One inlet on the start face echoes as the ``inlet`` block always did (so the
+            # hash and manifest of such a recipe do not change); several as ``inlets``.
+            **({"inlet": self.inlets[0].echo()}
+               if len(self.inlets) == 1 and not self.inlets[0].at_end
+               else {"inlets": [i.echo() for i in self.inlets]}),
             "parting": asdict(self.parting),
             "mold": asdict(self.mold),
             "checks": asdict(self.checks),

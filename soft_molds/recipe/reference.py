@@ -8,7 +8,7 @@ from __future__ import annotations
 from .fields import MIN_SIZE_MM, Field
 from .load import SCALE_HINT_BELOW_MM
 from .registry import body_kinds, void_kinds
-from .schema import BLOCKS, TOP_FIELDS
+from .schema import BLOCKS, LIST_BLOCKS, MAX_INLETS, TOP_FIELDS
 
 
 def _default(f: Field) -> str:
@@ -56,6 +56,13 @@ def reference_markdown() -> str:
                 " ".join((vcls.__doc__ or "").split()), "", *_table(vcls.FIELDS), ""]
     for block, fields in BLOCKS.items():
         out += [f"### `{block}`", "", *_table(fields), ""]
+    for block in LIST_BLOCKS:
+        out += [f"### `{block}[]`", "",
+                f"Instead of `inlet`, a list of 1 to {MAX_INLETS} inlet blocks with the "
+                "fields above (`center_mm` required but for the first on the start face). "
+                "Every group of joined voids opens into exactly one socket and gets its own "
+                "core, pulled out through that socket; the parting plane runs through every "
+                "socket centre.", ""]
     return "\n".join(out).rstrip() + "\n"
 
 

@@ -1,17 +1,19 @@
 """Geometric sanity of a validated recipe, checked with exact distance functions before
-any kernel call: voids inside the body with the minimum silicone wall, every void
-reached from the inlet socket and the socket on the flat inlet face. The rules of the mold
+any kernel call: voids inside the body with the minimum silicone wall, every group of
+joined voids reached from exactly one inlet socket, every socket on its flat end face,
+feeding a void and clear of the other sockets. The rules of the mold
 (parting plane, block features, printer) are the plan stage's (:mod:`soft_molds.plan.rules`)."""
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable
 from functools import partial
 
 import numpy as np
 
 from ..errors import Problem
-from . import voidgraph
+from .feeds import fed_groups
 from .model import Recipe
 from .primitives import Primitive, union_sdf
 
@@ -45,93 +47,171 @@ def _fmt_point(p: np.ndarray) -> str:
 def sanity_problems(r: Recipe, lines: dict[str, int]) -> list[Problem]:
     out: list[Problem] = []
     body = r.body_primitives()
-    socket = r.inlet.socket()
+    sockets = r.sockets()
     min_wall = r.checks.min_wall_mm
-    sock_r = r.inlet.socket_diameter_mm / 2.0
-    cy, cz = r.inlet.center_mm
 
     def line(path: str) -> int | None:
         while path and path not in lines:
             path = path.rsplit(".", 1)[0] if "." in path else ""
         return lines.get(path)
 
-    # The socket mouth must sit on the flat x = 0 face with a wall around it.
-    ring = np.linspace(0.0, 2 * np.pi, 73)[:-1]
-    delta = 1e-3
-    rim = np.stack([np.full_like(ring, delta), cy + (sock_r + min_wall) * np.cos(ring),
-                    cz + (sock_r + min_wall) * np.sin(ring)], axis=1)
-    d = union_sdf(body, rim)
-    if np.any(d > -delta + 1e-7):
-        # When the socket follows the first void, point at the line the user wrote.
-        given = "inlet.center_mm" in lines
-        follows = "" if given else " (derived from voids[0].center_mm)"
-        where = line("inlet.center_mm") if given else (
-            lines.get("voids[0].center_mm") or line("inlet") or line("voids[0]"))
-        out.append(Problem("inlet.center_mm", "puts the socket off the flat inlet face (x = 0) "
-                           f"or closer than checks.min_wall_mm = {min_wall:g} mm to its edge"
-                           + follows, where,
-                           [cy, cz],
-                           "a point of the x = 0 face at least socket radius + min wall from "
-                           "its rim"))
+    for j in range(len(r.inlets)):
+        _inlet_problems(out, r, j, body, line)
+    _socket_pair_problems(out, r, line)
 
-    sock_samples = socket.surface_samples(_spacing((socket,)))
-    # The mouth is meant to be open: within min_wall of the inlet face the face itself is
-    # nearer than min_wall, and the rim check above bounds the wall there. Beyond it the
-    # socket's side is checked as well as its floor, since a body may narrow away from
-    # x = 0 (a tapered section).
-    sock_samples = sock_samples[sock_samples[:, 0] >= min(min_wall,
-                                                          r.inlet.socket_depth_mm) - EPS]
-    _wall_problems(out, "inlet", line("inlet") or line(""), body, sock_samples, min_wall)
-
-    # A void is reached when it opens into the socket or overlaps a void that is (the
-    # void graph, exact for chambers and bores): one line per group reaching no inlet,
-    # on its first void, after that void's wall findings.
-    lost = {g[0]: g for g in voidgraph.unreached(
-        r.void_primitives(), lambda i: _opens_into_socket(r, r.voids[i]))}
-    for i, (void, prims) in enumerate(zip(r.voids, r.void_primitives())):
+    # A void is reached when it opens into a socket or overlaps a void that is (the void
+    # graph, exact for chambers and bores): one line per group reaching no inlet, on its
+    # first void, after that void's wall findings; one per group reaching two.
+    void_prims = r.void_primitives()
+    fed = fed_groups(r)
+    lost = {g[0]: g for g, js in fed if not js}
+    for i, (void, prims) in enumerate(zip(r.voids, void_prims)):
         path = f"voids[{i}]"
         spacing = _spacing(prims)
         per_prim = [p.surface_samples(spacing) for p in prims]
         samples = np.concatenate(per_prim)
-        # Surface inside another primitive of the same void, or inside the socket, is not
+        # Surface inside another primitive of the same void, or inside a socket, is not
         # a cast surface; keep only points on the void set's own boundary.
         inside_self = union_sdf(prims, samples) < -EPS
-        inside_socket = socket.sdf(samples) < EPS
+        inside_socket = union_sdf(sockets, samples) < EPS
         samples = samples[~inside_self & ~inside_socket]
         _wall_problems(out, path, line(path), body, samples, min_wall,
                        partial(_wall_keys, void, path))
-        _socket_wall_problems(out, r, void, path, line, per_prim)
+        for j in range(len(r.inlets)):
+            _socket_wall_problems(out, r, j, void, path, line, per_prim)
         if i in lost:
             out.append(_unreached(r, lost[i], line(path)))
+    groups = [g for g, js in fed if js]  # one core each
+    for g, js in fed:
+        for j in js[1:]:
+            at = f"{r.inlet_path(j)}.center_mm"
+            names = ", ".join(f"voids[{i}]" for i in g)
+            out.append(Problem(at, f"opens into the void group {names}, which "
+                               f"{r.inlet_path(js[0])} feeds too: two inlets feed one void "
+                               "group; one core can leave through one socket only",
+                               line(at), list(r.inlets[j].center_mm),
+                               "one inlet per group of joined voids (move this socket off "
+                               "the group, or part the voids into groups of their own)"))
+    out.extend(_group_wall_problems(r, groups, line))
+    # (The one socket of a recipe that no void opens into is said by the voids' lines.)
+    for j in range(len(r.inlets) if len(r.inlets) > 1 else 0):
+        if not any(j in js for _, js in fed):
+            at = f"{r.inlet_path(j)}.center_mm"
+            out.append(Problem(at, "puts a socket that no void opens into", line(at),
+                               list(r.inlets[j].center_mm),
+                               "a socket a void's passage opens into (each inlet feeds one "
+                               "group of joined voids)"))
+    return out
 
+
+def _inlet_problems(out: list[Problem], r: Recipe, j: int, body: tuple[Primitive, ...],
+                    line: Callable[[str], int | None]) -> None:
+    """Socket ``j`` on its flat face with a wall round its mouth, and silicone round its
+    side and floor."""
+    inlet = r.inlets[j]
+    path = r.inlet_path(j)
+    min_wall = r.checks.min_wall_mm
+    sock_r = inlet.socket_diameter_mm / 2.0
+    cy, cz = inlet.center_mm
+    face_x = inlet.face_x_mm(r.body_length_mm)
+    inward = -1.0 if inlet.at_end else 1.0
+    lines = r.lines
+    # The socket mouth must sit on the flat face with a wall around it.
+    ring = np.linspace(0.0, 2 * np.pi, 73)[:-1]
+    delta = 1e-3
+    rim = np.stack([np.full_like(ring, face_x + inward * delta),
+                    cy + (sock_r + min_wall) * np.cos(ring),
+                    cz + (sock_r + min_wall) * np.sin(ring)], axis=1)
+    d = union_sdf(body, rim)
+    if np.any(d > -delta + 1e-7):
+        # When the socket follows the first void, point at the line the user wrote.
+        given = f"{path}.center_mm" in lines
+        follows = "" if given else " (derived from voids[0].center_mm)"
+        where = line(f"{path}.center_mm") if given else (
+            lines.get("voids[0].center_mm") or line(path) or line("voids[0]"))
+        face = (f"the flat end face (x = {face_x:g})" if inlet.at_end
+                else "the flat inlet face (x = 0)")
+        out.append(Problem(f"{path}.center_mm", f"puts the socket off {face} "
+                           f"or closer than checks.min_wall_mm = {min_wall:g} mm to its edge"
+                           + follows, where,
+                           [cy, cz],
+                           f"a point of the x = {face_x:g} face at least socket radius + min "
+                           "wall from its rim"))
+
+    socket = r.sockets()[j]
+    sock_samples = socket.surface_samples(_spacing((socket,)))
+    # The mouth is meant to be open: within min_wall of the face the face itself is
+    # nearer than min_wall, and the rim check above bounds the wall there. Beyond it the
+    # socket's side is checked as well as its floor, since a body may narrow away from
+    # the face (a tapered section).
+    depth_in = inward * (sock_samples[:, 0] - face_x)
+    sock_samples = sock_samples[depth_in >= min(min_wall, inlet.socket_depth_mm) - EPS]
+    _wall_problems(out, path, line(path) or line(""), body, sock_samples, min_wall)
+
+
+def _socket_pair_problems(out: list[Problem], r: Recipe,
+                          line: Callable[[str], int | None]) -> None:
+    """Two sockets must keep the least silicone wall between them. Both are cylinders along
+    x, so their gap is exact: across, the centres' distance less both radii; along x, the
+    body's length less both depths when they enter opposite faces (elementary geometry)."""
+    length = r.body_length_mm
+    min_wall = r.checks.min_wall_mm
+    for j, b in enumerate(r.inlets):
+        for i, a in enumerate(r.inlets[:j]):
+            across = math.dist(a.center_mm, b.center_mm) - (a.socket_diameter_mm
+                                                            + b.socket_diameter_mm) / 2.0
+            along = (length - a.socket_depth_mm - b.socket_depth_mm if a.face != b.face
+                     else -math.inf)
+            gap = (math.hypot(max(across, 0.0), max(along, 0.0)) if max(across, along) > 0
+                   else max(across, along))
+            if gap >= min_wall - 1e-9:
+                continue
+            at = f"{r.inlet_path(j)}.center_mm"
+            what = (f"overlaps the socket of {r.inlet_path(i)}" if gap <= 0.0 else
+                    f"leaves {gap:.2f} mm of silicone to the socket of {r.inlet_path(i)}")
+            out.append(Problem(at, what, line(at), list(b.center_mm),
+                               f"sockets at least checks.min_wall_mm = {min_wall:g} mm apart "
+                               "(move a socket or make them narrower)"))
+
+
+def _group_wall_problems(r: Recipe, groups: list[tuple[int, ...]],
+                         line: Callable[[str], int | None]) -> list[Problem]:
+    """Two groups of voids (two cores) must keep the least silicone wall between them: the
+    wall they do not share is sampled on the later group's surface."""
+    out: list[Problem] = []
+    prims = r.void_primitives()
+    min_wall = r.checks.min_wall_mm
+    for b, gb in enumerate(groups):
+        for ga in groups[:b]:
+            other = tuple(p for i in ga for p in prims[i])
+            own = tuple(p for i in gb for p in prims[i])
+            samples = np.concatenate([p.surface_samples(_spacing(own)) for p in own])
+            d = union_sdf(other, samples)
+            k = int(np.argmin(d))
+            if d[k] >= min_wall - 1e-6:
+                continue
+            at = f"voids[{gb[0]}]"
+            out.append(Problem(at, f"leaves a silicone wall of {max(d[k], 0.0):.2f} mm to "
+                               f"voids[{ga[0]}] (another core) at {_fmt_point(samples[k])}",
+                               line(at), None, f"at least checks.min_wall_mm = {min_wall:g} "
+                               "mm between voids fed from different inlets"))
     return out
 
 
 def _unreached(r: Recipe, group: tuple[int, ...], at: int | None) -> Problem:
-    """The finding for a group of joined voids none of which opens into the socket."""
+    """The finding for a group of joined voids none of which opens into a socket."""
     (ey, ez), er, ex = r.voids[group[0]].entry()
-    (cy, cz), sock_r = r.inlet.center_mm, r.inlet.socket_diameter_mm / 2.0
     rest = ", ".join(f"voids[{i}]" for i in group[1:])
     also = f" (nor is {rest}, joined to it)" if rest else ""
-    return Problem(f"voids[{group[0]}]", "is not reached from the inlet socket" + also, at,
+    socks = "; ".join(f"centre ({i.center_mm[0]:g}, {i.center_mm[1]:g}), radius "
+                      f"{i.socket_diameter_mm / 2.0:g} mm, depth {i.socket_depth_mm:g} mm"
+                      + (" on the end face" if i.at_end else "") for i in r.inlets)
+    which, inside = (("the inlet socket", "the socket") if len(r.inlets) == 1
+                     else ("any inlet socket", "a socket"))
+    return Problem(f"voids[{group[0]}]", f"is not reached from {which}" + also, at,
                    None, f"its entry (y, z) = ({ey:g}, {ez:g}) mm, radius {er:g} mm and "
-                   f"start x = {ex:g} mm must lie inside the socket (centre ({cy:g}, {cz:g}), "
-                   f"radius {sock_r:g} mm, depth {r.inlet.socket_depth_mm:g} mm), or hold its "
+                   f"start x = {ex:g} mm must lie inside {inside} ({socks}), or hold its "
                    "whole section; or the void must overlap a void that is reached")
-
-
-def _opens_into_socket(r: Recipe, void: object) -> bool:
-    """Whether ``void`` opens straight into the tube socket: one passage holds the other at
-    the inlet, the void's mouth inside the socket or a void wider than the socket (a thin
-    tube into a fat bore) round the whole socket section, starting within the socket's
-    depth. Whether its core still comes out through the socket is the core-extraction
-    check's to say."""
-    (ey, ez), er, ex = void.entry()  # type: ignore[attr-defined]
-    cy, cz = r.inlet.center_mm
-    sock_r = r.inlet.socket_diameter_mm / 2.0
-    off = np.hypot(ey - cy, ez - cz)
-    inside = off + er <= sock_r + EPS or off + sock_r <= er + EPS
-    return bool(inside and ex <= r.inlet.socket_depth_mm)
 
 
 def _wall_problems(out: list[Problem], path: str, line: int | None, body, samples: np.ndarray,
@@ -180,13 +260,15 @@ def _wall_keys(void: object, path: str, outward: np.ndarray) -> str:
     return ", ".join([*own, "the body's size", "checks.min_wall_mm"])
 
 
-def _socket_wall_problems(out: list[Problem], r: Recipe, void: object, path: str,
+def _socket_wall_problems(out: list[Problem], r: Recipe, j: int, void: object, path: str,
                           line: Callable[[str], int | None], per_prim: list[np.ndarray]
                           ) -> None:
-    """The silicone between the socket's floor and a part of the void that does not open
-    into the socket (a chamber beyond the feed channel): at least the least wall, or the
-    tube pressed into the socket tears through it."""
-    socket = r.inlet.socket()
+    """The silicone between socket ``j`` and a part of the void that does not open into it
+    (a chamber beyond the feed channel, or a void fed from another socket): at least the
+    least wall, or the tube pressed into the socket tears through it."""
+    socket = r.sockets()[j]
+    ipath = r.inlet_path(j)
+    inlet = r.inlets[j]
     min_wall = r.checks.min_wall_mm
     worst, where, opens = np.inf, None, False
     for samples in per_prim:  # each primitive's surface samples
@@ -197,17 +279,20 @@ def _socket_wall_problems(out: list[Problem], r: Recipe, void: object, path: str
         k = int(np.argmin(d))
         if d[k] < worst:
             worst, where = float(d[k]), samples[k]
-    # A void that does not open into the socket at all is refused as not reached instead.
-    if not opens or where is None or worst >= min_wall - 1e-6:
+    # A void that does not open into the only socket is refused as not reached instead;
+    # with several sockets, a void of another socket's group keeps its wall to this one.
+    if (not opens and len(r.inlets) == 1) or where is None or worst >= min_wall - 1e-6:
         return
     fields = {f.name for f in getattr(void, "FIELDS", ())}
     own = f"{path}.start_mm, " if "start_mm" in fields else ""
     # Blame the start the recipe wrote, else the void entry (its default placement).
     at = f"{path}.start_mm" if f"{path}.start_mm" in r.lines else path
-    out.append(Problem(at, f"leaves a silicone wall of {worst:.2f} mm to the inlet socket's "
-                       f"floor at {_fmt_point(where)}", line(at), None,
+    which = "the inlet socket's" if len(r.inlets) == 1 else f"the socket of {ipath}:"
+    floor = "floor " if opens else ""
+    out.append(Problem(at, f"leaves a silicone wall of {worst:.2f} mm to {which} "
+                       f"{floor}at {_fmt_point(where)}", line(at), None,
                        f"at least checks.min_wall_mm = {min_wall:g} mm (this wall is set by "
-                       f"{own}inlet.socket_depth_mm ({r.inlet.socket_depth_mm:g} mm) and "
+                       f"{own}{ipath}.socket_depth_mm ({inlet.socket_depth_mm:g} mm) and "
                        "checks.min_wall_mm)"))
 
 
@@ -219,7 +304,7 @@ def wall_keys_at(r: Recipe, point: tuple[float, float, float], between: bool) ->
     p = np.asarray([point], dtype=float)
     length = r.body_length_mm
     sides: list[tuple[float, str, int, object]] = [
-        (float(r.inlet.socket().sdf(p)[0]), "socket", -1, None)]
+        (float(sock.sdf(p)[0]), "socket", j, None) for j, sock in enumerate(r.sockets())]
     for i, v in enumerate(r.voids):
         boxes = getattr(v, "chamber_boxes", None)
         parts = boxes(length) if boxes is not None else v.primitives(length)
@@ -228,12 +313,15 @@ def wall_keys_at(r: Recipe, point: tuple[float, float, float], between: bool) ->
     (_, what_a, a, va), (_, what_b, b, vb) = sides[0], sides[1]
     if not between:
         return _wall_keys(va, f"voids[{a}]", _outward(r.body_primitives(), p[0])) \
-            if what_a == "void" else "inlet.socket_depth_mm, checks.min_wall_mm"
+            if what_a == "void" else f"{r.inlet_path(a)}.socket_depth_mm, checks.min_wall_mm"
     keys: list[str] = []
-    if "socket" in (what_a, what_b):
+    if what_a == what_b == "socket":
+        keys = [f"{r.inlet_path(a)}.center_mm", f"{r.inlet_path(b)}.center_mm"]
+    elif "socket" in (what_a, what_b):
         i, near = (b, vb) if what_a == "socket" else (a, va)
+        j = a if what_a == "socket" else b
         keys = [f"voids[{i}].start_mm"] if _has(near, "start_mm") else []
-        keys.append("inlet.socket_depth_mm")
+        keys.append(f"{r.inlet_path(j)}.socket_depth_mm")
     elif a == b:
         keys = [f"voids[{a}].{k}" for k in ("pitch_mm", "depth_mm") if _has(va, k)]
     else:

@@ -14,10 +14,22 @@ TOP_FIELDS: tuple[Field, ...] = (
 
 INLET_FIELDS: tuple[Field, ...] = (
     number("socket_diameter_mm", "diameter of the tube socket left in the cast", 4.0, hi=30.0),
-    number("socket_depth_mm", "depth of the tube socket into the body from x = 0", 6.0, hi=50.0),
-    pair("center_mm", "(y, z) of the socket on the x = 0 face; default: where the first "
-         "void meets that face", None),
+    number("socket_depth_mm", "depth of the tube socket into the body from its face", 6.0,
+           hi=50.0),
+    pair("center_mm", "(y, z) of the socket on its face; default (one inlet only): where "
+         "the first void meets the x = 0 face", None),
+    choice("face", "the end face the socket enters: start (x = 0, the socket runs along "
+           "+x) or end (x = the body's length, along -x); the core of the voids it feeds "
+           "is pulled out through it", ("start", "end"), "start"),
 )
+
+#: Most inlets a recipe may list (one core each).
+MAX_INLETS = 4
+
+#: Blocks written as a list of mappings: name -> (fields of each item, most items).
+LIST_BLOCKS: dict[str, tuple[tuple[Field, ...], int]] = {
+    "inlets": (INLET_FIELDS, MAX_INLETS),
+}
 
 PARTING_FIELDS: tuple[Field, ...] = (
     choice("axis", "normal of the parting plane (up in pour orientation); `auto` lets the "

@@ -1,7 +1,8 @@
 """Which voids join which: two voids are joined when they overlap with positive volume
 (a shared face or a touching edge is no passage for air or silicone). A void is reached
-when it opens into the tube socket itself or is joined to a reached void; the voids of
-one group share one core piece, which the kernel fuses into one solid.
+when it opens into a tube socket itself or is joined to a reached void; the voids of
+one group share one core piece, which the kernel fuses into one solid and which leaves
+through the one socket the group opens into.
 
 The overlap test is exact for the primitives chambers and bores are made of: a rounded
 box is a box grown by a ball of its corner radius, and a rounded rod is a shorter,
@@ -161,3 +162,12 @@ def unreached(voids: Sequence[Sequence[Primitive]], opens: Callable[[int], bool]
               ) -> tuple[tuple[int, ...], ...]:
     """The groups of joined voids none of which opens into an inlet (``opens(i)``)."""
     return tuple(g for g in groups(voids) if not any(opens(i) for i in g))
+
+
+def feeds(voids: Sequence[Sequence[Primitive]], opens: Callable[[int, int], bool],
+          inlets: int) -> tuple[tuple[tuple[int, ...], tuple[int, ...]], ...]:
+    """Each group of joined voids with the inlets it opens into (``opens(void, inlet)``):
+    (void indices, inlet indices), the groups as :func:`groups` orders them. A group with
+    no inlet is not reached; one with two has two sockets for one core piece."""
+    return tuple((g, tuple(j for j in range(inlets) if any(opens(i, j) for i in g)))
+                 for g in groups(voids))

@@ -54,7 +54,9 @@ def test_manifest_findings_carry_check_severity_part_value_limit_place_message(f
 def test_bundled_shells_release_the_cast_with_no_locked_undercut(bundled):
     for name in BUNDLED:
         for rep in bundled(name).review.pulls:
-            if rep.part != "core":
+            # Every core (core, or core-1, core-2, ...) is released by stretching the
+            # silicone instead: that is core-extraction's to judge.
+            if rep.part != "core" and not rep.part.startswith("core-"):
                 assert rep.locked_area_mm2 == 0.0, (name, rep.part, rep.locked_where_mm)
 
 

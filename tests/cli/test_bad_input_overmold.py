@@ -80,3 +80,18 @@ def test_overmold_recipe_the_plan_cannot_cast_exits_2_naming_the_field(
     assert key in lines[0] and words in lines[0], lines[0]
     assert "Traceback" not in cap.err
     assert not out.exists()
+
+
+def test_an_overmold_socket_on_the_end_face_is_refused_naming_the_face(
+        tmp_path, capsys, no_cad_work, no_step_build):
+    # The rod core leaves through one socket on the x = 0 face in both steps; moved to the
+    # far face, the bore also breaks through the start face (a second line, its own).
+    text = edit(TEXT, "inlet:\n", "inlet:\n  face: end\n")
+    path = tmp_path / "recipe.yaml"
+    path.write_text(text)
+    assert main(["build", str(path), "--out", str(tmp_path / "out")]) == 2
+    err = capsys.readouterr().err
+    want = (f"{path}:{line_of(text, '  face: end')}: inlet.face: cannot be overmolded "
+            "(got 'end'); allowed: one inlet on the start face (x = 0)")
+    assert want in err.splitlines() or f"error: {want}" in err.splitlines(), err
+    assert not (tmp_path / "out").exists()

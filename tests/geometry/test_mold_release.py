@@ -11,8 +11,9 @@ The core print seats line to line in its seat through the block's inlet wall: a 
 contact, which the two meshes represent only to their chord (the facets of the print and of
 its seat, inscribed in the same circle, do not coincide, leaving slivers of at most twice
 the chord). The test fills that contact with a cylinder twice the chord proud of the print,
-along the print's axis from the recipe (inlet centre, socket diameter) and only through the
-wall (x < 0), so no real gap is hidden.
+along each print's axis from the recipe (inlet centre, socket diameter) and only through the
+wall (x < 0, or beyond the body's length for a socket in the end face), so no real gap is
+hidden.
 With a lid laid on the top face in pour orientation, the piece that holds the cast must be
 closed: about the size of the cast and its pour channels, not joined to the air outside. So
 the cavity reaches the outside only through openings in the top face. Without the lid, that
@@ -71,12 +72,17 @@ def _air(molds, lid: bool) -> tuple[list[m3.Manifold], m3.Manifold]:
     top face), and the cast."""
     rigid = list(_rigid(molds).values())
     r = molds.recipe
-    core_lo_x = molds.part("core").mesh.bbox_mm()[0][0]
-    seat_r = r.inlet.socket_diameter_mm / 2.0 + 2.0 * r.mesh.chord_mm
-    cy, cz = r.inlet.center_mm
-    seat = (m3.Manifold.cylinder(-core_lo_x - 0.05, seat_r, seat_r, 96)
-            .rotate([0.0, 90.0, 0.0]).translate([core_lo_x, cy, cz]))
-    closed = m3.Manifold.batch_boolean([*rigid, seat], m3.OpType.Add)
+    length = r.body_length_mm
+    seats = []
+    # One seat per core print, through the block's wall at its socket's face.
+    for sup in molds.plan.step.core_supports:
+        lo, hi = molds.part(sup.part).mesh.bbox_mm()
+        seat_r = sup.inlet.socket_diameter_mm / 2.0 + 2.0 * r.mesh.chord_mm
+        cy, cz = sup.inlet.center_mm
+        x0, x1 = (length + 0.05, hi[0]) if sup.pull_dir[0] > 0 else (lo[0], -0.05)
+        seats.append(m3.Manifold.cylinder(x1 - x0, seat_r, seat_r, 96)
+                     .rotate([0.0, 90.0, 0.0]).translate([x0, cy, cz]))
+    closed = m3.Manifold.batch_boolean([*rigid, *seats], m3.OpType.Add)
     box = closed.bounding_box()
     lo = np.array(box[:3]) - MARGIN_MM
     hi = np.array(box[3:]) + MARGIN_MM

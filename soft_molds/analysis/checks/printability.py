@@ -7,7 +7,7 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 from types import MappingProxyType
 
-from ..context import RIGID_PARTS, CheckContext
+from ..context import CheckContext
 from ..findings import Finding
 from ..printability import PrintPlan, plan_print, print_findings
 from ..registry import CheckOutput, check
@@ -15,7 +15,8 @@ from ..registry import CheckOutput, check
 
 @dataclass(frozen=True)
 class PrintPlans:
-    """The chosen pose of each printed part, by part name (in :data:`RIGID_PARTS` order)."""
+    """The chosen pose of each printed part, by part name (in
+    :attr:`CheckContext.rigid_parts` order)."""
 
     plans: Mapping[str, PrintPlan]
 
@@ -24,9 +25,7 @@ class PrintPlans:
 def printability(ctx: CheckContext) -> CheckOutput:
     plans: dict[str, PrintPlan] = {}
     out: list[Finding] = []
-    for name in RIGID_PARTS:
-        if name not in ctx.parts:
-            continue
+    for name in ctx.rigid_parts:
         s = ctx.parts[name].surface
         plan = plan_print(s.mesh, name, ctx.printer, ctx.label_boxes.get(name, ()), surface=s)
         plans[name] = plan

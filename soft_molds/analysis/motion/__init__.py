@@ -63,7 +63,7 @@ DEFAULT_RANGE_KPA = 100.0
 def void_facet_mask(r: Recipe, mesh: TriMesh) -> np.ndarray:
     """Facets of ``mesh`` on a void's or the tube socket's surface (the recipe primitives'
     exact distance functions, within the tolerance the checks use)."""
-    prims = tuple(p for group in r.void_primitives() for p in group) + (r.inlet.socket(),)
+    prims = tuple(p for group in r.void_primitives() for p in group) + r.sockets()
     tol = min(0.1, r.checks.min_wall_mm / 3.0)
     return np.abs(union_sdf(prims, mesh.triangles().mean(axis=1))) <= tol
 
@@ -82,17 +82,23 @@ def profile_of(mesh: TriMesh, void_facets: np.ndarray, from_mm: float, to_mm: fl
 def predict_motion(r: Recipe, cast: TriMesh, walls: Sequence[WallPressure],
                    sheet_yz_mm: tuple[float, float] | None = None) -> MotionCurve | None:
     """The motion curve of the cast ``cast`` of recipe ``r`` (None when the silicone's
-    modulus is unknown, or no model applies). ``walls``: the pressure check's weakest wall
-    per group (their lowest limit ends the curve). ``sheet_yz_mm``: a point (y, z) of a
-    strain-limiting sheet bonded flat in the cast (a layered finger's), or None."""
+    modulus is unknown, when there are several sockets, or no model applies). ``walls``:
+    the pressure check's weakest wall per group (their lowest limit ends the curve).
+    ``sheet_yz_mm``: a point (y, z) of a strain-limiting sheet bonded flat in the cast (a
+    layered finger's), or None."""
     e = r.material.silicone.youngs_modulus_mpa()
-    if e is None or not r.voids:
+    # Every model pressurises every void at once; several sockets feed groups that are
+    # inflated one at a time (a two-way finger), which none of them describes.
+    if e is None or not r.voids or len(r.inlets) > 1:
         return None
     lo, hi = bounds_of(tuple(p for group in r.void_primitives() for p in group))
-    start = max(float(lo[0]), r.inlet.socket_depth_mm)
-    if hi[0] <= start:
+    # The pressurised length lies between the start face's sockets and the end face's.
+    start = max([float(lo[0])] + [i.socket_depth_mm for i in r.inlets if not i.at_end])
+    end = min([float(hi[0])] + [r.body_length_mm - i.socket_depth_mm
+                                for i in r.inlets if i.at_end])
+    if end <= start:
         return None
-    prof = profile_of(cast, void_facet_mask(r, cast), start, float(hi[0]),
+    prof = profile_of(cast, void_facet_mask(r, cast), start, end,
                       [type(v).KIND for v in r.voids], sheet_yz_mm=sheet_yz_mm)
     limits = [w.limit_kpa for w in walls if w.limit_kpa is not None]
     return motion_curve(prof, e, min(limits) if limits else None,

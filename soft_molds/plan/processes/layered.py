@@ -96,7 +96,8 @@ def feed_post(r: Recipe) -> Post:
 
 
 def layered_problems(r: Recipe, line: LineOf) -> list[Problem]:
-    """What keeps ``r`` from the layered process: a bar body, one row of chambers whose
+    """What keeps ``r`` from the layered process: a bar body, one inlet on the start face,
+    one row of chambers whose
     every chamber stands on the bond face, a bond face above the bar's bottom rounding and
     corners round enough for the draft."""
     out: list[Problem] = []
@@ -111,6 +112,12 @@ def layered_problems(r: Recipe, line: LineOf) -> list[Problem]:
                            line("process.base_mm"), r.process.base_mm,
                            f"{box.radius_mm:g} to {hi[2] - lo[2] - box.radius_mm:g} mm"))
         return out
+    if len(r.inlets) != 1 or r.inlet.at_end:
+        # The feed groove runs from the x = 0 face to the one row: one socket, there.
+        path = "inlets" if "inlets" in r.lines else "inlet.face"
+        return [Problem(path, "cannot be cast layered", line(path),
+                        [i.face.value for i in r.inlets],
+                        "one inlet on the start face (x = 0)")]
     if len(r.voids) != 1 or getattr(r.voids[0], "KIND", None) != "chambers":
         return [Problem("voids", "cannot be cast layered", line("voids"),
                         ", ".join(getattr(v, "KIND", "?") for v in r.voids),

@@ -166,6 +166,12 @@ def overmold_problems(r: Recipe, line: LineOf) -> list[Problem]:
         out.append(Problem("body.end_round_mm", "must be 0 to overmold (the bladder's flat "
                            "ends sit on the molds' end walls)", line("body.end_round_mm"),
                            r.body.end_round_mm, "0"))  # type: ignore[attr-defined]
+    if len(r.inlets) != 1 or r.inlet.at_end:
+        # The rod core leaves through one socket on the x = 0 face in both steps.
+        path = "inlets" if "inlets" in r.lines else "inlet.face"
+        return [*out, Problem(path, "cannot be overmolded", line(path),
+                              ", ".join(i.face.value for i in r.inlets),
+                              "one inlet on the start face (x = 0)")]
     kinds = [getattr(v, "KIND", "?") for v in r.voids]
     if kinds != ["bore"]:
         return [*out, Problem("voids", "cannot be overmolded", line("voids"),
