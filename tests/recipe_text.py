@@ -33,3 +33,19 @@ def planned_from_text(text: str, source: str = "recipe", name: str = "recipe"):
     if problems:
         raise RecipeError(problems, source)
     return r
+
+
+#: A bar fed from both ends (our scenario: a tray pusher variant): a chamber row from the
+#: x = 0 socket and a bore from the x = 100 socket, at y = -4.5 and 4.5 mm.
+END_FED = """\
+name: end-fed-pair
+body: {kind: bar, length_mm: 100, width_mm: 20, height_mm: 14, edge_radius_mm: 2}
+voids:
+  - {kind: chambers, count: 4, pitch_mm: 8, depth_mm: 5, width_mm: 8, height_mm: 8,
+     corner_radius_mm: 1, center_mm: [-4.5, 0], feed_diameter_mm: 2}
+  - {kind: bore, diameter_mm: 6, length_mm: 67, start_mm: 30, center_mm: [4.5, 0]}
+inlets:
+  - {socket_diameter_mm: 4, socket_depth_mm: 6, center_mm: [-4.5, 0]}
+  - {socket_diameter_mm: 4, socket_depth_mm: 6, center_mm: [4.5, 0], face: end}
+parting: {axis: z, offset_mm: 0}
+"""

@@ -23,21 +23,10 @@ import manifold3d as m3
 import numpy as np
 import pytest
 from conftest import built
+from recipe_text import END_FED
 
 PI = math.pi
 
-END_FED = """\
-name: end-fed-pair
-body: {kind: bar, length_mm: 100, width_mm: 20, height_mm: 14, edge_radius_mm: 2}
-voids:
-  - {kind: chambers, count: 4, pitch_mm: 8, depth_mm: 5, width_mm: 8, height_mm: 8,
-     corner_radius_mm: 1, center_mm: [-4.5, 0], feed_diameter_mm: 2}
-  - {kind: bore, diameter_mm: 6, length_mm: 67, start_mm: 30, center_mm: [4.5, 0]}
-inlets:
-  - {socket_diameter_mm: 4, socket_depth_mm: 6, center_mm: [-4.5, 0]}
-  - {socket_diameter_mm: 4, socket_depth_mm: 6, center_mm: [4.5, 0], face: end}
-parting: {axis: z, offset_mm: 0}
-"""
 
 
 @pytest.fixture(scope="module")

@@ -6,7 +6,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from recipe_text import edit
+from recipe_text import END_FED, edit
 
 from soft_molds.plan import plan_mold, plan_problems
 from soft_molds.plan.layout import block_band_mm
@@ -17,18 +17,6 @@ ROOT = Path(__file__).resolve().parents[2]
 TWO_WAY = (ROOT / "recipes" / "seedling-two-way-finger.yaml").read_text()
 PARTING = ("  axis: y\n  offset_mm: 0               # through both sockets' centres, so each "
            "core seats in both halves\n")
-END_FED = """\
-name: end-fed-pair
-body: {kind: bar, length_mm: 100, width_mm: 20, height_mm: 14, edge_radius_mm: 2}
-voids:
-  - {kind: chambers, count: 4, pitch_mm: 8, depth_mm: 5, width_mm: 8, height_mm: 8,
-     corner_radius_mm: 1, center_mm: [-4.5, 0], feed_diameter_mm: 2}
-  - {kind: bore, diameter_mm: 6, length_mm: 67, start_mm: 30, center_mm: [4.5, 0]}
-inlets:
-  - {socket_diameter_mm: 4, socket_depth_mm: 6, center_mm: [-4.5, 0]}
-  - {socket_diameter_mm: 4, socket_depth_mm: 6, center_mm: [4.5, 0], face: end}
-parting: {axis: z, offset_mm: 0}
-"""
 
 
 def test_auto_parting_offers_only_planes_through_both_sockets():

@@ -12,7 +12,7 @@ from pathlib import Path
 import jsonschema
 import pytest
 import yaml
-from recipe_text import FINGER_TEXT, edit
+from recipe_text import END_FED, FINGER_TEXT, edit
 
 from soft_molds import load_recipe
 from soft_molds.recipe import recipe_from_text
@@ -75,18 +75,6 @@ def test_voids_are_grouped_into_one_core_per_socket(stem, groups):
     assert [(g.inlet, g.voids) for g in core_groups(r)] == groups
 
 
-END_FED = """\
-name: end-fed-pair
-body: {kind: bar, length_mm: 100, width_mm: 20, height_mm: 14, edge_radius_mm: 2}
-voids:
-  - {kind: chambers, count: 4, pitch_mm: 8, depth_mm: 5, width_mm: 8, height_mm: 8,
-     corner_radius_mm: 1, center_mm: [-4.5, 0], feed_diameter_mm: 2}
-  - {kind: bore, diameter_mm: 6, length_mm: 67, start_mm: 30, center_mm: [4.5, 0]}
-inlets:
-  - {socket_diameter_mm: 4, socket_depth_mm: 6, center_mm: [-4.5, 0]}
-  - {socket_diameter_mm: 4, socket_depth_mm: 6, center_mm: [4.5, 0], face: end}
-parting: {axis: z, offset_mm: 0}
-"""
 
 
 def test_an_end_face_socket_is_checked_on_the_end_face():
