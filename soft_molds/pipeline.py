@@ -267,6 +267,7 @@ def build_overmold(recipe: Recipe, progress: Callable[[str], None] | None = None
     :mod:`soft_molds.plan.processes.overmold`). Raises like :func:`build`."""
     from .analysis.findings import worst_first
     from .analysis.highpoints import plan_openings
+    from .analysis.layered_checks import print_plans, recipe_printer
     from .analysis.overmold import (
         OvermoldStep,
         axis_yz_mm,
@@ -341,8 +342,10 @@ def build_overmold(recipe: Recipe, progress: Callable[[str], None] | None = None
             radial_extent_mm(bladder_mesh),
             bl.outer_radius_mm + recipe.process.thread_diameter_mm)
         thread = thread_plan(recipe, bl)
-        findings = worst_first(overmold_findings(recipe, steps, over, offset, thread))
-    return OvermoldMoldSet(plan, tuple(steps), thread, over, offset, timings, findings)
+        printer = recipe_printer(recipe)
+        plans = tuple(print_plans(s, printer) for s in steps)
+        findings = worst_first(overmold_findings(recipe, steps, over, offset, thread, plans))
+    return OvermoldMoldSet(plan, tuple(steps), thread, over, offset, timings, findings, plans)
 
 
 def with_openings_of(plan: MoldPlan, step_name: str, openings: tuple[Opening, ...]

@@ -21,6 +21,7 @@ from ..recipe.model import Recipe
 from .casting import Quantities, silicone_quantities
 from .findings import Finding
 from .motion import MotionCurve
+from .printability import PrintPlan
 from .result import Part
 
 #: Full circumferential wraps of thread at each end of a helix to anchor it before the
@@ -123,6 +124,8 @@ class OvermoldMoldSet:
     axis_offset_mm: float
     timings_s: Mapping[str, float] = field(default_factory=dict)
     findings: tuple[Finding, ...] = ()
+    #: Per step (pour order), how each printed part lies on the bed, by part name.
+    print_plans: tuple[Mapping[str, PrintPlan], ...] = ()
 
     @property
     def recipe(self) -> Recipe:

@@ -24,12 +24,13 @@ Frame: the actuator frame (mm), z up in pour orientation.
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 
 from ..recipe.model import Recipe
 from .findings import Finding, Severity, finding
-from .layered_checks import part_name, print_plans, printing_findings, recipe_printer
+from .layered_checks import part_name, printing_findings, recipe_printer
 from .overmold import TOUCH_MM3, OvermoldStep, Release, ThreadPlan
+from .printability import PrintPlan
 
 #: Largest distance between the bladder's axis and the skin mold's (mm).
 AXIS_TOL_MM = 0.05
@@ -98,13 +99,14 @@ def thread_finding(t: ThreadPlan, part: str) -> Finding:
 
 
 def overmold_findings(r: Recipe, steps: Sequence[OvermoldStep], skin_over_guides_mm: float,
-                      axis_offset_mm: float, thread: ThreadPlan | None
-                      ) -> tuple[Finding, ...]:
-    """Every finding of an overmold build, step by step in pour order."""
+                      axis_offset_mm: float, thread: ThreadPlan | None,
+                      plans: Sequence[Mapping[str, PrintPlan]]) -> tuple[Finding, ...]:
+    """Every finding of an overmold build, step by step in pour order (``plans``: each
+    step's :func:`~.layered_checks.print_plans`)."""
     printer = recipe_printer(r)
     out: list[Finding] = []
-    for s in steps:
-        out.extend(printing_findings(print_plans(s, printer), printer))
+    for s, step_plans in zip(steps, plans, strict=True):
+        out.extend(printing_findings(step_plans, printer))
         out.extend(release_finding(rel, s.name) for rel in s.releases)
     first, second = steps
     bl = first.overmold.bladder

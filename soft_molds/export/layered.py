@@ -17,6 +17,7 @@ from pathlib import Path
 
 from ..analysis.findings import Finding, verdict
 from ..analysis.layered import LayeredMoldSet, LayerStep
+from ..analysis.overmold import OvermoldMoldSet, OvermoldStep
 from ..analysis.plates import PlateItem, posed_vertices
 from ..analysis.printability import PrintPlan
 from ..plan.model import Footprint
@@ -107,8 +108,8 @@ def step_files(s: LayerStep, label: str) -> dict[str, bytes]:
     return out
 
 
-def step_print_files(m: LayeredMoldSet, s: LayerStep, plans: Mapping[str, PrintPlan]
-                     ) -> dict[str, bytes]:
+def step_print_files(m: LayeredMoldSet | OvermoldMoldSet, s: LayerStep | OvermoldStep,
+                     plans: Mapping[str, PrintPlan]) -> dict[str, bytes]:
     """For CAD and the printer: the STEP (AP214, mm, pour orientation) of every printed
     part of ``s`` and its print plates (3MF and a top-view PNG per bed, each part in the
     pose its print check chose)."""
@@ -162,7 +163,7 @@ def card_text(m: LayeredMoldSet, files: Mapping[str, bytes]) -> bytes:
              "the same silicone.", ""]
     lines += _motion_lines(m)
     lines += ["## Parts to print", ""]
-    lines += _print_lines(m, files)
+    lines += print_lines(m, files)
     lines += ["", "## Checks", ""]
     # Every finding of both steps, errors first (the order the build keeps), so what the
     # manifest records is what the person at the bench reads.
@@ -191,11 +192,12 @@ def _motion_lines(m: LayeredMoldSet) -> list[str]:
             ""]
 
 
-def _print_lines(m: LayeredMoldSet, files: Mapping[str, bytes]) -> list[str]:
+def print_lines(m: LayeredMoldSet | OvermoldMoldSet, files: Mapping[str, bytes]) -> list[str]:
     """Per step, each printed part with the face it is printed on and where its plates
     are (the STEP beside it for CAD)."""
     out = []
-    for s, plans in zip(m.steps, m.print_plans):
+    steps: Sequence[LayerStep | OvermoldStep] = m.steps
+    for s, plans in zip(steps, m.print_plans):
         for name, plan in plans.items():
             d = ", ".join(f"{c:g}" for c in (round(x, 3) + 0.0 for x in plan.down))
             out.append(f"- {s.folder}/{name}: face ({d}) on the bed, turned "

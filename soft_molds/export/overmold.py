@@ -11,6 +11,7 @@ from __future__ import annotations
 import hashlib
 import os
 import typing
+from collections.abc import Mapping
 from pathlib import Path
 
 from ..analysis.findings import verdict
@@ -20,7 +21,7 @@ from ..units import mm3_to_cm3
 from ..version import __version__
 from .card import CAUTIONS
 from .files import json_bytes, write_file_set
-from .layered import finding_record
+from .layered import finding_record, print_lines, step_print_files
 from .steps_manifest import (
     OVERMOLD_FORMAT,
     OpeningRecord,
@@ -61,7 +62,7 @@ def _pour_line(s: OvermoldStep) -> str:
             f"{q.waste_pct:g} % waste: {weigh})")
 
 
-def card_text(m: OvermoldMoldSet) -> bytes:
+def card_text(m: OvermoldMoldSet, files: Mapping[str, bytes]) -> bytes:
     r = m.recipe
     g = r.material.silicone
     first, second = m.steps
@@ -102,7 +103,9 @@ def card_text(m: OvermoldMoldSet) -> bytes:
         f"{m.skin_over_guides_mm:.2f} mm and caps the far end. {cure} Open the shell "
         f"and pull the core out through the inlet.", "",
         "The bore opens on the inlet face: seal a tube into it with a drop of the same "
-        "silicone.", "", "## Checks", ""]
+        "silicone.", "", "## Parts to print", ""]
+    lines += print_lines(m, files)
+    lines += ["", "## Checks", ""]
     lines += [f"- {f.severity}: {f.check} ({f.part}): {f.message}" for f in m.findings] \
         or ["- no findings"]
     lines += ["", "## Cautions", ""]
@@ -110,12 +113,16 @@ def card_text(m: OvermoldMoldSet) -> bytes:
     return ("\n".join(lines) + "\n").encode()
 
 
-def _step_record(s: OvermoldStep) -> StepRecord:
+def _step_record(s: OvermoldStep, files: Mapping[str, bytes]) -> StepRecord:
+    def step_file(name: str) -> str | None:
+        f = f"{s.folder}/{name}.step"
+        return f if f in files else None
+
     parts = tuple(StepPartRecord(p.name, p.role, f"{s.folder}/{p.name}.stl", p.role != "cast",
                                  p.brep_volume_mm3,
                                  None if p.pull_dir is None else
                                  (float(p.pull_dir[0]), float(p.pull_dir[1]),
-                                  float(p.pull_dir[2])))
+                                  float(p.pull_dir[2])), step_file(p.name))
                   for p in s.parts)
     pour = StepPourRecord(s.pour.cast_mm3, s.pour.mixed_mm3, s.pour.mixed_g,
                           tuple(PortionRecord(p.what, p.grams) for p in s.pour.portions))
@@ -134,7 +141,7 @@ def manifest_of(m: OvermoldMoldSet, files: dict[str, bytes]) -> SteppedManifest:
     return SteppedManifest(
         OVERMOLD_FORMAT, __version__, r.name, r.label, m.plan.source_params_sha256,
         ProcessEcho(typing.cast("dict[str, JsonValue]", r.process.params())),
-        m.silicone_volume_mm3, tuple(_step_record(s) for s in m.steps), None, thread,
+        m.silicone_volume_mm3, tuple(_step_record(s, files) for s in m.steps), None, thread,
         m.skin_over_guides_mm, m.axis_offset_mm, verdict(m.findings),
         tuple(finding_record(f) for f in m.findings),
         {k: hashlib.sha256(v).hexdigest() for k, v in sorted(files.items())})
@@ -143,9 +150,11 @@ def manifest_of(m: OvermoldMoldSet, files: dict[str, bytes]) -> SteppedManifest:
 def encode_overmold(m: OvermoldMoldSet) -> dict[str, bytes]:
     """Every file of ``m`` (relative path -> bytes), the manifest last."""
     files: dict[str, bytes] = {}
-    for s in m.steps:
+    for i, s in enumerate(m.steps):
         files.update(step_files(s, m.recipe.label_text))
-    files[CARD_NAME] = card_text(m)
+        if m.print_plans:
+            files.update(step_print_files(m, s, m.print_plans[i]))
+    files[CARD_NAME] = card_text(m, files)
     files[MANIFEST_NAME] = json_bytes(to_json(manifest_of(m, files)))
     return files
 

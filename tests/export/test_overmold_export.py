@@ -17,6 +17,7 @@ from conftest import built_steps
 from stl import mesh as stl_mesh
 
 from soft_molds.export.overmold import encode_overmold, write_overmold
+from tests.readers import read_3mf, volume
 
 NAME = "seedling-wound-finger"
 
@@ -33,10 +34,18 @@ def test_each_step_has_its_own_folder_with_its_parts(written):
     _, folder = written
     assert sorted(p.name for p in folder.iterdir()) == [
         "casting-card.md", "manifest.json", "step-1-bladder", "step-2-skin"]
-    assert sorted(p.name for p in (folder / "step-1-bladder").iterdir()) == [
-        "cast.stl", "core.stl", "shell-lower.stl", "shell-upper.stl"]
-    assert sorted(p.name for p in (folder / "step-2-skin").iterdir()) == [
-        "cast.stl", "shell-lower.stl", "shell-upper.stl"]
+    step1 = sorted(p.name for p in (folder / "step-1-bladder").iterdir())
+    step2 = sorted(p.name for p in (folder / "step-2-skin").iterdir())
+    assert [n for n in step1 if n.endswith((".stl", ".step"))] == [
+        "cast.stl", "core.step", "core.stl", "shell-lower.step", "shell-lower.stl",
+        "shell-upper.step", "shell-upper.stl"]
+    assert [n for n in step2 if n.endswith((".stl", ".step"))] == [
+        "cast.stl", "shell-lower.step", "shell-lower.stl", "shell-upper.step",
+        "shell-upper.stl"]
+    # Print plates: a 3MF and its picture per bed, at least one bed per step.
+    for names in (step1, step2):
+        plates = [n for n in names if n.endswith(".3mf")]
+        assert plates and all(n.removesuffix(".3mf") + ".png" in names for n in plates)
 
 
 def test_the_manifest_lists_the_steps_thread_and_file_digests(written):
@@ -89,3 +98,18 @@ def test_the_manifest_reads_back_typed_to_the_same_bytes_and_a_sweep_finds_it_do
     # Up to date for the recipe it was built from, with every file intact (SHA-256).
     root = folder.parents[1]
     assert stepped_up_to_date(root, m.recipe) is not None
+
+
+def test_each_printed_part_is_on_a_plate_with_its_volume(written, tmp_path):
+    # Reader: lib3mf (the 3MF Consortium's reference library); volume by the divergence
+    # theorem against the part's exact (solid) volume, to the mesh tolerance (0.5 %).
+    m, folder = written
+    for s in m.steps:
+        objects = {}
+        for plate in sorted((folder / s.folder).glob("plate-*.3mf")):
+            objects.update(read_3mf(plate.read_bytes(), tmp_path)[1])
+        printed = [p for p in s.parts if p.role != "cast"]
+        assert sorted(objects) == sorted(f"{p.name} {m.recipe.label}" for p in printed)
+        for p in printed:
+            v, t = objects[f"{p.name} {m.recipe.label}"]
+            assert volume(v, t) == pytest.approx(p.brep_volume_mm3, rel=0.005)
