@@ -16,6 +16,7 @@ import math
 import manifold3d as m3
 import numpy as np
 import pytest
+from conftest import built_variant
 
 from soft_molds.analysis.motion import MotionKind, StopReason, motion_curve, profile_of
 from soft_molds.analysis.motion.beam import nominal_stress, tangent_modulus
@@ -300,3 +301,17 @@ def chambered_long():
         (5.0, -CH_B / 2, CH_Z - CH_H / 2), (55.0, CH_B / 2, CH_Z + CH_H / 2))
     mesh = from_manifold(body)
     return profile_of(mesh, _void_mask(mesh), 15.0, 45.0, ["chambers"]), 30.0
+
+
+def test_a_two_way_finger_is_predicted_with_the_first_sockets_row_inflated_alone():
+    # The two rows are inflated one at a time: the curve is for the row fed through
+    # inlets[0] (z = +5.5 mm), the other row open to the air. Closed forms: the pressure
+    # area is one chamber's section, a 12 x 7 mm rectangle with 1 mm corner rounding,
+    # 84 - (4 - pi) = 83.142 mm2 (not two); the section with both rows as holes is
+    # symmetric about z = 0, so the silicone's centroid is there and the lever arm is the
+    # row's 5.5 mm offset, toward +z.
+    mo = built_variant("seedling-two-way-finger", "A").motion
+    assert mo is not None and mo.model == "beam-bending"
+    assert mo.inputs.pressure_area_mm2 == pytest.approx(84.0 - (4.0 - math.pi), rel=2e-3)
+    assert mo.inputs.lever_arm_mm == pytest.approx(5.5, abs=1e-3)
+    assert mo.inputs.bend_dir == pytest.approx((0.0, 1.0), abs=1e-6)

@@ -186,11 +186,11 @@ def test_the_end_fed_pair_keeps_no_pry_notch_where_the_end_print_passes(end_fed)
     assert u < lay.block_hi[0]
 
 
-def test_no_motion_is_predicted_for_rows_inflated_one_socket_at_a_time(two_way):
-    """The motion models pressurise every void at once; a two-way finger inflates one row
-    at a time, so its mold set carries no predicted curve rather than a wrong one (two
-    rows mirrored about the axis would read as a pure extender)."""
-    assert two_way.motion is None
+def test_the_predicted_curve_bends_toward_the_first_sockets_row_not_extends(two_way):
+    """A two-way finger inflates one row at a time: the curve is the first socket's row
+    alone (pressurising both rows mirrored about the axis would wrongly read as a pure
+    extender). The closed-form figures are checked in tests/analysis/test_motion.py."""
+    assert two_way.motion is not None and two_way.motion.kind == "bending"
 
 
 def test_the_end_fed_cast_surface_lies_on_mold_or_core_surfaces(end_fed):

@@ -60,10 +60,24 @@ NO_LIMIT_FACTOR = 2.0
 DEFAULT_RANGE_KPA = 100.0
 
 
+def pressurised(r: Recipe) -> tuple[int, ...]:
+    """Indices of the voids inflated for the curve: every void; with several sockets, the
+    voids fed through the first (``inlets[0]``), the others left open to the air. A
+    two-way finger's rows are inflated one at a time, never together."""
+    if len(r.inlets) == 1:
+        return tuple(range(len(r.voids)))
+    from soft_molds.recipe.feeds import core_groups
+
+    return core_groups(r)[0].voids
+
+
 def void_facet_mask(r: Recipe, mesh: TriMesh) -> np.ndarray:
-    """Facets of ``mesh`` on a void's or the tube socket's surface (the recipe primitives'
-    exact distance functions, within the tolerance the checks use)."""
-    prims = tuple(p for group in r.void_primitives() for p in group) + r.sockets()
+    """Facets of ``mesh`` on the surface of a pressurised void (:func:`pressurised`) or its
+    tube socket (the recipe primitives' exact distance functions, within the tolerance the
+    checks use). An unpressurised void's facets count as the silicone's outline."""
+    voids = r.void_primitives()
+    prims = tuple(p for i in pressurised(r) for p in voids[i]) + r.sockets()[:1] \
+        if len(r.inlets) > 1 else tuple(p for group in voids for p in group) + r.sockets()
     tol = min(0.1, r.checks.min_wall_mm / 3.0)
     return np.abs(union_sdf(prims, mesh.triangles().mean(axis=1))) <= tol
 
@@ -82,16 +96,16 @@ def profile_of(mesh: TriMesh, void_facets: np.ndarray, from_mm: float, to_mm: fl
 def predict_motion(r: Recipe, cast: TriMesh, walls: Sequence[WallPressure],
                    sheet_yz_mm: tuple[float, float] | None = None) -> MotionCurve | None:
     """The motion curve of the cast ``cast`` of recipe ``r`` (None when the silicone's
-    modulus is unknown, when there are several sockets, or no model applies). ``walls``:
-    the pressure check's weakest wall per group (their lowest limit ends the curve).
-    ``sheet_yz_mm``: a point (y, z) of a strain-limiting sheet bonded flat in the cast (a
-    layered finger's), or None."""
+    modulus is unknown, or no model applies); with several sockets, for the voids fed
+    through the first inflated alone (:func:`pressurised`). ``walls``: the pressure check's
+    weakest wall per group (their lowest limit ends the curve). ``sheet_yz_mm``: a point
+    (y, z) of a strain-limiting sheet bonded flat in the cast (a layered finger's), or
+    None."""
     e = r.material.silicone.youngs_modulus_mpa()
-    # Every model pressurises every void at once; several sockets feed groups that are
-    # inflated one at a time (a two-way finger), which none of them describes.
-    if e is None or not r.voids or len(r.inlets) > 1:
+    if e is None or not r.voids:
         return None
-    lo, hi = bounds_of(tuple(p for group in r.void_primitives() for p in group))
+    voids = r.void_primitives()
+    lo, hi = bounds_of(tuple(p for i in pressurised(r) for p in voids[i]))
     # The pressurised length lies between the start face's sockets and the end face's.
     start = max([float(lo[0])] + [i.socket_depth_mm for i in r.inlets if not i.at_end])
     end = min([float(hi[0])] + [r.body_length_mm - i.socket_depth_mm
@@ -99,7 +113,7 @@ def predict_motion(r: Recipe, cast: TriMesh, walls: Sequence[WallPressure],
     if end <= start:
         return None
     prof = profile_of(cast, void_facet_mask(r, cast), start, end,
-                      [type(v).KIND for v in r.voids], sheet_yz_mm=sheet_yz_mm)
+                      [type(r.voids[i]).KIND for i in pressurised(r)], sheet_yz_mm=sheet_yz_mm)
     limits = [w.limit_kpa for w in walls if w.limit_kpa is not None]
     return motion_curve(prof, e, min(limits) if limits else None,
                         r.inflate.working_pressure_kpa,
