@@ -283,62 +283,53 @@ def cmd_check(args: argparse.Namespace) -> int:
     variants, bad = _load(args.recipes)
     if bad:
         return 2
-    from .pipeline import build, build_steps
-
     failed = []
     files: dict[str, bool] = {}  # recipe file -> every variant passed
     for _, r in variants:
         files.setdefault(r.source, True)
-        if r.process.multi_step:
-            # Multi-step processes get their own checks (trays and a post bridge, or two
-            # pours on one core): see soft_molds.analysis.layered_checks, overmold_checks.
-            try:
-                lm = build_steps(r)
-            except SoftMoldsError as exc:
-                failed.append(f"{r.source} {r.label}: {exc}".splitlines()[0])
-                files[r.source] = False
-                print(f"FAIL {r.source} {r.label}: {exc}")
-                continue
-            errs = [f for f in lm.findings if f.severity is Severity.ERROR]
-            warns = [f for f in lm.findings if f.severity is Severity.WARNING]
-            bad_steps = bool(errs) or (args.strict and bool(warns))
-            print(f"{'FAIL' if bad_steps else 'ok  '} {r.source}: {r.name} {r.label}, "
-                  f"{len(lm.steps)} pours, {sum(len(s.parts) for s in lm.steps)} parts "
-                  "closed and consistent")
-            for st in lm.steps:
-                for p in st.parts:
-                    print(_fmt_part(p))
-            for line in _findings_table(lm.findings, show_info=args.verbose):
-                print(line)
-            if bad_steps:
-                worst = (errs or warns)[0]
-                failed.append(f"{r.source} {r.label}: {worst.check}: {worst.message}")
-                files[r.source] = False
-            continue
-        try:
-            molds = build(r)
-        except SoftMoldsError as exc:
-            failed.append(f"{r.source} {r.label}: {exc}".splitlines()[0])
-            files[r.source] = False
-            print(f"FAIL {r.source} {r.label}: {exc}")
-            continue
-        bad_one = bool(molds.errors) or (args.strict and bool(molds.warnings))
-        verdict = "FAIL" if bad_one else "ok  "
-        print(f"{verdict} {r.source}: {r.name} {r.label}, {len(molds.parts)} parts closed and "
-              f"consistent")
-        for p in molds.parts:
-            print(_fmt_part(p))
-        for line in _findings_table(molds.findings, show_info=args.verbose):
-            print(line)
-        if bad_one:
-            worst = (molds.errors or molds.warnings)[0]
-            failed.append(f"{r.source} {r.label}: {worst.check}: {worst.message}")
+        problem = _check_one(r, args)
+        if problem is not None:
+            failed.append(problem)
             files[r.source] = False
     print(check_tally(len(variants) - len(failed), len(variants), sum(files.values()),
                       len(files), args.strict))
     for line in failed:
         print(f"  failed: {line}")
     return 1 if failed else 0
+
+
+def _check_one(r, args: argparse.Namespace) -> str | None:
+    """Build and check one variant, print its parts and findings, and say why it failed
+    (None: it passed). Multi-step processes get their own checks (trays and a post
+    bridge, or two pours on one core: soft_molds.analysis.layered_checks,
+    overmold_checks); every step's parts are listed in pour order."""
+    from .pipeline import build, build_steps
+
+    try:
+        if r.process.multi_step:
+            sm = build_steps(r)
+            findings = tuple(sm.findings)
+            parts = [p for s in sm.steps for p in s.parts]
+            pours = f"{len(sm.steps)} pours, "
+        else:
+            molds = build(r)
+            findings, parts, pours = tuple(molds.findings), list(molds.parts), ""
+    except SoftMoldsError as exc:
+        print(f"FAIL {r.source} {r.label}: {exc}")
+        return f"{r.source} {r.label}: {exc}".splitlines()[0]
+    errs = [f for f in findings if f.severity is Severity.ERROR]
+    warns = [f for f in findings if f.severity is Severity.WARNING]
+    failing = bool(errs) or (args.strict and bool(warns))
+    print(f"{'FAIL' if failing else 'ok  '} {r.source}: {r.name} {r.label}, {pours}"
+          f"{len(parts)} parts closed and consistent")
+    for p in parts:
+        print(_fmt_part(p))
+    for line in _findings_table(findings, show_info=args.verbose):
+        print(line)
+    if not failing:
+        return None
+    worst = (errs or warns)[0]
+    return f"{r.source} {r.label}: {worst.check}: {worst.message}"
 
 
 def _count(n: int, noun: str) -> str:
