@@ -36,7 +36,13 @@ ADVICE: dict[str, str] = {
         "elongation at break: the inlet would tear. Make the tube socket wider "
         "(`inlet.socket_diameter_mm`, or that core's `inlets[i].socket_diameter_mm`: "
         "core-n leaves through inlets[n-1]), the chambers narrower, or use a stretchier grade "
-        "(`material.grade`, or your measured `material.elongation_pct`)."),
+        "(`material.grade`, or your measured `material.elongation_pct`); or print the core "
+        "in a water-soluble filament and dissolve it out (`core.kind: dissolved`)."),
+    "drain": (
+        "A dissolved core's solution cannot leave that pocket when the part stands "
+        "inlet-down: its only way out lies above it. Join the pocket's low end to the "
+        "socket (a feed passage along the bottom of the chambers), turn the chamber so it "
+        "opens downward, or add a drain hole there and plug it with silicone after."),
     "core-slenderness": (
         "The core print is long and thin between supports and may bend or break when cast "
         "or pulled. Make the void wider or shorter, or accept the risk after a trial "

@@ -65,6 +65,14 @@ STEPS = (
     "Trim the sprue and vent stubs flush, then push the tube listed above into the socket.",
 )
 
+#: The core step of a dissolved core (``core.kind: dissolved``), in place of pulling it.
+DISSOLVE_STEP = (
+    "Dissolve the core: print it in a water-soluble filament (its STL and print plate as "
+    "listed); after the cure, stand the cast inlet-down in warm water (follow the "
+    "filament's data sheet for the temperature; hours, not minutes), change the water and "
+    "flush through the tube socket until it runs clear, then dry the cast. Cut the core "
+    "print off flush at the socket first.")
+
 Block = tuple[Any, ...]
 
 
@@ -80,7 +88,10 @@ def steps_for(family: Sequence[Manifest]) -> list[str]:
     socket n, as the first variant with several inlets places them)."""
     many = next((man for man in family if len(man.params.inlets) > 1), None)
     if many is None:
-        return list(STEPS)
+        out = list(STEPS)
+        if any(man.params.core_dissolved for man in family):
+            out[8] = DISSOLVE_STEP
+        return out
     inlets = many.params.inlets
     names = [f"core-{n}" for n in range(1, len(inlets) + 1)]
     out = list(STEPS)

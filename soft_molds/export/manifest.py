@@ -308,6 +308,12 @@ class RecipeEcho:
         return _inlets(self.data, "params")
 
     @property
+    def core_dissolved(self) -> bool:
+        """Whether the core is dissolved out rather than pulled (``core.kind``)."""
+        core = self.data.get("core")
+        return isinstance(core, dict) and core.get("kind") == "dissolved"
+
+    @property
     def bed_mm(self) -> Vec2:
         """The printer's bed (x, y), mm."""
         printer = self.data.get("printer")

@@ -22,6 +22,7 @@ from .materials import resolve
 from .model import (
     CastingSettings,
     Checks,
+    CoreSettings,
     Inflate,
     Inlet,
     InletFace,
@@ -389,7 +390,8 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
         inflate=Inflate(working), casting=CastingSettings(**blocks["casting"]),
         label_settings=LabelSettings(**lab),
         printer=PrinterSettings(**blocks["printer"]), source=source,
-        process=Process(**blocks["process"]), lines=lines)
+        process=Process(**blocks["process"]), core=CoreSettings(**blocks["core"]),
+        lines=lines)
 
     found = sanity_problems(recipe, lines)
     problems.extend(found)

@@ -217,6 +217,19 @@ class Process:
         return {"kind": self.kind, **{n: values[n] for n in names}}
 
 
+@dataclass(frozen=True)
+class CoreSettings:
+    """What becomes of the core after the cure: ``kind`` "pulled" (drawn out through its
+    socket) or "dissolved" (printed in a water-soluble filament and dissolved out through
+    the socket: a lost core, never pulled)."""
+
+    kind: str = "pulled"
+
+    @property
+    def lost(self) -> bool:
+        return self.kind != "pulled"
+
+
 #: The process fields each multi-step kind reads.
 LAYERED_FIELDS = ("draft_deg", "base_mm", "cover_margin_mm", "sheet")
 OVERMOLD_FIELDS = ("skin_mm", "guides", "guide_pitch_mm", "guide_height_mm",
@@ -245,6 +258,7 @@ class Recipe:
     printer: PrinterSettings
     source: str = ""
     process: Process = field(default_factory=Process)
+    core: CoreSettings = field(default_factory=CoreSettings)
     #: Field path -> source line, for problems found after loading (the plan stage's).
     lines: Mapping[str, int] = field(default_factory=dict, compare=False, repr=False)
 
@@ -319,6 +333,8 @@ class Recipe:
             # A one-shot recipe's values (and so its hash and manifest) are the same with
             # or without a process block.
             **({"process": self.process.params()} if self.process.multi_step else {}),
+            # Likewise a pulled core (the default) hashes as before the core block existed.
+            **({"core": asdict(self.core)} if self.core.lost else {}),
         }
 
     def params_sha256(self) -> str:

@@ -181,6 +181,13 @@ PROCESS_FIELDS: tuple[Field, ...] = (
            "covers it too (overmold)", 0.5, lo=0.05, hi=3.0, lo_open=False),
 )
 
+CORE_FIELDS: tuple[Field, ...] = (
+    choice("kind", "what becomes of the core after the cure: pulled (drawn out through its "
+           "tube socket) or dissolved (printed in a water-soluble filament and dissolved "
+           "out through the socket, for voids too wide to pull through it)",
+           ("pulled", "dissolved"), "pulled"),
+)
+
 BLOCKS: dict[str, tuple[Field, ...]] = {
     "inlet": INLET_FIELDS,
     "parting": PARTING_FIELDS,
@@ -193,4 +200,5 @@ BLOCKS: dict[str, tuple[Field, ...]] = {
     "printer": PRINTER_FIELDS,
     "mesh": MESH_FIELDS,
     "process": PROCESS_FIELDS,
+    "core": CORE_FIELDS,
 }

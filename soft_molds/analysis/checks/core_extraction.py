@@ -21,7 +21,11 @@ from ..wording import point
 @check("core-extraction", "core-slenderness", order=300)
 def core_extraction_check(ctx: CheckContext) -> CheckOutput:
     """Each core through its own socket (one core: the part ``core``); the figures of the
-    first core ride on the output, the findings of every core are listed."""
+    first core ride on the output, the findings of every core are listed. Nothing for a
+    lost core (``core.kind: dissolved``), which is not pulled."""
+    if ctx.recipe.core.lost:
+        # A dissolved core never passes the socket: the drain check stands in for this one.
+        return CheckOutput(())
     out: list[Finding] = []
     figures = []
     for view in ctx.cores:
@@ -52,8 +56,9 @@ def _one_core(ctx: CheckContext, view: CoreView) -> tuple[list[Finding], Extract
         f"perimeter ({ext.section_perimeter_mm:.1f} mm section near {point(ext.where_mm)}): "
         f"strain {ext.strain * 100:.0f} % x safety factor {k:g} = {need:.0f} % against "
         f"elongation at break {elong:g} % ({r.material.grade})"
-        + ("; the inlet will tear: widen the socket, slim the voids or choose a more "
-           "stretchy grade" if tears else ""),
+        + ("; the inlet will tear: widen the socket, slim the voids, choose a more "
+           "stretchy grade, or set core.kind: dissolved (a soluble core, never pulled)"
+           if tears else ""),
         value=ext.stretch, limit=allowed, where=ext.where_mm)]
     if ext.slenderness > c.core_slenderness_max:
         out.append(finding(
