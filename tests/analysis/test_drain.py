@@ -60,19 +60,24 @@ def test_on_the_far_face_the_pocket_is_found_at_its_foot_there():
     assert d.where_mm is not None and d.where_mm[0] == pytest.approx(31.75, abs=0.3)
 
 
-def test_a_dissolved_core_skips_the_pull_and_its_voids_drain():
-    mo = built_variant("seedling-finger", "A")
-    assert any(f.check == "core-extraction" for f in mo.findings)
-    # The same finger with a dissolved core (recipe text edited, built the same way).
-    text = open(mo.recipe.source).read()
-    r = recipe_from_text(edit(text, "inlet:\n", "core:\n  kind: dissolved\ninlet:\n"),
-                         "dissolved.yaml", "seedling-finger")
-    m = build(r)
+def test_the_wide_pad_tears_its_inlet_when_pulled_and_drains_when_dissolved():
+    # The bundled tray-lift pad: one 55 x 44 x 6 mm chamber behind a 5 mm socket.
+    m = built_variant("tray-lift-pad", "A")
     names = [f.check for f in m.findings]
-    assert "core-extraction" not in names
+    assert "core-extraction" not in names and m.errors == ()
     (drain,) = [f for f in m.findings if f.check == "drain"]
     assert drain.severity.value == "info" and drain.value == 0.0
-    # ... and its casting card says to dissolve the core, not to pull it.
     card = output_formats()["casting-card"].encode(m, m.manifest())
     text = b"".join(card.values()).decode()
     assert "Dissolve the core" in text and "draw the core out" not in text
+    # Pulled, the same core would stretch the inlet past the grade's elongation at break
+    # (the section's perimeter, a 44 x 6 mm rectangle with 1 mm corner rounding,
+    # 2 (44 + 6) - (8 - 2 pi) = 98.28 mm, against the socket's pi 5 = 15.71 mm: 6.26 x),
+    # and the refusal names the way out.
+    pulled = recipe_from_text(edit(open(m.recipe.source).read(), "  kind: dissolved",
+                                   "  kind: pulled"), "pulled.yaml", "tray-lift-pad")
+    err = [f for f in build(pulled).findings if f.check == "core-extraction"]
+    assert err and err[0].severity.value == "error"
+    perimeter = 2 * (44 + 6) - (8 - 2 * math.pi) * 1.0
+    assert err[0].value == pytest.approx(perimeter / (math.pi * 5), rel=2e-3)
+    assert "core.kind: dissolved" in err[0].message
