@@ -29,12 +29,11 @@ from .manifest import motion_record
 from .plates import plate_files
 from .steps_manifest import (
     STEPPED_FORMAT,
-    PortionRecord,
     ProcessEcho,
-    StepPartRecord,
     SteppedManifest,
-    StepPourRecord,
     StepRecord,
+    part_records,
+    pour_record,
 )
 from .stl import encode_binary_stl
 from .typedjson import JsonValue, to_json
@@ -222,18 +221,8 @@ def finding_record(f: Finding) -> Finding:
 
 
 def _step_record(s: LayerStep, files: Mapping[str, bytes]) -> StepRecord:
-    def step_file(name: str) -> str | None:
-        f = f"{s.folder}/{name}.step"
-        return f if f in files else None
-
-    parts = tuple(StepPartRecord(p.name, p.role, f"{s.folder}/{p.name}.stl", p.role != "cast",
-                                 p.brep_volume_mm3,
-                                 None if p.pull_dir is None else
-                                 (float(p.pull_dir[0]), float(p.pull_dir[1]),
-                                  float(p.pull_dir[2])), step_file(p.name))
-                  for p in s.parts)
-    pour = StepPourRecord(s.pour.cast_mm3, s.pour.mixed_mm3, s.pour.mixed_g,
-                          tuple(PortionRecord(p.what, p.grams) for p in s.pour.portions))
+    parts = part_records(s.folder, s.parts, files)
+    pour = pour_record(s.pour)
     return StepRecord(s.index, s.name, s.folder, parts, pour, s.least_post_draft_deg)
 
 

@@ -25,13 +25,12 @@ from .layered import finding_record, print_lines, step_print_files
 from .steps_manifest import (
     OVERMOLD_FORMAT,
     OpeningRecord,
-    PortionRecord,
     ProcessEcho,
-    StepPartRecord,
     SteppedManifest,
-    StepPourRecord,
     StepRecord,
     ThreadRecord,
+    part_records,
+    pour_record,
 )
 from .stl import encode_binary_stl
 from .typedjson import JsonValue, to_json
@@ -114,18 +113,8 @@ def card_text(m: OvermoldMoldSet, files: Mapping[str, bytes]) -> bytes:
 
 
 def _step_record(s: OvermoldStep, files: Mapping[str, bytes]) -> StepRecord:
-    def step_file(name: str) -> str | None:
-        f = f"{s.folder}/{name}.step"
-        return f if f in files else None
-
-    parts = tuple(StepPartRecord(p.name, p.role, f"{s.folder}/{p.name}.stl", p.role != "cast",
-                                 p.brep_volume_mm3,
-                                 None if p.pull_dir is None else
-                                 (float(p.pull_dir[0]), float(p.pull_dir[1]),
-                                  float(p.pull_dir[2])), step_file(p.name))
-                  for p in s.parts)
-    pour = StepPourRecord(s.pour.cast_mm3, s.pour.mixed_mm3, s.pour.mixed_g,
-                          tuple(PortionRecord(p.what, p.grams) for p in s.pour.portions))
+    parts = part_records(s.folder, s.parts, files)
+    pour = pour_record(s.pour)
     openings = tuple(OpeningRecord(str(o.kind), (float(o.center_mm[0]), float(o.center_mm[1]),
                                                  float(o.center_mm[2])), o.radius_mm)
                      for o in s.openings)

@@ -11,11 +11,13 @@ from __future__ import annotations
 
 import json
 import os
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from ..analysis.casting import Quantities
 from ..analysis.findings import Finding, Verdict, verdict
+from ..analysis.result import Part
 from ..version import __version__
 from .manifest import MANIFEST_NAME, ManifestError, MotionRecord
 from .typedjson import JsonValue, ShapeError, from_json
@@ -129,6 +131,28 @@ class SteppedManifest:
     def mixed_grams(self) -> tuple[float, ...]:
         """Every portion to weigh, all steps in pour order (g)."""
         return tuple(p.grams for s in self.steps for p in s.pour.portions)
+
+
+def part_records(folder: str, parts: Sequence[Part], files: Mapping[str, bytes]
+                 ) -> tuple[StepPartRecord, ...]:
+    """The records of one step's ``parts`` (in step folder ``folder``); a part's STEP file
+    is named when ``files`` holds it."""
+    def step_file(name: str) -> str | None:
+        f = f"{folder}/{name}.step"
+        return f if f in files else None
+
+    return tuple(StepPartRecord(p.name, p.role, f"{folder}/{p.name}.stl", p.role != "cast",
+                                p.brep_volume_mm3,
+                                None if p.pull_dir is None else
+                                (float(p.pull_dir[0]), float(p.pull_dir[1]),
+                                 float(p.pull_dir[2])), step_file(p.name))
+                 for p in parts)
+
+
+def pour_record(q: Quantities) -> StepPourRecord:
+    """One pour's silicone as the manifest records it."""
+    return StepPourRecord(q.cast_mm3, q.mixed_mm3, q.mixed_g,
+                          tuple(PortionRecord(p.what, p.grams) for p in q.portions))
 
 
 def read_stepped_manifest(path: str | os.PathLike[str]) -> SteppedManifest:
