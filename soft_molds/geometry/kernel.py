@@ -21,6 +21,7 @@ from OCP.GC import GC_MakeArcOfEllipse
 from OCP.gp import gp_Ax2, gp_Dir, gp_Elips, gp_Pnt
 
 from ..errors import GeometryError
+from ..recipe.cuts import OVERSHOOT_MM, SlitCut
 from ..recipe.outline import Arc2, Ellipse, Line2
 from ..recipe.primitives import (
     AXES,
@@ -313,6 +314,26 @@ def _extruded(p: Extruded, part: str) -> cq.Shape:
     except Exception as exc:  # OCCT raises bare Standard_Failure subclasses
         raise GeometryError("sweep section", f"the kernel failed: {exc}", part) from exc
     return checked(made, part, "sweep section", volume_mm3=p.volume_mm3(), rel_tol=1e-6)
+
+
+def build_slit(c: SlitCut, part: str) -> cq.Shape:
+    """The slit's tool: its xz section (lines and three-point arcs, exact) pushed along y
+    over its span; checked against the closed-form volume of the whole tool."""
+    y0 = c.center_y_mm - c.span_mm / 2.0
+
+    def at(x: float, z: float) -> cq.Vector:
+        return cq.Vector(x, y0, z)
+
+    edges = [cq.Edge.makeLine(at(*pts[0]), at(*pts[1])) if kind == "line"
+             else cq.Edge.makeThreePointArc(at(*pts[0]), at(*pts[1]), at(*pts[2]))
+             for kind, pts in c.outline_xz()]
+    try:
+        face = cq.Face.makeFromWires(cq.Wire.assembleEdges(edges))
+        made = cq.Solid.extrudeLinear(face, cq.Vector(0, c.span_mm, 0))
+    except Exception as exc:  # OCCT raises bare Standard_Failure subclasses
+        raise GeometryError("build slit", f"the kernel failed: {exc}", part) from exc
+    whole = c.section_area_mm2(c.top_z_mm + OVERSHOOT_MM) * c.span_mm
+    return checked(made, part, "build slit", volume_mm3=whole, rel_tol=1e-6)
 
 
 def build_primitive(p: Primitive, part: str) -> cq.Shape:

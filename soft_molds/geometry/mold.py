@@ -232,8 +232,14 @@ def frustum_volume(h: float, r1: float, r2: float) -> float:
 
 
 def build_body(r: Recipe) -> k.Shape:
-    return k.fuse([k.build_primitive(p, "body") for p in r.body_primitives()], "body",
+    """The body: the union of its primitives, less the recipe's outside cuts (slits), so
+    the cast has open gaps there and the shell beside them fills them with fins."""
+    body = k.fuse([k.build_primitive(p, "body") for p in r.body_primitives()], "body",
                   "build body")
+    cuts = r.outer_cuts()
+    if not cuts:
+        return body
+    return k.cut(body, [k.build_slit(c, "body") for c in cuts], "body", "cut the slits")
 
 
 def build_cast(r: Recipe, step: CastingStep, body: k.Shape | None = None) -> CastSolids:

@@ -322,6 +322,7 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
     if problems or body is None or any(v is None for v in voids):
         raise refused()
     voids = _follow_body(body, voids, problems, _lines(root))
+    voids, outer = _split_outer(voids, problems, _lines(root))
     if problems:
         raise refused()
 
@@ -352,6 +353,9 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
         parting_v["offset_mm"] = cz if parting_v["axis"] == "z" else cy
 
     lines = _lines(root)
+    _fit_outer(body, voids, outer, blocks, parting_v, problems, lines)
+    if problems:
+        raise refused()
 
     def line(path: str) -> int | None:
         while path and path not in lines:
@@ -391,7 +395,7 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
         label_settings=LabelSettings(**lab),
         printer=PrinterSettings(**blocks["printer"]), source=source,
         process=Process(**blocks["process"]), core=CoreSettings(**blocks["core"]),
-        lines=lines)
+        outer=tuple(outer), lines=lines)
 
     found = sanity_problems(recipe, lines)
     problems.extend(found)
@@ -455,6 +459,42 @@ def _follow_body(body: BodyKind, voids: list, problems: list[Problem],
             problems.append(p if p.line is not None else replace(p, line=lines.get(path)))
         out.append(fitted if fitted is not None else v)
     return out
+
+
+def _split_outer(voids: list, problems: list[Problem], lines: dict[str, int]
+                 ) -> tuple[list, list]:
+    """The cavity voids and the voids cut from the outside (a kind with ``OUTER`` set,
+    see :mod:`.kinds.slits`). The outside cuts come last in the recipe, so every cavity
+    void keeps its index (its problems name ``voids[i]`` as the recipe wrote it)."""
+    inner = [v for v in voids if not getattr(v, "OUTER", False)]
+    outer = [v for v in voids if getattr(v, "OUTER", False)]
+    for i, v in enumerate(voids):
+        if getattr(v, "OUTER", False) and i < len(inner):
+            path = join_path("voids", i)
+            problems.append(Problem(f"{path}.kind", "is cut from the outside and must be "
+                                    "listed after every cavity void", lines.get(path),
+                                    v.KIND, f"move it after voids[{len(inner) - 1}]"))
+            break
+    if not inner:
+        problems.append(Problem("voids", "has no cavity to inflate", lines.get("voids"),
+                                [v.KIND for v in voids],
+                                "at least one void that is not cut from the outside"))
+    return inner, outer
+
+
+def _fit_outer(body: BodyKind, voids: list, outer: list, blocks: dict, parting_v: dict,
+               problems: list[Problem], lines: dict[str, int]) -> None:
+    """Add the problems of each outside cut in this recipe (its ``fit``), located."""
+    for k, v in enumerate(outer):
+        path = join_path("voids", len(voids) + k)
+        found = v.fit(body, voids, blocks["checks"]["min_wall_mm"],
+                      (parting_v["axis"], parting_v["offset_mm"]), blocks["process"]["kind"],
+                      path)
+        for p in found:
+            at = p.path
+            while at and at not in lines:
+                at = at.rsplit(".", 1)[0] if "." in at else ""
+            problems.append(replace(p, line=lines.get(at, lines.get(path))))
 
 
 def _after_socket(body: BodyKind, voids: list, clear_from_mm: float) -> list:

@@ -16,6 +16,7 @@ from enum import Enum
 from typing import Any
 
 from .contracts import BodyKind, VoidKind, bounds_of
+from .cuts import SlitCut
 from .materials import Blend, Grade
 from .primitives import Primitive, RoundedRod
 
@@ -259,6 +260,9 @@ class Recipe:
     source: str = ""
     process: Process = field(default_factory=Process)
     core: CoreSettings = field(default_factory=CoreSettings)
+    #: Voids cut from the outside (``slits``), listed after ``voids`` in the recipe: not
+    #: part of any core, removed from the body itself (:meth:`outer_cuts`).
+    outer: tuple[VoidKind, ...] = ()
     #: Field path -> source line, for problems found after loading (the plan stage's).
     lines: Mapping[str, int] = field(default_factory=dict, compare=False, repr=False)
 
@@ -301,6 +305,10 @@ class Recipe:
         length = self.body_length_mm
         return tuple(v.primitives(length) for v in self.voids)
 
+    def outer_cuts(self) -> tuple[SlitCut, ...]:
+        """Every cut of the ``outer`` voids, in recipe order (mm, world)."""
+        return tuple(c for v in self.outer for c in v.cuts(self.body, self.voids))  # type: ignore[attr-defined]
+
     def params(self) -> dict[str, Any]:
         """Every value that shapes the output, as plain JSON-ready data."""
         def kind_dict(obj: BodyKind | VoidKind) -> dict[str, Any]:
@@ -315,7 +323,7 @@ class Recipe:
             "name": self.name,
             "label": self.label,
             "body": kind_dict(self.body),
-            "voids": [kind_dict(v) for v in self.voids],
+            "voids": [kind_dict(v) for v in (*self.voids, *self.outer)],
             # One inlet on the start face echoes as the ``inlet`` block always did (so the
             # hash and manifest of such a recipe do not change); several as ``inlets``.
             **({"inlet": self.inlets[0].echo()}

@@ -1,0 +1,134 @@
+"""Cuts from the body's outer surface, as pure data: what the geometry stage removes from
+the body before the cores, so the cast has open gaps and the shell beside them grows fins.
+
+A ``SlitCut`` is a prism along y whose section in the xz plane is a drafted slot opening
+upward (+z): ``width_top_mm`` wide along x at the body's top face ``top_z_mm``, its two
+side walls leaning in by ``draft_deg`` each towards the bottom at ``top_z_mm - depth_mm``,
+its two bottom corners rounded with ``round_mm``. The prism runs ``span_mm`` along y
+centred on ``center_y_mm``. Above the top face the section goes on, with the same draft,
+for ``OVERSHOOT_MM``, so the cut opens cleanly through the face (that part lies outside the
+body and removes nothing).
+
+Frame: mm, degrees; x along the body from the inlet face, z up (the top face is the side
+opposite the strain-limiting bottom).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+#: How far the cut's section goes on above the body's top face (mm): only so that the
+#: boolean never has to cut along a face lying exactly on the body's own face.
+OVERSHOOT_MM = 1.0
+
+
+@dataclass(frozen=True)
+class SlitCut:
+    """One slit (see the module docstring for the frame and the shape; mm, deg)."""
+
+    center_x_mm: float
+    center_y_mm: float
+    span_mm: float
+    top_z_mm: float
+    depth_mm: float
+    width_top_mm: float
+    round_mm: float
+    draft_deg: float
+
+    @property
+    def bottom_z_mm(self) -> float:
+        return self.top_z_mm - self.depth_mm
+
+    @property
+    def lean(self) -> float:
+        """How far each side wall moves out along x per mm of height (tan of the draft)."""
+        return math.tan(math.radians(self.draft_deg))
+
+    @property
+    def width_bottom_mm(self) -> float:
+        """Width along x at the bottom, before the corners are rounded (mm)."""
+        return self.width_top_mm - 2.0 * self.depth_mm * self.lean
+
+    def half_width_at(self, z_mm: float) -> float:
+        """Half the width along x at height ``z_mm`` (straight walls, mm)."""
+        return self.width_bottom_mm / 2.0 + (z_mm - self.bottom_z_mm) * self.lean
+
+    @property
+    def corner_angle_rad(self) -> float:
+        """Inner angle of each bottom corner: a right angle opened by the draft."""
+        return math.pi / 2.0 + math.radians(self.draft_deg)
+
+    @property
+    def tangent_mm(self) -> float:
+        """Distance from a bottom corner to where its rounding meets the walls (mm)."""
+        return self.round_mm / math.tan(self.corner_angle_rad / 2.0)
+
+    def corner_area_mm2(self) -> float:
+        """Area the rounding of one bottom corner takes off the section (mm2): between two
+        lines meeting at angle theta and a circle of radius r tangent to both, r^2 (cot
+        theta/2 - (pi - theta)/2) (plane geometry: the kite of the two tangent lengths
+        less the circular sector)."""
+        th = self.corner_angle_rad
+        r = self.round_mm
+        return r * r * (1.0 / math.tan(th / 2.0) - (math.pi - th) / 2.0)
+
+    def section_area_mm2(self, top_z_mm: float | None = None) -> float:
+        """Area of the section below ``top_z_mm`` (default the body's top face), mm2: the
+        trapezoid less both corner roundings."""
+        top = self.top_z_mm if top_z_mm is None else top_z_mm
+        h = top - self.bottom_z_mm
+        return (self.width_bottom_mm + h * self.lean) * h - 2.0 * self.corner_area_mm2()
+
+    def removed_mm3(self, span_mm: float | None = None) -> float:
+        """Volume the slit removes from a body whose top face is flat at ``top_z_mm`` (mm3):
+        section area x the span inside the body (default the whole span)."""
+        return self.section_area_mm2() * (self.span_mm if span_mm is None else span_mm)
+
+    def outline_xz(self) -> tuple[tuple[str, tuple[tuple[float, float], ...]], ...]:
+        """The closed section in the xz plane as pieces ``("line", (a, b))`` or ``("arc",
+        (start, mid, end))`` of (x, z) points: from the top-left corner down the left wall,
+        along the bottom, up the right wall and back across the top (mm)."""
+        zb, zt = self.bottom_z_mm, self.top_z_mm + OVERSHOOT_MM
+        cx = self.center_x_mm
+        hb, ht = self.width_bottom_mm / 2.0, self.half_width_at(zt)
+        top_l, top_r = (cx - ht, zt), (cx + ht, zt)
+        bot_l, bot_r = (cx - hb, zb), (cx + hb, zb)
+        if self.round_mm <= 0.0:
+            return (("line", (top_l, bot_l)), ("line", (bot_l, bot_r)),
+                    ("line", (bot_r, top_r)), ("line", (top_r, top_l)))
+        left = self._corner(np.array(bot_l), 1.0)
+        right = self._corner(np.array(bot_r), -1.0)
+        return (("line", (top_l, left[2])),
+                ("arc", (left[2], left[1], left[0])),
+                ("line", (left[0], right[0])),
+                ("arc", (right[0], right[1], right[2])),
+                ("line", (right[2], top_r)),
+                ("line", (top_r, top_l)))
+
+    def _corner(self, p: np.ndarray, inward: float
+                ) -> tuple[tuple[float, float], tuple[float, float], tuple[float, float]]:
+        """The rounding of the bottom corner ``p``: (point on the bottom, arc middle, point
+        on the wall); ``inward`` is +1 for the left corner (the bottom runs to +x)."""
+        along = np.array([inward, 0.0])
+        up = np.array([-inward * math.sin(math.radians(self.draft_deg)),
+                       math.cos(math.radians(self.draft_deg))])
+        t = self.tangent_mm
+        bis = along + up
+        bis /= np.linalg.norm(bis)
+        centre = p + bis * (self.round_mm / math.sin(self.corner_angle_rad / 2.0))
+        mid = centre - bis * self.round_mm
+
+        def pt(v: np.ndarray) -> tuple[float, float]:
+            return (float(v[0]), float(v[1]))
+        return pt(p + t * along), pt(mid), pt(p + t * up)
+
+    def bounds(self) -> tuple[tuple[float, float, float], tuple[float, float, float]]:
+        """Axis-aligned bounds of the whole tool, overshoot included (mm)."""
+        ht = self.half_width_at(self.top_z_mm + OVERSHOOT_MM)
+        return ((self.center_x_mm - ht, self.center_y_mm - self.span_mm / 2.0,
+                 self.bottom_z_mm),
+                (self.center_x_mm + ht, self.center_y_mm + self.span_mm / 2.0,
+                 self.top_z_mm + OVERSHOOT_MM))

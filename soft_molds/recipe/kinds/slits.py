@@ -1,0 +1,198 @@
+"""Void kind ``slits``: gaps cut from the body's outer top face between neighbouring
+chambers, so each chamber stands as its own pair of walls.
+
+A chambered finger with slits bends further for the same pressure and strains its
+silicone less: the walls between chambers no longer have to stretch the solid top layer
+above them, they only tilt apart. The slits are open to the outside (no pressure in them)
+and are formed by thin fins of the upper mold shell, which come out with that shell.
+
+Frame (mm, deg): x along the body from the inlet face, y across, z up. ``face: top`` is the
+body's +z face, the side opposite the strain-limiting bottom the finger bends towards; the
+parting plane must be normal to z and below every slit, so the fins belong to the upper
+shell and leave along its pull, +z.
+
+Unlike a cavity void a slit is not part of a core: the recipe reader keeps it out of
+``Recipe.voids`` (it must be listed after them) in ``Recipe.outer``, and the geometry stage
+removes its :class:`~soft_molds.recipe.cuts.SlitCut` from the body before the cores.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
+from typing import Any, ClassVar
+
+from ...errors import Problem
+from ..contracts import BodyKind, Entry
+from ..cuts import SlitCut
+from ..fields import Field, choice, number
+from ..membranes import Membrane
+from ..primitives import Primitive
+from ..registry import void_kind
+from .chambers import Chambers
+
+#: Body kinds a slit row can be cut into: a flat top face over the whole row.
+BODY_KINDS = ("bar",)
+
+#: How far a slit through both side faces runs past each of them (mm), so the cut never
+#: ends on the body's own side face.
+THROUGH_MM = 1.0
+
+
+@void_kind("slits")
+@dataclass(frozen=True)
+class Slits:
+    """One slit centred in each gap between neighbouring chambers of the recipe's chamber
+    row (count - 1 slits), cut from the ``face`` down by ``depth_mm``: ``width_mm`` along x
+    at the face, narrowing by ``draft_deg`` per side towards the bottom, whose two corners
+    are rounded with ``round_mm``; through both side faces of the body, or ``span_mm``
+    along y centred on the row's axis."""
+
+    #: Cut from the outside, not a cavity: kept out of the cores and the pressure.
+    OUTER: ClassVar[bool] = True
+
+    FIELDS: ClassVar[tuple[Field, ...]] = (
+        choice("face", "the face the slits are cut from: top is +z, the side opposite the "
+               "strain-limiting bottom the finger bends towards", ("top",), "top"),
+        number("depth_mm", "how deep each slit reaches into the body, from the face"),
+        number("width_mm", "width of each slit along x, at the face"),
+        number("round_mm", "rounding of the slit's two bottom corners", 0.5, lo=0.0,
+               lo_open=False),
+        number("draft_deg", "draft of the slit's side walls, so the mold's fins leave along "
+               "its pull (common practice 0.5-2 deg)", 1.0, unit="deg", lo=0.0, hi=10.0,
+               lo_open=False),
+        number("span_mm", "extent along y centred on the chamber row's axis; default runs "
+               "through both side faces of the body", None),
+    )
+    face: str
+    depth_mm: float
+    width_mm: float
+    round_mm: float
+    draft_deg: float
+    span_mm: float | None
+
+    @classmethod
+    def cross_check(cls, v: Mapping[str, Any], path: str, line: int | None) -> list[Problem]:
+        lean = math.tan(math.radians(v["draft_deg"]))
+        bottom = v["width_mm"] - 2.0 * v["depth_mm"] * lean
+        if bottom <= 0.0:
+            most = math.degrees(math.atan(v["width_mm"] / (2.0 * v["depth_mm"])))
+            return [Problem(f"{path}.draft_deg", "closes the slit before its bottom", line,
+                            v["draft_deg"], f"less than {most:.3g} deg for this width_mm "
+                            "and depth_mm")]
+        corner = math.pi / 2.0 + math.radians(v["draft_deg"])
+        tangent = v["round_mm"] / math.tan(corner / 2.0)
+        limit = 0.45 * min(bottom, v["depth_mm"])
+        if tangent > limit:
+            most = limit * math.tan(corner / 2.0)
+            return [Problem(f"{path}.round_mm", "is too large for the slit", line,
+                            v["round_mm"], f"at most {most:.3g} mm (its rounding may take "
+                            "0.45 x the slit's bottom width or depth)")]
+        return []
+
+    def primitives(self, body_length_mm: float) -> tuple[Primitive, ...]:
+        """No cavity: a slit is cut from the outside (see :meth:`cuts`)."""
+        return ()
+
+    def entry(self) -> Entry:
+        """A slit has no passage from the tube socket; the reader never asks for one (it
+        keeps slits out of ``Recipe.voids``)."""
+        raise TypeError("a slit is cut from the outside and has no entry")
+
+    def membranes(self, body_length_mm: float) -> tuple[Membrane, ...]:
+        """None of its own: nothing inflates a slit."""
+        return ()
+
+    def cuts(self, body: BodyKind, voids: Sequence[object]) -> tuple[SlitCut, ...]:
+        """One cut per gap of the chamber row (x order), for a body and row that passed
+        :meth:`fit`."""
+        row = _row(voids)
+        if row is None:
+            return ()
+        (lo, hi) = _body_bounds(body)
+        cy = row.center_mm[0]
+        if self.span_mm is None:
+            span, cy = hi[1] - lo[1] + 2.0 * THROUGH_MM, (lo[1] + hi[1]) / 2.0
+        else:
+            span = self.span_mm
+        return tuple(SlitCut(x, cy, span, hi[2], self.depth_mm, self.width_mm, self.round_mm,
+                             self.draft_deg)
+                     for x, _ in gaps(row, hi[0] - lo[0]))
+
+    def fit(self, body: BodyKind, voids: Sequence[object], min_wall_mm: float,
+            parting: tuple[str, float | None], process_kind: str, path: str) -> list[Problem]:
+        """Problems of this slit row in this recipe: the body kind, the chamber row it sits
+        in, the walls it leaves to the chambers and the feed channel, the span, the
+        parting plane its fins need and the process."""
+        kind = getattr(body, "KIND", "?")
+        if kind not in BODY_KINDS:
+            return [Problem(f"{path}.kind", f"is cut into a {' or '.join(BODY_KINDS)} body "
+                            "only", None, kind, "body.kind: " + ", ".join(BODY_KINDS))]
+        rows = [v for v in voids if isinstance(v, Chambers)]
+        if len(rows) != 1 or rows[0].count < 2:
+            got = (f"{len(rows)} chamber rows" if len(rows) != 1
+                   else "a row of 1 chamber")
+            return [Problem(f"{path}.kind", "needs one chamber row to sit between", None, got,
+                            "exactly one void of kind chambers with count 2 or more")]
+        row = rows[0]
+        lo, hi = _body_bounds(body)
+        out = []
+        for i, (_x, gap) in enumerate(gaps(row, hi[0] - lo[0])):
+            most = gap - 2.0 * min_wall_mm
+            if self.width_mm > most:
+                out.append(Problem(f"{path}.width_mm", f"leaves less than checks.min_wall_mm "
+                                   f"({min_wall_mm:g} mm) to chambers {i + 1} and {i + 2} "
+                                   f"(the gap between them is {gap:g} mm)", None,
+                                   self.width_mm, f"at most {most:.3g} mm"))
+                break
+        cz = row.center_mm[1]
+        floor = cz + row.feed_diameter_mm / 2.0 + min_wall_mm
+        deepest = hi[2] - floor
+        if self.depth_mm > deepest:
+            out.append(Problem(f"{path}.depth_mm", "leaves less than checks.min_wall_mm "
+                               f"({min_wall_mm:g} mm) above the feed channel (its top at "
+                               f"z = {cz + row.feed_diameter_mm / 2.0:g} mm)", None,
+                               self.depth_mm, f"at most {deepest:.3g} mm"))
+        axis, offset = parting
+        if axis != "z":
+            out.append(Problem("parting.axis", "does not let the slits' fins leave with a "
+                               "shell (they pull along z)", None, axis,
+                               "z, with parting.offset_mm below every slit"))
+        elif offset is not None and offset >= hi[2] - self.depth_mm:
+            out.append(Problem(f"{path}.depth_mm", "reaches the parting plane (the fins "
+                               "must lie wholly in the upper shell)", None, self.depth_mm,
+                               f"less than {hi[2] - offset:.3g} mm (the plane is at z = "
+                               f"{offset:g} mm)"))
+        width = hi[1] - lo[1]
+        if self.span_mm is not None and self.span_mm > width:
+            out.append(Problem(f"{path}.span_mm", "is wider than the body", None,
+                               self.span_mm, f"at most {width:g} mm, or leave it out to cut "
+                               "through both side faces"))
+        if process_kind != "one-shot":
+            out.append(Problem("process.kind", "does not cut slits (only the two-shell mold "
+                               "carries their fins)", None, process_kind, "one-shot"))
+        return out
+
+
+def _row(voids: Sequence[object]) -> Chambers | None:
+    rows = [v for v in voids if isinstance(v, Chambers)]
+    return rows[0] if len(rows) == 1 else None
+
+
+def _body_bounds(body: BodyKind) -> tuple[tuple[float, float, float],
+                                          tuple[float, float, float]]:
+    from ..contracts import bounds_of
+    return bounds_of(body.primitives())
+
+
+def gaps(row: Chambers, body_length_mm: float) -> tuple[tuple[float, float], ...]:
+    """(centre x, width along x) of each gap between neighbouring chambers of ``row`` (a
+    ``chambers`` void), mm."""
+    boxes = row.chamber_boxes(body_length_mm)
+    out = []
+    for a, b in zip(boxes, boxes[1:]):
+        end = a.center_mm[0] + a.size_mm[0] / 2.0
+        start = b.center_mm[0] - b.size_mm[0] / 2.0
+        out.append(((end + start) / 2.0, start - end))
+    return tuple(out)
