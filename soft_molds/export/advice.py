@@ -66,6 +66,16 @@ ADVICE: dict[str, str] = {
         "A mold wall is thinner than `printer.perimeters` x `printer.nozzle_mm`: it may "
         "leak or crack. Raise `mold.wall_mm`, or print with more perimeters if your "
         "slicer allows."),
+    "fin-print": (
+        "The upper shell's fins, which form the slits, are thinner than the printed wall or "
+        "too tall for their thickness: they print weak, wobble under the nozzle or are "
+        "dropped by the slicer. Widen the slits (`width_mm` of the slits void, within the "
+        "gap between chambers less twice `checks.min_wall_mm`), make them shallower "
+        "(`depth_mm`) or lessen their `draft_deg`, which thins the fin's tip."),
+    "fin-draft": (
+        "The fins must leave the slits along the upper shell's pull. With no draft they "
+        "drag on the silicone walls beside each slit; wider at the tip than at the root they "
+        "tear them. Give the slits `draft_deg` (common practice 0.5-2 deg)."),
     "overhang": (
         "A note only: that area needs supports or bridging in the slicer; clean any "
         "support off the cavity before casting."),

@@ -19,6 +19,12 @@ not a calibration):
   docstring) the angle is 7 % above a linear 3-D solution of the seedling finger's body
   at small pressure, where the side walls hold each chamber's section together, and 28 to
   58 % below a nonlinear plane-stress solution of its section, which has no side walls.
+- Slits cut from the outside (void kind ``slits``): the sections are read off the cast
+  mesh, so a section through a slit has no silicone in the slit (it carries no axial
+  stiffness in the top layer there) and its smaller I bends it more; nothing else is
+  changed. What makes a slit finger fast, the walls between chambers tilting apart
+  without stretching a top layer over them, is the wall bulging left out above, so the
+  model underestimates a slit finger's angle more than an unslit one's.
 - Material: one homogeneous, incompressible neo-Hookean silicone (Young's modulus E from
   the recipe: measured, or Shore A by Gent's relation), each fibre in uniaxial stress
   sigma = (E/3)(l - 1/l^2) (nominal), so the neutral axis is the silicone's centroid at
