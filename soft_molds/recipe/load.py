@@ -468,12 +468,13 @@ def _split_outer(voids: list, problems: list[Problem], lines: dict[str, int]
     void keeps its index (its problems name ``voids[i]`` as the recipe wrote it)."""
     inner = [v for v in voids if not getattr(v, "OUTER", False)]
     outer = [v for v in voids if getattr(v, "OUTER", False)]
+    last = max((i for i, v in enumerate(voids) if not getattr(v, "OUTER", False)), default=-1)
     for i, v in enumerate(voids):
-        if getattr(v, "OUTER", False) and i < len(inner):
+        if getattr(v, "OUTER", False) and i < last:
             path = join_path("voids", i)
             problems.append(Problem(f"{path}.kind", "is cut from the outside and must be "
                                     "listed after every cavity void", lines.get(path),
-                                    v.KIND, f"move it after voids[{len(inner) - 1}]"))
+                                    v.KIND, f"move it after voids[{last}]"))
             break
     if not inner:
         problems.append(Problem("voids", "has no cavity to inflate", lines.get("voids"),
