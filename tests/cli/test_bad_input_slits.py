@@ -67,7 +67,8 @@ CASES = [
         _e(f"{SLITS}.draft_deg", "draft_deg: 12", _steep, "is out of range", "12",
            "a number, 0 <= value <= 10 deg"),)),
     ("face-not-offered", _face, (
-        _e(f"{SLITS}.face", "face: bottom", _face, "is not a known value", "'bottom'", "one of top"),)),
+        _e(f"{SLITS}.face", "face: bottom", _face, "is not a known value", "'bottom'",
+           "one of top"),)),
     ("span-wider-than-the-body", _span, (
         _e(f"{SLITS}.span_mm", "span_mm: 20", _span, "is wider than the body", "20.0",
            "at most 16 mm"),)),
