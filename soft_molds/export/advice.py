@@ -72,6 +72,13 @@ ADVICE: dict[str, str] = {
         "dropped by the slicer. Widen the slits (`width_mm` of the slits void, within the "
         "gap between chambers less twice `checks.min_wall_mm`), make them shallower "
         "(`depth_mm`) or lessen their `draft_deg`, which thins the fin's tip."),
+    "fin-opening": (
+        "The sprue or a vent lands over a slit and would be cut down through the fin beside "
+        "it. Leave wider top faces between the slits (a larger chamber `pitch_mm`, narrower "
+        "slits `width_mm`) or a smaller opening (`mold.sprue_diameter_mm`, "
+        "`mold.vent_diameter_mm`); with `span_mm` shorter than the body's width, cut the "
+        "slits through both side faces instead, so each stretch of top face is vented on "
+        "its own."),
     "fin-draft": (
         "The fins must leave the slits along the upper shell's pull. With no draft they "
         "drag on the silicone walls beside each slit; wider at the tip than at the root they "

@@ -490,7 +490,7 @@ def _fit_outer(body: BodyKind, voids: list, outer: list, blocks: dict, parting_v
         path = join_path("voids", len(voids) + k)
         found = v.fit(body, voids, blocks["checks"]["min_wall_mm"],
                       (parting_v["axis"], parting_v["offset_mm"]), blocks["process"]["kind"],
-                      path)
+                      blocks["mold"]["vent_diameter_mm"], path)
         for p in found:
             at = p.path
             while at and at not in lines:

@@ -118,3 +118,18 @@ def test_the_wall_check_sees_the_wall_between_slit_and_chamber(bundled):
     assert f.value == pytest.approx(4.5 / 2 - half, abs=RESOLUTION_MM + 0.01)
     cuts = ms.recipe.outer_cuts()
     assert min(abs(f.where_mm[0] - c.center_x_mm) for c in cuts) < 2.25
+
+
+def test_an_opening_over_a_slit_is_an_error_and_one_beside_it_is_not():
+    """Disc against rectangle (plane geometry): a 2 mm vent 1.5 mm from a 2.2 mm slit's
+    centre line reaches 1 - (1.5 - 1.1) = 0.6 mm over it; at 2.2 mm it keeps 0.1 mm off."""
+    from soft_molds.analysis.checks.fin_print import fin_opening_findings
+    from soft_molds.plan.model import Opening, OpeningKind
+
+    cut = SlitCut(10.0, 0.0, 18.0, 7.0, 3.5, 2.2, 0.4, 1.5)
+    over = Opening(OpeningKind.VENT, (11.5, 0.0, 7.0), 1.0)
+    beside = Opening(OpeningKind.VENT, (12.2, 0.0, 7.0), 1.0)
+    [f] = fin_opening_findings([cut], [over, beside])
+    assert f.severity is Severity.ERROR
+    assert f.value == pytest.approx(0.6)
+    assert fin_opening_findings([cut], [beside]) == []

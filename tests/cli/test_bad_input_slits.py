@@ -42,7 +42,19 @@ _rows = DEMO.split("  - kind: ")
 _first = "  - kind: ".join([_rows[0], _rows[2].split("inlet:")[0] + "", _rows[1],
                             ]) + "inlet:" + _rows[2].split("inlet:")[1]
 
+_vent = edit(DEMO, "  clamp_bolt: M4\n", "  clamp_bolt: M4\n  vent_diameter_mm: 5\n")
+_tight = edit(DEMO, "    depth_mm: 3.5\n    width_mm: 12", "    depth_mm: 6.5\n    width_mm: 12")
+
 CASES = [
+    # 8 - 2.2 = 5.8 mm of top face between two slits; a 5 mm vent and 0.5 mm of mold on
+    # each side need 6: width at most 8 - 5 - 1 = 2 mm.
+    ("top-land-too-narrow-for-a-vent", _vent, (
+        _e(f"{SLITS}.width_mm", "width_mm: 2.2", _vent, "leaves 5.8 mm of top face between "
+           "two slits, too little for a 5 mm vent", "2.2", "at most 2 mm"),)),
+    # Chambers 6.5 mm deep every 8 mm leave 1.5 mm gaps, less than 2 x 1 mm of wall.
+    ("no-room-between-chambers", _tight, (
+        _e(f"{SLITS}.kind", "- kind: slits", _tight, "finds no room between chambers 1 and 2",
+           "'slits'", "wider than 2 x checks.min_wall_mm (2 mm)"),)),
     # The gap between chambers is 8 - 3.5 = 4.5 mm: at most 4.5 - 2 x 1 = 2.5 mm.
     ("slit-wider-than-the-gap-less-two-walls", _wide, (
         _e(f"{SLITS}.width_mm", "width_mm: 2.6", _wide,

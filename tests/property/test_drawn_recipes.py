@@ -201,16 +201,39 @@ def block(draw, name: str) -> dict:
 
 
 PAIRS = (("bar", "chambers"), ("bar", "bore"), ("rod", "bore"), ("rod", "chambers"),
-         ("revolved", "bellows"), ("section", "chambers"), ("section", "bore"))
+         ("revolved", "bellows"), ("section", "chambers"), ("section", "bore"),
+         ("bar", "slits"))
+
+
+@st.composite
+def slits(draw, row: dict, size: tuple[float, float, float]) -> dict:
+    """A slit row for the chamber ``row`` in a bar of ``size``: widths and depths across
+    what the gaps and the height allow, and somewhat past it (refused by a field line)."""
+    fields = void_kinds()["slits"].FIELDS
+    _, width, height = size
+    gap = max(row["pitch_mm"] - row["depth_mm"], 0.6)
+    out: dict = {"kind": "slits",
+                 "width_mm": number(draw, declared(fields, "width_mm"), 0.3, gap),
+                 "depth_mm": number(draw, declared(fields, "depth_mm"), 0.5, height / 2)}
+    for name, hi in (("round_mm", 0.5), ("draft_deg", 3.0), ("span_mm", width)):
+        if draw(st.booleans()):
+            out[name] = number(draw, declared(fields, name), 0.0 if name != "span_mm"
+                               else width / 2, hi)
+    return out
 
 
 @st.composite
 def recipe_text(draw) -> str:
     body_kind, void_kind = draw(st.sampled_from(PAIRS))
     b, size = draw(body(body_kind))
-    v = draw(void(void_kind, size))
+    cut = void_kind == "slits"
+    v = draw(void("chambers" if cut else void_kind, size))
     upright = b.pop("parting", 0) is None
     doc: dict = {"name": "drawn", "body": b, "voids": [v]}
+    if cut:
+        # Slits sit between the chambers of a row and need a plane across z below them.
+        doc["voids"].append(draw(slits(v, size)))
+        doc["parting"] = {"axis": "z"}
     if upright:
         # A half-round's widest section is its flat side: the plan refuses the default
         # horizontal plane, so ask it to find the plane (the documented way).

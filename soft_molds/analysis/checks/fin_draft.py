@@ -29,6 +29,9 @@ PART = "shell-upper"
 #: A fin wall facet's normal is at least this much along x (cos 45 deg): the rounded tip
 #: and the faces the fin meets beside the body are left out.
 WALL_NORMAL_X = math.cos(math.radians(45.0))
+#: Round-off of a draft measured on tessellated planar walls (deg): a wall drafted exactly
+#: at the limit is not under it.
+DRAFT_TOL_DEG = 1e-3
 #: Tolerance on the slit's section when picking facets (mm): a mesh chord's worth.
 PICK_TOL_MM = 0.05
 
@@ -61,12 +64,14 @@ def fin_draft_findings(least_deg: float, where: tuple[float, float, float],
     """The finding for the fins' least draft (deg) against ``checks.min_draft_deg``."""
     if math.isnan(least_deg):
         return []
-    if least_deg < -1e-3:
+    if abs(least_deg) < DRAFT_TOL_DEG:
+        least_deg = 0.0  # a straight wall, not -0.00 deg of round-off
+    if least_deg < -DRAFT_TOL_DEG:
         return [finding("fin-draft", Severity.ERROR, PART,
                         f"a fin is wider at its tip than at its root (draft {least_deg:.2f} "
                         "deg): pulling the shell tears the silicone beside the slit",
                         value=least_deg, limit=0.0, where=where)]
-    if least_deg < min_draft_deg:
+    if least_deg < min_draft_deg - DRAFT_TOL_DEG:
         return [finding("fin-draft", Severity.WARNING, PART,
                         f"least fin draft {least_deg:.2f} deg is under checks.min_draft_deg "
                         f"= {min_draft_deg:g} deg: the fins drag on the slit walls as the "

@@ -8,15 +8,19 @@ every other wall; the fin may print weak or with gaps), thinner than two extrusi
 an error (a slicer leaves it out or prints one line that breaks off). A fin much taller
 than it is thick wobbles under the nozzle and its top layers print out of place: height
 over tip thickness above FIN_ASPECT_WARN is a warning, above FIN_ASPECT_ERROR an error.
+``fin-opening``: a sprue or vent whose mouth reaches over a slit is cut down through the
+fin beside it (the opening starts at the lowest ceiling under its mouth, the slit's bottom):
+the fin loses a notch and the cast gets a flap of silicone in the slit; an error.
 A recipe without slits gets no finding.
 """
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 
 from ...recipe.cuts import SlitCut
-from ..context import CheckContext
+from ..context import CheckContext, MoldOpening
 from ..findings import Finding, Severity, finding
 from ..printability import Printer
 from ..registry import CheckOutput, check
@@ -75,6 +79,30 @@ def fin_print_findings(cuts: Sequence[SlitCut], printer: Printer) -> list[Findin
     return out
 
 
-@check("fin-print", order=620)
+def fin_opening_findings(cuts: Sequence[SlitCut], openings: Sequence[MoldOpening]
+                         ) -> list[Finding]:
+    """An error for each opening whose mouth (a disc in the top face's plane) overlaps a
+    slit's outline at the top face (a rectangle in x and y), mm."""
+    out = []
+    for op in openings:
+        x, y, z = op.center_mm
+        for c in cuts:
+            half = c.width_top_mm / 2.0
+            dx = max(abs(x - c.center_x_mm) - half, 0.0)
+            dy = max(abs(y - c.center_y_mm) - c.span_mm / 2.0, 0.0)
+            reach = op.radius_mm - math.hypot(dx, dy)
+            if reach > 1e-6:
+                out.append(finding(
+                    "fin-opening", Severity.ERROR, PART,
+                    f"an opening of {2 * op.radius_mm:g} mm at ({x:.1f}, {y:.1f}) mm reaches "
+                    f"{reach:.2f} mm over the slit at x = {c.center_x_mm:.1f} mm: it is cut "
+                    "through the fin there", value=reach, limit=0.0, where=(x, y, z)))
+                break
+    return out
+
+
+@check("fin-print", "fin-opening", order=620)
 def fin_print(ctx: CheckContext) -> CheckOutput:
-    return CheckOutput(tuple(fin_print_findings(ctx.recipe.outer_cuts(), ctx.printer)))
+    cuts = ctx.recipe.outer_cuts()
+    return CheckOutput(tuple(fin_print_findings(cuts, ctx.printer)
+                             + fin_opening_findings(cuts, ctx.openings)))

@@ -40,6 +40,11 @@ BODY_KINDS = ("bar",)
 THROUGH_MM = 1.0
 
 
+#: Mold kept on either side of a vent's mouth on the top land between two slits (mm): a
+#: vent that reaches a slit would cut into the fin beside it.
+LAND_MARGIN_MM = 0.5
+
+
 @void_kind("slits")
 @dataclass(frozen=True)
 class Slits:
@@ -121,10 +126,12 @@ class Slits:
                      for x, _ in gaps(row, hi[0] - lo[0]))
 
     def fit(self, body: BodyKind, voids: Sequence[object], min_wall_mm: float,
-            parting: tuple[str, float | None], process_kind: str, path: str) -> list[Problem]:
+            parting: tuple[str, float | None], process_kind: str, vent_mm: float,
+            path: str) -> list[Problem]:
         """Problems of this slit row in this recipe: the body kind, the chamber row it sits
-        in, the walls it leaves to the chambers and the feed channel, the span, the
-        parting plane its fins need and the process."""
+        in, the walls it leaves to the chambers and the feed channel, the top land between
+        two slits (it must hold a vent of ``vent_mm``), the span, the parting plane its fins
+        need and the process."""
         kind = getattr(body, "KIND", "?")
         if kind not in BODY_KINDS:
             return [Problem(f"{path}.kind", f"is cut into a {' or '.join(BODY_KINDS)} body "
@@ -140,12 +147,29 @@ class Slits:
         out = []
         for i, (_x, gap) in enumerate(gaps(row, hi[0] - lo[0])):
             most = gap - 2.0 * min_wall_mm
+            if most < 0.05:
+                out.append(Problem(f"{path}.kind", f"finds no room between chambers {i + 1} "
+                                   f"and {i + 2}: the gap between them is {gap:g} mm", None,
+                                   "slits", "a chamber row whose gaps (pitch_mm less the "
+                                   "depth_mm of a chamber) are wider than 2 x "
+                                   f"checks.min_wall_mm ({2.0 * min_wall_mm:g} mm)"))
+                break
             if self.width_mm > most:
                 out.append(Problem(f"{path}.width_mm", f"leaves less than checks.min_wall_mm "
                                    f"({min_wall_mm:g} mm) to chambers {i + 1} and {i + 2} "
                                    f"(the gap between them is {gap:g} mm)", None,
                                    self.width_mm, f"at most {most:.3g} mm"))
                 break
+        # Each stretch of top face between two slits is a ceiling of its own and gets a
+        # vent: its mouth must lie on the land with LAND_MARGIN_MM of mold to either slit.
+        pitch = row.pitch_mm or 0.0
+        land = pitch - self.width_mm
+        if row.count > 2 and land < vent_mm + 2.0 * LAND_MARGIN_MM:
+            out.append(Problem(f"{path}.width_mm", f"leaves {land:.3g} mm of top face between "
+                               f"two slits, too little for a {vent_mm:g} mm vent", None,
+                               self.width_mm, f"at most {pitch - vent_mm - 2 * LAND_MARGIN_MM:.3g}"
+                               " mm (pitch_mm less mold.vent_diameter_mm less "
+                               f"2 x {LAND_MARGIN_MM:g} mm)"))
         cz = row.center_mm[1]
         floor = cz + row.feed_diameter_mm / 2.0 + min_wall_mm
         deepest = hi[2] - floor
