@@ -132,3 +132,26 @@ class SlitCut:
                  self.bottom_z_mm),
                 (self.center_x_mm + ht, self.center_y_mm + self.span_mm / 2.0,
                  self.top_z_mm + OVERSHOOT_MM))
+
+    def surface_samples(self, spacing_mm: float, top_z_mm: float | None = None,
+                        y_range_mm: tuple[float, float] | None = None) -> np.ndarray:
+        """(n, 3) points on the slit's two walls and bottom below ``top_z_mm`` (default the
+        body's top face), within ``y_range_mm`` (default its span), at most about
+        ``spacing_mm`` apart; the rounded corners are sampled on their straight walls'
+        extension, which lies outside the slit by at most ``round_mm`` (mm)."""
+        top = self.top_z_mm if top_z_mm is None else top_z_mm
+        y0, y1 = ((self.center_y_mm - self.span_mm / 2.0, self.center_y_mm + self.span_mm / 2.0)
+                  if y_range_mm is None else y_range_mm)
+        ys = np.linspace(y0, y1, max(int(np.ceil((y1 - y0) / spacing_mm)), 1) + 1)
+        zs = np.linspace(self.bottom_z_mm, top,
+                         max(int(np.ceil((top - self.bottom_z_mm) / spacing_mm)), 1) + 1)
+        hb = self.width_bottom_mm / 2.0
+        xs = np.linspace(-hb, hb, max(int(np.ceil(2 * hb / spacing_mm)), 1) + 1)
+        pts = []
+        for y in ys:
+            for z in zs:
+                h = self.half_width_at(float(z))
+                pts += [(self.center_x_mm - h, y, z), (self.center_x_mm + h, y, z)]
+            pts += [(self.center_x_mm + x, y, self.bottom_z_mm) for x in xs]
+        return np.array(pts, dtype=np.float64)
+

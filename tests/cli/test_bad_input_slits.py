@@ -45,7 +45,15 @@ _first = "  - kind: ".join([_rows[0], _rows[2].split("inlet:")[0] + "", _rows[1]
 _vent = edit(DEMO, "  clamp_bolt: M4\n", "  clamp_bolt: M4\n  vent_diameter_mm: 5\n")
 _tight = edit(DEMO, "    depth_mm: 3.5\n    width_mm: 12", "    depth_mm: 6.5\n    width_mm: 12")
 
+_bore = edit(DEMO, "  - kind: slits ", "  - kind: bore\n    diameter_mm: 2.4\n"
+             "    length_mm: 50\n    center_mm: [0, 2.5]\n  - kind: slits ")
+
 CASES = [
+    # A bore beside the row reaching z = 2.5 + 1.2 = 3.7, above the slits' bottom at 3.5.
+    ("slit-cutting-into-another-void", _bore, (
+        Expect("voids[2].depth_mm", line_of(_bore, "depth_mm: 3.5            #"),
+               "leaves 0.00 mm of silicone to voids[1] (the slit at x = 15 mm)", "3.5",
+               "a slit at least checks.min_wall_mm (1 mm) from voids[1]"),)),
     # 8 - 2.2 = 5.8 mm of top face between two slits; a 5 mm vent and 0.5 mm of mold on
     # each side need 6: width at most 8 - 5 - 1 = 2 mm.
     ("top-land-too-narrow-for-a-vent", _vent, (

@@ -28,7 +28,7 @@ from ..contracts import BodyKind, Entry
 from ..cuts import SlitCut
 from ..fields import Field, choice, number
 from ..membranes import Membrane
-from ..primitives import Primitive
+from ..primitives import Primitive, union_sdf
 from ..registry import void_kind
 from .chambers import Chambers
 
@@ -39,6 +39,9 @@ BODY_KINDS = ("bar",)
 #: ends on the body's own side face.
 THROUGH_MM = 1.0
 
+
+#: Spacing of the samples on a slit's surface when it is measured against other voids (mm).
+SAMPLE_SPACING_MM = 0.25
 
 #: Mold kept on either side of a vent's mouth on the top land between two slits (mm): a
 #: vent that reaches a slit would cut into the fin beside it.
@@ -178,6 +181,7 @@ class Slits:
                                f"({min_wall_mm:g} mm) above the feed channel (its top at "
                                f"z = {cz + row.feed_diameter_mm / 2.0:g} mm)", None,
                                self.depth_mm, f"at most {deepest:.3g} mm"))
+        out += self._other_voids(row, voids, body, min_wall_mm, path)
         axis, offset = parting
         if axis != "z":
             out.append(Problem("parting.axis", "does not let the slits' fins leave with a "
@@ -197,6 +201,33 @@ class Slits:
             out.append(Problem("process.kind", "does not cut slits (only the two-shell mold "
                                "carries their fins)", None, process_kind, "one-shot"))
         return out
+
+
+    def _other_voids(self, row: Chambers, voids: Sequence[object], body: BodyKind,
+                     min_wall_mm: float, path: str) -> list[Problem]:
+        """A slit closer than ``min_wall_mm`` to a cavity void other than its chamber row
+        (a bore beside the row, say): sampled on the slit's surface every
+        SAMPLE_SPACING_MM, so a wall may be up to half that thinner than measured."""
+        lo, hi = _body_bounds(body)
+        length = hi[0] - lo[0]
+        for j, v in enumerate(voids):
+            if v is row or not hasattr(v, "primitives"):
+                continue
+            prims = v.primitives(length)
+            if not prims:
+                continue
+            for c in self.cuts(body, voids):
+                pts = c.surface_samples(SAMPLE_SPACING_MM, y_range_mm=(
+                    max(lo[1], c.center_y_mm - c.span_mm / 2.0),
+                    min(hi[1], c.center_y_mm + c.span_mm / 2.0)))
+                wall = float(union_sdf(prims, pts).min())
+                if wall < min_wall_mm:
+                    return [Problem(f"{path}.depth_mm", f"leaves {max(wall, 0.0):.2f} mm of "
+                                    f"silicone to voids[{j}] (the slit at x = "
+                                    f"{c.center_x_mm:.3g} mm)", None, self.depth_mm,
+                                    f"a slit at least checks.min_wall_mm ({min_wall_mm:g} mm) "
+                                    f"from voids[{j}]: shallower, or move that void")]
+        return []
 
 
 def _row(voids: Sequence[object]) -> Chambers | None:
