@@ -89,9 +89,10 @@ CASES = [
     ("face-not-offered", _face, (
         _e(f"{SLITS}.face", "face: bottom", _face, "is not a known value", "'bottom'",
            "one of top"),)),
-    ("span-wider-than-the-body", _span, (
-        _e(f"{SLITS}.span_mm", "span_mm: 20", _span, "is wider than the body", "20.0",
-           "at most 16 mm"),)),
+    # The row's axis is y = 0 in a 16 mm bar: 8 - 1 mm of wall on each side.
+    ("span-past-the-side-walls", _span, (
+        _e(f"{SLITS}.span_mm", "span_mm: 20", _span, "leaves less than checks.min_wall_mm "
+           "(1 mm) beyond the slits' ends", "20.0", "at most 14 mm"),)),
     ("width-missing", _no_width, (
         _e(f"{SLITS}.width_mm", "- kind: slits", _no_width, "is required", None,
            "a number, 0.05 <= value <= 1000 mm"),)),

@@ -192,11 +192,13 @@ class Slits:
                                "must lie wholly in the upper shell)", None, self.depth_mm,
                                f"less than {hi[2] - offset:.3g} mm (the plane is at z = "
                                f"{offset:g} mm)"))
-        width = hi[1] - lo[1]
-        if self.span_mm is not None and self.span_mm > width:
-            out.append(Problem(f"{path}.span_mm", "is wider than the body", None,
-                               self.span_mm, f"at most {width:g} mm, or leave it out to cut "
-                               "through both side faces"))
+        # A slit that stops short of the side faces keeps the least wall beyond its ends.
+        room = min(hi[1] - row.center_mm[0], row.center_mm[0] - lo[1]) - min_wall_mm
+        if self.span_mm is not None and self.span_mm / 2.0 > room:
+            out.append(Problem(f"{path}.span_mm", "leaves less than checks.min_wall_mm "
+                               f"({min_wall_mm:g} mm) beyond the slits' ends", None,
+                               self.span_mm, f"at most {2.0 * room:.3g} mm, or leave it out "
+                               "to cut through both side faces"))
         if process_kind != "one-shot":
             out.append(Problem("process.kind", "does not cut slits (only the two-shell mold "
                                "carries their fins)", None, process_kind, "one-shot"))
