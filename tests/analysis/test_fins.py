@@ -133,3 +133,21 @@ def test_an_opening_over_a_slit_is_an_error_and_one_beside_it_is_not():
     assert f.severity is Severity.ERROR
     assert f.value == pytest.approx(0.6)
     assert fin_opening_findings([cut], [beside]) == []
+
+
+def test_a_motion_section_through_a_slit_has_no_silicone_in_it(bundled):
+    """The bending model reads its sections off the cast mesh (analysis/motion/sections.py),
+    so a section at a slit's centre line (x = 15 mm) is the bar's rounded rectangle less
+    the slit above z = 3.5 (16 mm wide: the bar's two top edges, rounded 2 mm, already
+    lack (1 - pi/4) 4 mm2 each) less the 2 mm feed channel; closed form, to the mesh chord
+    (0.5 %)."""
+    from soft_molds.analysis.motion.sections import cut_sections
+
+    ms = bundled("seedling-slit-finger")
+    cast = next(p for p in ms.parts if p.name == "cast").mesh
+    corner = (1 - math.pi / 4) * 2.0 ** 2
+    bar = 16 * 14 - 4 * corner
+    slit = 16 * 3.5 - 2 * corner
+    feed = math.pi * 1.0 ** 2
+    [s] = cut_sections(cast, np.array([15.0]), np.zeros(len(cast.faces), dtype=bool))
+    assert s.silicone_area_mm2 == pytest.approx(bar - slit - feed, rel=5e-3)
