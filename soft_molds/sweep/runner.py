@@ -39,7 +39,7 @@ def run_variant(recipe: Recipe, out_root: str, force: bool = False) -> Outcome:
                        out_dir=str(d), worker_pid=os.getpid(),
                        worker_rss_mb=_rss_mb(), worker_peak_mb=_peak_mb())
 
-    if recipe.process.multi_step:
+    if recipe.multi_step:
         return _run_steps(recipe, out_root, done, force)
     try:
         molds = build(recipe)
@@ -66,6 +66,7 @@ def _run_steps(recipe: Recipe, out_root: str, done: Callable[..., Outcome],
     """A variant of a multi-step process: every step built, checked (the process's own
     checks, e.g. :mod:`soft_molds.analysis.layered_checks`) and written unless an error
     refuses it."""
+    from ..analysis.melted import CoreMoldStep
     from ..export.manifest import motion_record
     from ..export.overmold import write_steps
     from ..pipeline import build_steps
@@ -82,7 +83,9 @@ def _run_steps(recipe: Recipe, out_root: str, done: Callable[..., Outcome],
         write_steps(m, out_root)
     except OSError as exc:
         return done(Status.FAILED, f"cannot write: {exc.strerror or exc}")
-    grams = [p.grams for s in m.steps for p in s.pour.portions]
+    # Silicone only: a core mold's pour is the core's wax or alloy.
+    grams = [p.grams for s in m.steps if not isinstance(s, CoreMoldStep)
+             for p in s.pour.portions]
     return done(Status.BUILT, "", findings,
                 report_figures(round(m.silicone_volume_mm3, 3), grams),
                 motion_figures(None if m.motion is None else motion_record(m.motion)))

@@ -1,4 +1,5 @@
-"""``drain``: a lost core's solution leaves the cast (``core.kind: dissolved``).
+"""``drain``: a lost core's solution or melt leaves the cast (``core.kind: dissolved`` or
+``melted``).
 
 Standing inlet-down, every void group must drain to its own socket without climbing
 (:mod:`soft_molds.analysis.drain`): a pocket whose only way out lies above it keeps the
@@ -47,6 +48,6 @@ def drain_check(ctx: CheckContext) -> CheckOutput:
             out.append(finding(
                 "drain", Severity.INFO, name,
                 f"standing on its {face} face, all {d.void_mm3:.0f} mm3 of the voids "
-                f"{name} forms drains to its socket: the dissolved core flushes out",
+                f"{name} forms drains to its socket: the {r.core.kind} core flushes out",
                 value=d.pocket_mm3, limit=0.0))
     return CheckOutput(tuple(out), tuple(results))

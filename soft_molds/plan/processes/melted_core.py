@@ -1,0 +1,59 @@
+"""Process ``melted-core`` (chosen by ``core.kind: melted``, not by ``process.kind``): the
+core is cast, in wax or a low-melting alloy (``core.material``), before the silicone.
+
+Two steps, in pour order:
+
+1. ``core-mold``: a void-less two-part shell whose cavity is the silicone step's core
+   (the same solid the one-shot mold would print and pull: voids, socket plug, print,
+   key and grip tab), parted on the silicone step's plane, with sprue and vents at the
+   core's own high points. Its cast is the core. The layout waits for the built core's
+   bounds (:func:`soft_molds.plan.layout.plan_layout` with ``bounds``).
+2. ``silicone``: the one-shot mold around that core, unchanged.
+
+Rules of its own: one core (one core mold; several inlets are refused) and the one-shot
+process (a layered or overmold recipe has no core of this kind).
+"""
+
+from __future__ import annotations
+
+from ...errors import Problem
+from ...recipe.model import Recipe
+from ..lines import LineOf
+from ..model import CastingStep, CoreMold
+from . import casting_process
+from .one_shot import steps as one_shot_steps
+
+#: The first step's name (its output folder is ``step-1-core-mold``).
+CORE_MOLD_STEP = "core-mold"
+
+
+@casting_process("melted-core")
+def steps(r: Recipe) -> tuple[CastingStep, ...]:
+    (pour,) = one_shot_steps(r)
+    (support,) = pour.core_supports
+    core_mold = CastingStep(CORE_MOLD_STEP, (), (), pour.parting, None,
+                            core_mold=CoreMold(support.part, r.core.material))
+    return (core_mold, pour)
+
+
+def melted_problems(r: Recipe, line: LineOf) -> list[Problem]:
+    """What a melted core cannot be: in a layered or overmold process, or more than one
+    core (each core would need a core mold of its own)."""
+    out: list[Problem] = []
+    if r.process.kind != "one-shot":
+        out.append(Problem("core.kind", f"melted goes with process.kind one-shot, not "
+                           f"{r.process.kind}", line("core.kind"), r.core.kind,
+                           "core.kind pulled (the process casts its own core), or "
+                           "process.kind one-shot"))
+    elif len(r.inlets) > 1:
+        out.append(Problem("core.kind", f"melted makes one core mold for one core; "
+                           f"{len(r.inlets)} inlets make {len(r.inlets)} cores",
+                           line("core.kind"), r.core.kind,
+                           "one inlet with a melted core, or core.kind pulled or dissolved"))
+    return out
+
+
+def process_of(r: Recipe) -> str:
+    """The casting process that plans ``r``: ``melted-core`` for a melted core, else the
+    recipe's ``process.kind``."""
+    return "melted-core" if r.core.melted else r.process.kind
