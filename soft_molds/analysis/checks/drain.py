@@ -2,16 +2,16 @@
 ``melted``).
 
 Standing inlet-down, every void group must drain to its own socket without climbing
-(:mod:`soft_molds.analysis.drain`): a pocket whose only way out lies above it keeps the
+(:mod:`soft_molds.plan.drain`): a pocket whose only way out lies above it keeps the
 dissolved core in it, an error naming its lowest point and volume. Nothing for a pulled
 core.
 """
 
 from __future__ import annotations
 
+from ...plan.drain import Drainage, drainage
 from ...recipe.feeds import core_groups
 from ..context import CheckContext
-from ..drain import Drainage, drainage
 from ..findings import Finding, Severity, finding
 from ..registry import CheckOutput, check
 from ..wording import point

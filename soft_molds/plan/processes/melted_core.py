@@ -36,9 +36,17 @@ def steps(r: Recipe) -> tuple[CastingStep, ...]:
     return (core_mold, pour)
 
 
+#: Undrained void volume below which a sampled pocket is grid noise at a void's rounded
+#: edge (mm3): a few cells of the drain grid (as the drain check takes it).
+NOISE_MM3 = 0.5
+
+
 def melted_problems(r: Recipe, line: LineOf) -> list[Problem]:
-    """What a melted core cannot be: in a layered or overmold process, or more than one
-    core (each core would need a core mold of its own)."""
+    """What a melted core cannot be: in a layered or overmold process, more than one core
+    (each core would need a core mold of its own), or a core whose melt has no way down
+    to its socket when the cast stands inlet-down (the drain rule,
+    :mod:`soft_molds.plan.drain`: a pocket whose only way out lies above it keeps its
+    wax or alloy)."""
     out: list[Problem] = []
     if r.process.kind != "one-shot":
         out.append(Problem("core.kind", f"melted goes with process.kind one-shot, not "
@@ -50,7 +58,25 @@ def melted_problems(r: Recipe, line: LineOf) -> list[Problem]:
                            f"{len(r.inlets)} inlets make {len(r.inlets)} cores",
                            line("core.kind"), r.core.kind,
                            "one inlet with a melted core, or core.kind pulled or dissolved"))
+    else:
+        out.extend(_drain_problems(r, line))
     return out
+
+
+def _drain_problems(r: Recipe, line: LineOf) -> list[Problem]:
+    from ..drain import drainage
+
+    inlet = r.inlets[0]
+    voids = [p for group in r.void_primitives() for p in group]
+    d = drainage(voids, r.sockets()[0], inlet.at_end)
+    if d.pocket_mm3 <= NOISE_MM3 or d.where_mm is None:
+        return []
+    x, y, z = d.where_mm
+    return [Problem("core.kind", f"melted leaves {d.pocket_mm3:.1f} mm3 of the core with no "
+                    f"inlet to drain through: standing inlet-down, the pocket whose lowest "
+                    f"point is near ({x:.1f}, {y:.1f}, {z:.1f}) mm drains only upward",
+                    line("core.kind"), r.core.kind,
+                    "voids with a way down to the socket, or core.kind pulled")]
 
 
 def process_of(r: Recipe) -> str:
