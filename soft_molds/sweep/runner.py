@@ -66,7 +66,6 @@ def _run_steps(recipe: Recipe, out_root: str, done: Callable[..., Outcome],
     """A variant of a multi-step process: every step built, checked (the process's own
     checks, e.g. :mod:`soft_molds.analysis.layered_checks`) and written unless an error
     refuses it."""
-    from ..analysis.melted import CoreMoldStep
     from ..export.manifest import motion_record
     from ..export.overmold import write_steps
     from ..pipeline import build_steps
@@ -83,9 +82,9 @@ def _run_steps(recipe: Recipe, out_root: str, done: Callable[..., Outcome],
         write_steps(m, out_root)
     except OSError as exc:
         return done(Status.FAILED, f"cannot write: {exc.strerror or exc}")
-    # Silicone only: a core mold's pour is the core's wax or alloy.
-    grams = [p.grams for s in m.steps if not isinstance(s, CoreMoldStep)
-             for p in s.pour.portions]
+    # Every portion to weigh, a core mold's wax or alloy too (as the stepped manifest's
+    # mixed_grams, which an up-to-date rerun reports).
+    grams = [p.grams for s in m.steps for p in s.pour.portions]
     return done(Status.BUILT, "", findings,
                 report_figures(round(m.silicone_volume_mm3, 3), grams),
                 motion_figures(None if m.motion is None else motion_record(m.motion)))
