@@ -384,6 +384,7 @@ def build_melted(recipe: Recipe, progress: Callable[[str], None] | None = None
     from .geometry import mold
     from .geometry.tessellate import tessellate_within
     from .plan.layout import layout_problems, plan_layout
+    from .plan.processes.melted_core import core_bounds
     from .plan.rules import printer_problems
 
     say = progress or (lambda _msg: None)
@@ -399,9 +400,10 @@ def build_melted(recipe: Recipe, progress: Callable[[str], None] | None = None
     recipe = silicone.recipe  # with a chosen parting plane
     core = silicone.part(cm.core_part)
     parting = silicone.plan.step.settled_parting
-    lo, hi = core.mesh.bbox_mm()
     lay = plan_layout(recipe, parting.axis, parting.offset_mm,
-                      (tuple(map(float, lo)), tuple(map(float, hi))))  # type: ignore[arg-type]
+                      core_bounds(recipe, silicone.plan.step, parting))
+    # Known before the build when the recipe fixes its plane (the plan refused it then);
+    # a plane chosen by the analysis is known only now.
     found = layout_problems(recipe, lay, lambda _p: None) + printer_problems(
         recipe, lay, lambda _p: None)
     if found:

@@ -3,7 +3,9 @@ line per problem naming the field and what is allowed, nothing written.
 
 Cases: a core kind that does not exist, a core material that does not exist, a melted
 core with two inlets (two cores, one core mold), a melted core in a layered process
-(which casts no core of this kind) and a melted core with no inlet to drain through: an
+(which casts no core of this kind), a printer that holds the silicone mold but not the
+core mold (156.7 mm long: the core's print, key and grip tab lie beyond the body; a
+110 mm bed's diagonal is 155.6 mm) and a melted core with no inlet to drain through: an
 inverted U (a bore up from the socket, a crossing chamber at x 52-58, a second bore back
 down from it to x = 20), whose far leg below the crossing keeps its melt, about
 pi 2^2 (52 - 20) = 402 mm3 (closed form of the cylinder) plus the grid's edge cells.
@@ -43,6 +45,9 @@ CASES = [
      "kind: melted", "core.kind", ("one core mold", "2 inlets")),
     ("layered", (ROOT / "recipes" / "seedling-layered-finger.yaml").read_text() + MELTED,
      "kind: melted", "core.kind", ("process.kind one-shot", "layered")),
+    ("core-mold-off-the-bed",
+     WAX + "printer:\n  bed_mm: [110, 110]\n  height_mm: 110\n", "bed_mm: [110, 110]",
+     "printer.bed_mm", ("shell-lower (156.733 x 74", "in the core mold")),
     ("no-drain", POCKET, "kind: melted", "core.kind",
      ("no inlet to drain through", "near (20.")),
 ]

@@ -189,3 +189,20 @@ def test_the_core_mold_casts_the_silicone_steps_core(melted):
     assert cast.brep_volume_mm3 == core.brep_volume_mm3
     assert np.array_equal(cast.mesh.vertices, core.mesh.vertices)
     assert melted.core_volume_mm3 == pytest.approx(manifold(core.mesh).volume(), rel=5e-3)
+
+
+def test_the_planned_core_box_is_the_built_cores_box(melted):
+    """The plan lays the core mold around the core's box from numbers (voids, print, key,
+    grip tab); the built core's mesh (vertices on the surface, so inside the true box by at
+    most a chord) fills it."""
+    from soft_molds.plan.processes.melted_core import core_bounds
+
+    step = melted.silicone.plan.step
+    lo, hi = core_bounds(melted.recipe, step, step.settled_parting)
+    mlo, mhi = melted.steps[0].part("cast").mesh.bbox_mm()
+    chord = melted.recipe.mesh.chord_mm
+    assert np.all(np.asarray(mlo) >= np.asarray(lo) - 1e-6)
+    assert np.all(np.asarray(mhi) <= np.asarray(hi) + 1e-6)
+    assert np.asarray(mlo) == pytest.approx(np.asarray(lo), abs=chord)
+    assert np.asarray(mhi) == pytest.approx(np.asarray(hi), abs=chord)
+    assert melted.plan.steps[0].layout.body_lo == pytest.approx(lo)

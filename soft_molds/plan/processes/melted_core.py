@@ -16,10 +16,16 @@ process (a layered or overmold recipe has no core of this kind).
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 from ...errors import Problem
+from ...recipe.contracts import bounds_of
 from ...recipe.model import Recipe
+from ..layout import Bounds, layout_problems, plan_layout
 from ..lines import LineOf
-from ..model import CastingStep, CoreMold
+from ..model import CastingStep, CoreMold, PartingPlane
+from ..rules import printer_problems
+from ..tags import core_tag
 from . import casting_process
 from .one_shot import steps as one_shot_steps
 
@@ -60,7 +66,38 @@ def melted_problems(r: Recipe, line: LineOf) -> list[Problem]:
                            "one inlet with a melted core, or core.kind pulled or dissolved"))
     else:
         out.extend(_drain_problems(r, line))
+        if not out and not r.parting.auto:
+            out.extend(_core_mold_problems(r, line))
     return out
+
+
+def core_bounds(r: Recipe, silicone: CastingStep, parting: PartingPlane) -> Bounds:
+    """The box of the core of the silicone step's one support (world mm): its voids and
+    socket plug, its print, its square key and the grip tab the labels put at the print's
+    outer end (which lies across the parting plane ``parting``)."""
+    (sup,) = silicone.core_supports
+    prims = tuple(p for group in r.void_primitives() for p in group) + (r.sockets()[0],)
+    boxes = [bounds_of(prims), sup.key_box]
+    cy, cz = sup.inlet.center_mm
+    rad = sup.radius_mm
+    x0, x1 = sorted((sup.start_x_mm, sup.end_x_mm))
+    boxes.append(((x0, cy - rad, cz - rad), (x1, cy + rad, cz + rad)))
+    tab = core_tag(r, sup, parting, silicone.core_supports)
+    if tab is not None:
+        boxes.append(tab)
+    lo = tuple(min(b[0][k] for b in boxes) for k in range(3))
+    hi = tuple(max(b[1][k] for b in boxes) for k in range(3))
+    return lo, hi  # type: ignore[return-value]
+
+
+def _core_mold_problems(r: Recipe, line: LineOf) -> list[Problem]:
+    """The rules of the mold for the core mold's block (laid around the core), known
+    before anything is built when the recipe fixes its parting plane."""
+    (silicone,) = one_shot_steps(r)
+    parting = silicone.settled_parting
+    lay = plan_layout(r, parting.axis, parting.offset_mm, core_bounds(r, silicone, parting))
+    found = layout_problems(r, lay, line) + printer_problems(r, lay, line)
+    return [replace(p, message=f"{p.message}, in the core mold") for p in found]
 
 
 def _drain_problems(r: Recipe, line: LineOf) -> list[Problem]:
