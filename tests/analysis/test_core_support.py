@@ -100,3 +100,9 @@ def test_a_heavy_core_on_one_thin_print_is_warned():
                                         "wax.yaml", "wax"),
                        "core", box_mesh((-20.0, -20.0, -20.0), (100.0, 20.0, 20.0)), 0)
     assert wax.floats and wax.overloaded
+
+
+def test_a_pulled_core_gets_no_support_finding(finger):
+    # The finger's core is printed in the mold's filament and pulled: nothing to weigh.
+    assert not [f for f in finger.findings if f.check == "core-support"]
+    assert finger.review.result(CoreSupports) is None
