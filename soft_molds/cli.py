@@ -192,7 +192,7 @@ def cmd_build(args: argparse.Namespace) -> int:
     status = 0
     for _, r in variants:
         t = time.perf_counter()
-        if r.process.multi_step:
+        if r.multi_step:
             status = max(status, _build_steps(r, args))
             continue
         try:
@@ -252,7 +252,8 @@ def _build_steps(r, args: argparse.Namespace) -> int:
     except SoftMoldsError as exc:
         print(f"error: {r.source}: {exc}", file=sys.stderr)
         return 1
-    print(f"{r.name} {r.label}: built in {time.perf_counter() - t:.1f} s ({r.process.kind}, "
+    kind = "melted core" if r.core.melted else r.process.kind
+    print(f"{r.name} {r.label}: built in {time.perf_counter() - t:.1f} s ({kind}, "
           f"{len(m.steps)} pours)")
     for s in m.steps:
         print(f"  pour {s.index} ({s.name}): {mm3_to_cm3(s.pour.cast_mm3):.2f} cm3, mix "
@@ -306,7 +307,7 @@ def _check_one(r, args: argparse.Namespace) -> str | None:
     from .pipeline import build, build_steps
 
     try:
-        if r.process.multi_step:
+        if r.multi_step:
             sm = build_steps(r)
             findings = tuple(sm.findings)
             parts = [p for s in sm.steps for p in s.parts]
@@ -664,7 +665,7 @@ def cmd_show(args: argparse.Namespace) -> int:
         print(f"error: {exc}", file=sys.stderr)
         return 1
     _, r = variants[0]
-    if r.process.multi_step:
+    if r.multi_step:
         print(f"error: {r.source}: show takes one-shot recipes for now", file=sys.stderr)
         return 1
     from .pipeline import build

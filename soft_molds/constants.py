@@ -38,3 +38,15 @@ ROLE_COLOURS = {"shell": "#9fb3c8", "core": "#f0a04b", "cast": "#6cc3a0"}
 """Colours of the parts by role (shell, core, cast), as hex RGB: the pictures of the mold
 (:mod:`soft_molds.export.assembly`), the preview page and the optional CAD viewer
 (:mod:`soft_molds.geometry.viewer`) colour a part alike wherever a person sees it."""
+
+CORE_DENSITY_G_CM3 = {"wax": 0.90, "low-melt-alloy": 9.5}
+"""Density of what a melted core (``core.kind: melted``) is cast in, by ``core.material``
+(g/cm3). Paraffin-type casting wax about 0.88-0.92 (from memory); a bismuth-based
+low-melting alloy (bismuth with lead, tin, indium or cadmium, melting between about 47 and
+140 deg C) about 9.4-9.7 (from memory). The recipe offers exactly these names; the support
+check weighs the core with them; the card and manifest state the mass from them."""
+
+DISSOLVED_CORE_DENSITY_G_CM3 = 1.23
+"""A dissolved core (``core.kind: dissolved``) printed solid in a water-soluble filament
+(polyvinyl alcohol): about 1.19-1.23 g/cm3 (from memory; the higher, as the core is printed
+at full infill)."""

@@ -18,8 +18,9 @@ from typing import TYPE_CHECKING
 
 from .analysis.integrity import check_mesh, require_ok
 from .analysis.layered import LayeredMoldSet
+from .analysis.melted import MeltedMoldSet
 from .analysis.overmold import OvermoldMoldSet
-from .errors import GeometryError, SoftMoldsError
+from .errors import GeometryError, RecipeError, SoftMoldsError
 from .meshdata import TriMesh
 from .moldset import MoldSet, Part
 from .plan import (
@@ -38,9 +39,11 @@ from .recipe.model import Recipe
 if TYPE_CHECKING:
     from .geometry.layered import LayerSolids
 
+Box = tuple[tuple[float, float, float], tuple[float, float, float]]
+
 #: What a multi-step build returns: its ``steps`` (each with ``index``, ``name``, ``parts``,
 #: ``pour`` and ``folder``), ``findings`` and ``recipe``.
-StepwiseMoldSet = LayeredMoldSet | OvermoldMoldSet
+StepwiseMoldSet = LayeredMoldSet | OvermoldMoldSet | MeltedMoldSet
 
 
 @contextmanager
@@ -66,6 +69,15 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     :class:`MeshIntegrityError` when a part's mesh is not a closed, consistent volume within
     0.5 % of its BRep volume.
     """
+    if recipe.multi_step:
+        raise ValueError(f"{recipe.name}: a recipe cast in steps ({recipe.process.kind}, "
+                         f"core {recipe.core.kind}) is built by build_steps")
+    return _build_one_shot(plan_mold(recipe), progress)
+
+
+def _build_one_shot(plan: MoldPlan, progress: Callable[[str], None] | None = None
+                    ) -> MoldSet:
+    """The one-shot mold set of a plan of one step (see :func:`build`)."""
     from .analysis.casting import plan_casting
     from .analysis.context import CheckContext
     from .analysis.highpoints import plan_openings
@@ -74,15 +86,12 @@ def build(recipe: Recipe, progress: Callable[[str], None] | None = None) -> Mold
     from .geometry import mold
     from .geometry.tessellate import tessellate_within
 
-    if recipe.process.multi_step:
-        raise ValueError(f"{recipe.name}: a {recipe.process.kind} recipe is built by "
-                         "build_steps")
+    recipe = plan.recipe
     say = progress or (lambda _msg: None)
     timings: dict[str, float] = {}
     label = recipe.label
     chord, angle = recipe.mesh.chord_mm, recipe.mesh.angle_deg
 
-    plan = plan_mold(recipe)
     say("body")
     with _stage(timings, "body", label):
         body = mold.build_body(recipe)
@@ -355,9 +364,106 @@ def with_openings_of(plan: MoldPlan, step_name: str, openings: tuple[Opening, ..
     return plan.with_step(replace(step, openings=tuple(openings)))
 
 
+def build_melted(recipe: Recipe, progress: Callable[[str], None] | None = None
+                 ) -> MeltedMoldSet:
+    """Plan, build, tessellate and check both steps of a melted-core recipe (see
+    :mod:`soft_molds.plan.processes.melted_core`): the silicone step first (the one-shot
+    build, whose core is the core mold's cavity), then the core mold around that core.
+    Raises like :func:`build`."""
+    from .analysis.findings import worst_first
+    from .analysis.highpoints import plan_openings
+    from .analysis.layered_checks import part_name, printing_findings, recipe_printer
+    from .analysis.melted import (
+        CoreMoldStep,
+        SiliconeStep,
+        core_mold_findings,
+        core_quantities,
+    )
+    from .analysis.overmold import releases
+    from .analysis.printability import plan_print
+    from .geometry import mold
+    from .geometry.tessellate import tessellate_within
+    from .plan.layout import layout_problems, plan_layout
+    from .plan.processes.melted_core import core_bounds
+    from .plan.rules import printer_problems
+
+    say = progress or (lambda _msg: None)
+    label = recipe.label
+    chord, angle = recipe.mesh.chord_mm, recipe.mesh.angle_deg
+    plan = plan_mold(recipe)
+    core_step, pour = plan.steps
+    cm = core_step.core_mold
+    assert cm is not None
+    say(f"{pour.name}: the one-shot mold around the core")
+    silicone = _build_one_shot(replace(plan, steps=(pour,)), progress)
+    timings = dict(silicone.timings_s)
+    recipe = silicone.recipe  # with a chosen parting plane
+    core = silicone.part(cm.core_part)
+    parting = silicone.plan.step.settled_parting
+    lay = plan_layout(recipe, parting.axis, parting.offset_mm,
+                      core_bounds(recipe, silicone.plan.step, parting))
+    # Known before the build when the recipe fixes its plane (the plan refused it then);
+    # a plane chosen by the analysis is known only now.
+    found = layout_problems(recipe, lay, lambda _p: None) + printer_problems(
+        recipe, lay, lambda _p: None)
+    if found:
+        raise RecipeError(found, recipe.source or "recipe")
+    step = replace(core_step, parting=parting, layout=lay)
+    say(f"{step.name}: sprue, vents and shells")
+    with _stage(timings, "features", label):
+        step = replace(step, openings=plan_openings(core.mesh, parting.up,
+                                                    recipe.mold.sprue_diameter_mm / 2.0,
+                                                    recipe.mold.vent_diameter_mm / 2.0))
+    vol = core.brep_volume_mm3
+    cast = mold.CastSolids(core.brep, (), core.brep,
+                           {"body": vol, "void_set": 0.0, "cast": vol})
+    with _stage(timings, "shell", label):
+        shells = mold.build_shells(recipe, step, cast)
+    solids = {"shell-lower": shells.lower, "shell-upper": shells.upper, "cast": core.brep}
+    parts = []
+    for spec in step.parts:
+        solid = solids[spec.name]
+        name = f"{step.name} {spec.name}"
+        with _stage(timings, "tessellate", label):
+            v = vol if spec.role is Role.CAST else k_volume(solid)
+            mesh = core.mesh if spec.role is Role.CAST else tessellate_within(
+                solid, chord, angle, name, v)
+            report = check_mesh(mesh, name, v)
+        require_ok(report, label)
+        parts.append(Part(spec.name, str(spec.role), solid, mesh, v, spec.pull_dir, report))
+    say("manufacturability checks")
+    with _stage(timings, "analysis", label):
+        rel = releases([p for p in parts if p.role != Role.CAST], core.mesh)
+        first = CoreMoldStep(1, step.name, cm, tuple(parts),
+                             core_quantities(recipe, vol, shells.fill_volume_mm3),
+                             step.openings, rel, shells.fill_volume_mm3)
+        printer = recipe_printer(recipe)
+        # The label cut into the core's grip tab stands as ribs in the upper shell's cavity:
+        # thin like any label's, and skipped by the wall check like them.
+        boxes: dict[str, list[Box]] = {}
+        for lab in shells.labels:
+            boxes.setdefault(lab.part, []).append(lab.box)
+        for lab in silicone.labels:
+            if lab.part == cm.core_part:
+                boxes.setdefault("shell-upper", []).append(lab.box)
+        plans = ({p.name: plan_print(p.mesh, part_name(first, p.name), printer,
+                                     ignore_boxes=boxes.get(p.name, ()))
+                  for p in parts if p.role != Role.CAST},)
+        findings = worst_first((*printing_findings(plans[0], printer),
+                                *core_mold_findings(first),
+                                *(replace(f, part=f"{pour.name} {f.part}")
+                                  for f in silicone.findings)))
+    done = replace(plan, recipe=recipe, steps=(step, silicone.plan.step))
+    return MeltedMoldSet(done, (first, SiliconeStep(2, pour.name, silicone)), timings,
+                         findings, plans)
+
+
 def build_steps(recipe: Recipe, progress: Callable[[str], None] | None = None
                 ) -> StepwiseMoldSet:
-    """Build a recipe of a multi-step process (``process.multi_step``) by its kind."""
+    """Build a recipe cast in steps (``Recipe.multi_step``: a multi-step process or a
+    melted core) by its kind."""
+    if recipe.core.melted:
+        return build_melted(recipe, progress)
     if recipe.process.layered:
         return build_layered(recipe, progress)
     if recipe.process.kind == "overmold":

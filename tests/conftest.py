@@ -53,11 +53,15 @@ def twister():
 
 def _process(path: Path) -> str:
     """The casting process of a recipe file. Recipes of a multi-step process (layered,
-    overmold) build into a different result (steps): the tests of the one-shot mold set
-    leave them to tests/*/test_layered*.py and tests/*/test_overmold*.py."""
+    overmold, a melted core) build into a different result (steps): the tests of the
+    one-shot mold set leave them to tests/*/test_layered*.py, tests/*/test_overmold*.py
+    and tests/*/test_melted*.py."""
     import yaml
 
     doc = yaml.safe_load(path.read_text())
+    core = doc.get("core")
+    if isinstance(core, dict) and core.get("kind") == "melted":
+        return "melted-core"  # a core mold, then the one-shot mold: built in steps
     block = doc.get("process")
     return str(block.get("kind", "one-shot")) if isinstance(block, dict) else "one-shot"
 

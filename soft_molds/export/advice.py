@@ -43,6 +43,12 @@ ADVICE: dict[str, str] = {
         "inlet-down: its only way out lies above it. Join the pocket's low end to the "
         "socket (a feed passage along the bottom of the chambers), turn the chamber so it "
         "opens downward, or add a drain hole there and plug it with silicone after."),
+    "core-support": (
+        "The liquid silicone lifts a core lighter than itself and lets a heavier one sink; "
+        "held by its one print, the core bends it. Shorten the core's reach from the "
+        "socket, widen the socket (a thicker print), cast it in a stiffer material "
+        "(`core.material`), or hold the far end (a thin silicone spacer of the same grade "
+        "under or over the core, cast in with it)."),
     "core-slenderness": (
         "The core print is long and thin between supports and may bend or break when cast "
         "or pulled. Make the void wider or shorter, or accept the risk after a trial "

@@ -17,6 +17,7 @@ from pathlib import Path
 
 from ..analysis.findings import Finding, verdict
 from ..analysis.layered import LayeredMoldSet, LayerStep
+from ..analysis.melted import CoreMoldStep, MeltedMoldSet
 from ..analysis.overmold import OvermoldMoldSet, OvermoldStep
 from ..analysis.plates import PlateItem, posed_vertices
 from ..analysis.printability import PrintPlan
@@ -107,7 +108,8 @@ def step_files(s: LayerStep, label: str) -> dict[str, bytes]:
     return out
 
 
-def step_print_files(m: LayeredMoldSet | OvermoldMoldSet, s: LayerStep | OvermoldStep,
+def step_print_files(m: LayeredMoldSet | OvermoldMoldSet | MeltedMoldSet,
+                     s: LayerStep | OvermoldStep | CoreMoldStep,
                      plans: Mapping[str, PrintPlan]) -> dict[str, bytes]:
     """For CAD and the printer: the STEP (AP214, mm, pour orientation) of every printed
     part of ``s`` and its print plates (3MF and a top-view PNG per bed, each part in the
@@ -191,11 +193,13 @@ def _motion_lines(m: LayeredMoldSet) -> list[str]:
             ""]
 
 
-def print_lines(m: LayeredMoldSet | OvermoldMoldSet, files: Mapping[str, bytes]) -> list[str]:
+def print_lines(m: LayeredMoldSet | OvermoldMoldSet | MeltedMoldSet,
+                files: Mapping[str, bytes]) -> list[str]:
     """Per step, each printed part with the face it is printed on and where its plates
     are (the STEP beside it for CAD)."""
     out = []
-    steps: Sequence[LayerStep | OvermoldStep] = m.steps
+    steps: Sequence[LayerStep | OvermoldStep | CoreMoldStep] = (
+        m.steps[:1] if isinstance(m, MeltedMoldSet) else m.steps)
     for s, plans in zip(steps, m.print_plans):
         for name, plan in plans.items():
             d = ", ".join(f"{c:g}" for c in (round(x, 3) + 0.0 for x in plan.down))

@@ -16,6 +16,7 @@ from pathlib import Path
 
 from ..analysis.findings import verdict
 from ..analysis.layered import LayeredMoldSet
+from ..analysis.melted import MeltedMoldSet
 from ..analysis.overmold import WRAP_TURNS_PER_END, OvermoldMoldSet, OvermoldStep
 from ..units import mm3_to_cm3
 from ..version import __version__
@@ -155,11 +156,15 @@ def write_overmold(m: OvermoldMoldSet, root: str | os.PathLike[str] = "out") -> 
     return write_file_set(directory, encode_overmold(m), last=MANIFEST_NAME, subfolders=True)
 
 
-def write_steps(m: LayeredMoldSet | OvermoldMoldSet, root: str | os.PathLike[str] = "out"
-                ) -> list[Path]:
+def write_steps(m: LayeredMoldSet | OvermoldMoldSet | MeltedMoldSet,
+                root: str | os.PathLike[str] = "out") -> list[Path]:
     """Write a multi-step build by its process."""
     if isinstance(m, OvermoldMoldSet):
         return write_overmold(m, root)
+    if isinstance(m, MeltedMoldSet):
+        from .melted import write_melted
+
+        return write_melted(m, root)
     from .layered import write_layered
 
     return write_layered(m, root)

@@ -25,7 +25,8 @@ from .typedjson import JsonValue, ShapeError, from_json
 #: The ``format`` word of a stepped manifest, per process (a one-shot manifest has none).
 STEPPED_FORMAT = "soft-molds layered manifest"
 OVERMOLD_FORMAT = "soft-molds overmold manifest"
-STEPPED_FORMATS = (STEPPED_FORMAT, OVERMOLD_FORMAT)
+MELTED_FORMAT = "soft-molds melted-core manifest"
+STEPPED_FORMATS = (STEPPED_FORMAT, OVERMOLD_FORMAT, MELTED_FORMAT)
 
 
 @dataclass(frozen=True)

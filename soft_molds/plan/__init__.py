@@ -42,6 +42,12 @@ def plan_problems(r: Recipe) -> list[Problem]:
     out = frame_problems(r, line)
     if out:
         return out
+    if r.core.melted:
+        from .processes.melted_core import melted_problems
+
+        melted = melted_problems(r, line)
+        if melted:
+            return melted
     own = own_problems(r.process.kind)
     if own is not None:
         return own(r, line)
@@ -96,7 +102,9 @@ def plan_mold(r: Recipe) -> MoldPlan:
     problems = plan_problems(r)
     if problems:
         raise RecipeError(problems, r.source or "recipe")
-    return MoldPlan(r, r.params_sha256(), steps_of(r.process.kind, r))
+    from .processes.melted_core import process_of
+
+    return MoldPlan(r, r.params_sha256(), steps_of(process_of(r), r))
 
 
 def with_parting(plan: MoldPlan, ranked: tuple[PlaneScore, ...]) -> MoldPlan:

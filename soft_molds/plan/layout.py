@@ -70,11 +70,17 @@ def block_band_mm(r: Recipe) -> float:
     return r.mold.wall_mm + r.mold.flange_mm
 
 
-def plan_layout(r: Recipe, axis: str, offset_mm: float) -> Layout:
+Bounds = tuple[tuple[float, float, float], tuple[float, float, float]]
+
+
+def plan_layout(r: Recipe, axis: str, offset_mm: float, bounds: Bounds | None = None
+                ) -> Layout:
     """The block and its features for a parting plane normal to ``axis`` ("y" or "z") at
-    ``offset_mm``."""
+    ``offset_mm``, laid around the recipe's body or around ``bounds`` (world lo, hi, mm:
+    a solid that is the cast in its stead, as a melted core in its core mold; no socket
+    enters that block's faces)."""
     frame = Frame(2 if axis == "z" else 1)
-    body_lo, body_hi = r.body_bounds()
+    body_lo, body_hi = r.body_bounds() if bounds is None else bounds
     m = r.mold
     band = block_band_mm(r)
     lo = [body_lo[0] - band, 0.0, 0.0]
@@ -101,7 +107,8 @@ def plan_layout(r: Recipe, axis: str, offset_mm: float) -> Layout:
     # The far end face's notch sits where an end-face core print passes: that face keeps
     # none when a socket enters it.
     far = (hi[0], (v0 + v1) / 2, 2 * NOTCH_DEPTH_MM, NOTCH_LENGTH_MM)  # centred
-    notches = (side,) if any(i.at_end for i in r.inlets) else (far, side)
+    end_socket = bounds is None and any(i.at_end for i in r.inlets)
+    notches = (side,) if end_socket else (far, side)
     return Layout(frame, offset_mm, (lo[0], lo[1], lo[2]), (hi[0], hi[1], hi[2]), body_lo,
                   body_hi, bolts, keys, notches)
 

@@ -401,6 +401,17 @@ class Overmold:
 
 
 @dataclass(frozen=True)
+class CoreMold:
+    """The first step of a melted core (``core.kind: melted``): a two-part shell around
+    the core of the silicone step's core support ``core_part`` (the same solid, print,
+    key and grip tab included), void-less, parted on the silicone step's plane; the core
+    is cast in ``material`` (``core.material``). Its cast part is the core itself."""
+
+    core_part: str
+    material: str
+
+
+@dataclass(frozen=True)
 class CastingStep:
     """One pour: the mold that is closed around the core(s) and filled.
 
@@ -418,6 +429,8 @@ class CastingStep:
     layer: Layer | None = None
     #: Set for the steps of the overmold process (two shells about the rod core each).
     overmold: Overmold | None = None
+    #: Set for the core mold of a melted core (two shells, no core, the core as the cast).
+    core_mold: CoreMold | None = None
 
     @property
     def parts(self) -> tuple[PartPlan, ...]:
@@ -431,6 +444,10 @@ class CastingStep:
             return (PartPlan("tray", Role.SHELL, down), *bridge,
                     PartPlan("cast", Role.CAST, None))
         p = self.settled_parting
+        if self.core_mold is not None:
+            return (PartPlan("shell-lower", Role.SHELL, p.down),
+                    PartPlan("shell-upper", Role.SHELL, p.up),
+                    PartPlan("cast", Role.CAST, None))
         if self.overmold is not None and self.overmold.kind is OvermoldKind.SKIN:
             # The core stays in the bladder from the first step: nothing new to print.
             return (PartPlan("shell-lower", Role.SHELL, p.down),

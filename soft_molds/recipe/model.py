@@ -221,14 +221,26 @@ class Process:
 @dataclass(frozen=True)
 class CoreSettings:
     """What becomes of the core after the cure: ``kind`` "pulled" (drawn out through its
-    socket) or "dissolved" (printed in a water-soluble filament and dissolved out through
-    the socket: a lost core, never pulled)."""
+    socket), "dissolved" (printed in a water-soluble filament and dissolved out through
+    the socket) or "melted" (cast in ``material``, "wax" or "low-melt-alloy", in a core
+    mold the tool also makes, and melted out through the socket). Dissolved and melted
+    cores are lost cores, never pulled."""
 
     kind: str = "pulled"
+    material: str = "wax"
 
     @property
     def lost(self) -> bool:
         return self.kind != "pulled"
+
+    @property
+    def melted(self) -> bool:
+        return self.kind == "melted"
+
+    def params(self) -> dict[str, Any]:
+        """The echo of a lost core: the material only where it is read (a melted core), so
+        a dissolved core hashes as before the material existed."""
+        return {"kind": self.kind, **({"material": self.material} if self.melted else {})}
 
 
 #: The process fields each multi-step kind reads.
@@ -342,8 +354,14 @@ class Recipe:
             # or without a process block.
             **({"process": self.process.params()} if self.process.multi_step else {}),
             # Likewise a pulled core (the default) hashes as before the core block existed.
-            **({"core": asdict(self.core)} if self.core.lost else {}),
+            **({"core": self.core.params()} if self.core.lost else {}),
         }
+
+    @property
+    def multi_step(self) -> bool:
+        """Built and written step by step: a multi-step process, or a melted core (its core
+        mold is a step of its own before the silicone's)."""
+        return self.process.multi_step or self.core.melted
 
     def params_sha256(self) -> str:
         canon = json.dumps(self.params(), sort_keys=True, separators=(",", ":"))

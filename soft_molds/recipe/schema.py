@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from ..constants import CORE_DENSITY_G_CM3
 from .fields import Field, choice, integer, number, pair, text
 from .materials import DENSITY_G_CM3, ELONGATION_PCT, GRADE_NAMES, MODULUS_MPA, SHORE
 
@@ -183,9 +184,13 @@ PROCESS_FIELDS: tuple[Field, ...] = (
 
 CORE_FIELDS: tuple[Field, ...] = (
     choice("kind", "what becomes of the core after the cure: pulled (drawn out through its "
-           "tube socket) or dissolved (printed in a water-soluble filament and dissolved "
-           "out through the socket, for voids too wide to pull through it)",
-           ("pulled", "dissolved"), "pulled"),
+           "tube socket), dissolved (printed in a water-soluble filament and dissolved "
+           "out through the socket, for voids too wide to pull through it) or melted (cast "
+           "in core.material in a core mold made as a first step, then melted out through "
+           "the socket)", ("pulled", "dissolved", "melted"), "pulled"),
+    choice("material", "what a melted core is cast in: wax (paraffin-type casting wax) or "
+           "low-melt-alloy (a bismuth-based alloy melting below boiling water); read only "
+           "with kind melted", tuple(CORE_DENSITY_G_CM3), "wax"),
 )
 
 BLOCKS: dict[str, tuple[Field, ...]] = {

@@ -80,7 +80,7 @@ def _refusal(checks: Sequence[Finding], refused: bool) -> str:
 def earlier_outcome(t: Task, root: str | os.PathLike[str], force: bool) -> Outcome | None:
     """The outcome of a task an earlier run finished (up to date; or refused, when that
     run forced an error-level variant and this one does not), else None: build it."""
-    if t.recipe.process.kind != "one-shot":
+    if t.recipe.multi_step:
         return _earlier_stepped(t, root, force)
     man = up_to_date(root, t.recipe)
     if man is None:

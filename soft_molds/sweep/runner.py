@@ -39,7 +39,7 @@ def run_variant(recipe: Recipe, out_root: str, force: bool = False) -> Outcome:
                        out_dir=str(d), worker_pid=os.getpid(),
                        worker_rss_mb=_rss_mb(), worker_peak_mb=_peak_mb())
 
-    if recipe.process.multi_step:
+    if recipe.multi_step:
         return _run_steps(recipe, out_root, done, force)
     try:
         molds = build(recipe)
@@ -82,6 +82,8 @@ def _run_steps(recipe: Recipe, out_root: str, done: Callable[..., Outcome],
         write_steps(m, out_root)
     except OSError as exc:
         return done(Status.FAILED, f"cannot write: {exc.strerror or exc}")
+    # Every portion to weigh, a core mold's wax or alloy too (as the stepped manifest's
+    # mixed_grams, which an up-to-date rerun reports).
     grams = [p.grams for s in m.steps for p in s.pour.portions]
     return done(Status.BUILT, "", findings,
                 report_figures(round(m.silicone_volume_mm3, 3), grams),

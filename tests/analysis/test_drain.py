@@ -16,8 +16,8 @@ from conftest import built_variant
 from recipe_text import edit
 
 from soft_molds import build
-from soft_molds.analysis.drain import drainage
 from soft_molds.export.formats import output_formats
+from soft_molds.plan.drain import drainage
 from soft_molds.recipe import recipe_from_text
 from soft_molds.recipe.primitives import RoundedBox, RoundedRod
 

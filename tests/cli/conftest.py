@@ -14,4 +14,6 @@ def no_cad_work(monkeypatch):
     def refuse(*_args, **_kwargs):
         raise AssertionError("the build stage ran for a recipe that should have been refused")
 
-    monkeypatch.setattr(soft_molds.pipeline, "build", refuse)
+    # Every entry point of the build stage: one-shot and step by step.
+    for name in ("build", "build_steps", "build_layered", "build_overmold", "build_melted"):
+        monkeypatch.setattr(soft_molds.pipeline, name, refuse)

@@ -47,7 +47,7 @@ def _digests_of(recipe, molds=None) -> dict[str, str]:
     from soft_molds.pipeline import build_steps
 
     with tempfile.TemporaryDirectory() as tmp:
-        if recipe.process.multi_step:
+        if recipe.multi_step:
             write_steps(molds if molds is not None else build_steps(recipe), tmp)
         else:
             (molds if molds is not None else build(recipe)).export(tmp)

@@ -40,7 +40,8 @@ def core_draft(ctx: CheckContext) -> CheckOutput:
             "core-draft", Severity.INFO, name,
             f"{rep.locked_area_mm2:.0f} mm2 of the void surface faces against {whose} "
             f"pull ({sign}); least draft {rep.min_draft_deg:.1f} deg; "
-            + ("no matter: the core is dissolved, not pulled" if ctx.recipe.core.lost else
+            + (f"no matter: the core is {ctx.recipe.core.kind}, not pulled"
+               if ctx.recipe.core.lost else
                "the silicone stretches over it (see core-extraction)"),
             value=rep.locked_area_mm2, limit=None,
             where=rep.locked_where_mm))

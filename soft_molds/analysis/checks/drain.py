@@ -1,16 +1,17 @@
-"""``drain``: a lost core's solution leaves the cast (``core.kind: dissolved``).
+"""``drain``: a lost core's solution or melt leaves the cast (``core.kind: dissolved`` or
+``melted``).
 
 Standing inlet-down, every void group must drain to its own socket without climbing
-(:mod:`soft_molds.analysis.drain`): a pocket whose only way out lies above it keeps the
+(:mod:`soft_molds.plan.drain`): a pocket whose only way out lies above it keeps the
 dissolved core in it, an error naming its lowest point and volume. Nothing for a pulled
 core.
 """
 
 from __future__ import annotations
 
+from ...plan.drain import Drainage, drainage
 from ...recipe.feeds import core_groups
 from ..context import CheckContext
-from ..drain import Drainage, drainage
 from ..findings import Finding, Severity, finding
 from ..registry import CheckOutput, check
 from ..wording import point
@@ -47,6 +48,6 @@ def drain_check(ctx: CheckContext) -> CheckOutput:
             out.append(finding(
                 "drain", Severity.INFO, name,
                 f"standing on its {face} face, all {d.void_mm3:.0f} mm3 of the voids "
-                f"{name} forms drains to its socket: the dissolved core flushes out",
+                f"{name} forms drains to its socket: the {r.core.kind} core flushes out",
                 value=d.pocket_mm3, limit=0.0))
     return CheckOutput(tuple(out), tuple(results))

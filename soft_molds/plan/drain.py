@@ -1,6 +1,7 @@
-"""Whether a lost core's solution drains: with the part standing inlet-down, every bit of
-the void set must reach the tube socket without climbing. A pocket whose only way out lies
-above it keeps its liquid (and the dissolved core with it).
+"""Whether a lost core's solution or melt drains: with the part standing inlet-down, every
+bit of the void set must reach the tube socket without climbing. A pocket whose only way
+out lies above it keeps its liquid (and the dissolved or melted core with it). The plan
+refuses a melted core with such a pocket; the drain check reports it for a dissolved one.
 
 Method: the voids are sampled on a grid of cubes (``cell_mm``; a cube is void when the
 recipe primitives' exact distance at its centre is negative). The height is the distance
