@@ -80,3 +80,57 @@ def test_ring_frame_touches_the_inlet_plane_on_its_outer_face_with_its_axis_alon
         ((22.0, 0.0), 12.0, 15.0)
     # The feed runs from the inlet plane to the channel's middle radius: 22 - 13.5.
     assert (feed.axis, feed.start_mm, feed.length_mm) == ("x", 0.0, 8.5)
+
+
+def _socket_in_ring_mm3(big: float, r_sock: float, depth: float) -> float:
+    """The part of a round socket (radius r_sock, along +x from the plane x = 0 to depth)
+    inside a ring whose outer face (radius big) touches that plane: at each (y, z) of the
+    mouth the face stands big - sqrt(big^2 - y^2) back from the plane. Integrated by
+    scipy's adaptive quadrature (an independent numerical reference)."""
+    from scipy.integrate import dblquad
+
+    val, _ = dblquad(lambda z, y: depth - (big - math.sqrt(big * big - y * y)),
+                     -r_sock, r_sock, lambda y: -math.sqrt(r_sock ** 2 - y * y),
+                     lambda y: math.sqrt(r_sock ** 2 - y * y))
+    return val
+
+
+def _feed_between_mm3(r_channel: float, r_feed: float, x0: float) -> float:
+    """The radial feed (radius r_feed along x) between the socket floor x0 and the
+    channel's outer face, a cylinder of radius r_channel about the ring's axis at
+    x = big: at each (y, z) the face lies at big - sqrt(r_channel^2 - y^2); measured from
+    the ring's outer face at x = 0 (scipy quadrature)."""
+    from scipy.integrate import dblquad
+
+    big = 22.0
+    val, _ = dblquad(lambda z, y: (big - math.sqrt(r_channel ** 2 - y * y)) - x0,
+                     -r_feed, r_feed, lambda y: -math.sqrt(r_feed ** 2 - y * y),
+                     lambda y: math.sqrt(r_feed ** 2 - y * y))
+    return val
+
+
+def test_demo_cuff_body_voids_and_cast_match_pappus_and_quadrature():
+    from conftest import built
+
+    cuff = built("stem-ring-cuff")
+    # recipes/stem-ring-cuff.yaml: ring 20/44 x 14 rounded 1.5; channel 12..15 x 10
+    # rounded 0.5; socket r 2, 4 deep; feed r 1.
+    body = pappus_ring_volume(10.0, 22.0, 14.0, 1.5)
+    voids = (pappus_ring_volume(12.0, 15.0, 10.0, 0.5) + _socket_in_ring_mm3(22.0, 2.0, 4.0)
+             + _feed_between_mm3(15.0, 1.0, 4.0))
+    assert close(cuff.volumes_mm3["body"], body, 0.001)
+    assert close(cuff.void_volume_mm3, voids, 0.001)
+    cast = cuff.part("cast")
+    assert close(cast.brep_volume_mm3, body - voids, 0.001)
+    assert close(float(trimesh.Trimesh(cast.mesh.vertices, cast.mesh.faces).volume),
+                 body - voids, 0.005)
+
+
+def test_demo_cuff_gets_no_motion_curve_and_a_note_saying_why():
+    from conftest import built
+
+    cuff = built("stem-ring-cuff")
+    assert cuff.motion is None
+    assert cuff.review is not None
+    notes = [f for f in cuff.review.findings if f.check == "motion"]
+    assert len(notes) == 1 and "no long axis" in notes[0].message

@@ -36,6 +36,9 @@ class Ring:
     #: The outer face meets the inlet plane x = 0 along a line, not a flat: a socket's mouth
     #: lies on the curved face, a little inside that plane.
     CURVED_INLET_FACE: ClassVar[bool] = True
+    #: No long axis: the motion models (beams along x) do not apply; the ``motion`` check
+    #: says so.
+    LONG_AXIS: ClassVar[bool] = False
 
     FIELDS: ClassVar[tuple[Field, ...]] = (
         number("inner_diameter_mm", "diameter of the bore"),
