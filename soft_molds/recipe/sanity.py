@@ -161,6 +161,27 @@ def _inlet_problems(out: list[Problem], r: Recipe, j: int, body: tuple[Primitive
     _wall_problems(out, path, line(path) or line(""), body, sock_samples, min_wall)
 
 
+def mouth_depth_mm(r: Recipe, j: int) -> float:
+    """How deep (mm, from its face's plane) the mouth of socket ``j`` reaches on a curved
+    inlet face (the body kind's ``CURVED_INLET_FACE``): the face's greatest standback at
+    the rim of socket radius + least wall, plus the least wall (or the socket's depth, if
+    less). Within it the socket's side meets the face at a feather edge that no wall
+    check can hold to the least wall; the checks leave it out, as on a flat face they
+    leave out the face itself. 0 for a flat face."""
+    if not getattr(type(r.body), "CURVED_INLET_FACE", False):
+        return 0.0
+    inlet = r.inlets[j]
+    cy, cz = inlet.center_mm
+    reach = inlet.socket_diameter_mm / 2.0 + r.checks.min_wall_mm
+    ring = np.linspace(0.0, 2 * np.pi, 73)[:-1]
+    rim = np.stack([np.full_like(ring, inlet.face_x_mm(r.body_length_mm)),
+                    cy + reach * np.cos(ring), cz + reach * np.sin(ring)], axis=1)
+    inward = -1.0 if inlet.at_end else 1.0
+    sag = float(_face_sag_mm(r.body_primitives(), rim, inward,
+                             inlet.socket_depth_mm / 2.0).max())
+    return sag + min(r.checks.min_wall_mm, inlet.socket_depth_mm)
+
+
 def _face_sag_mm(body: tuple[Primitive, ...], rim: np.ndarray, inward: float,
                  limit_mm: float) -> np.ndarray:
     """How far (mm, along ``inward`` x) the body's surface stands back from each of the
