@@ -52,7 +52,7 @@ SEED = 20261203
 #: family adds its variants block. Sizes keep the corpus near 300 mutants, about 30 s of
 #: validation on one core.
 BASES = ("seedling-finger", "tray-pusher", "plug-bellows", "stem-cushion", "wrist-twister",
-         "twin-row-finger", "finger-family")
+         "twin-row-finger", "finger-family", "stem-ring-cuff")
 #: Bases on which every change of the menu is tried on the body's first number and the
 #: first void's first whole number.
 FULL_MENU = ("seedling-finger", "tray-pusher")

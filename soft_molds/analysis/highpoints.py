@@ -62,6 +62,9 @@ class HighPoint:
     persistence_mm: float
     plateau_triangles_mm: np.ndarray = field(compare=False, repr=False,
                                              default_factory=lambda: np.empty((0, 3, 3)))
+    #: True for a ring-shaped plateau (a ring's top face), whose centroid lies off it:
+    #: ``position_mm`` is then the vertex nearest that centroid, on the plateau's inner rim.
+    ring_shaped: bool = field(default=False, compare=False)
 
 
 def _unit(up: Vec3) -> np.ndarray:
@@ -323,6 +326,7 @@ def find_high_points(
         pts = s.pos[ranks]
         # A plateau with area: its centroid, on its surface. A pointed peak: the peak itself.
         centre = _centre_on(s, facets, u) if flat else s.pos[peak]
+        ring_shaped = centre is None
         if centre is None:
             i = _pick(pts, np.linalg.norm(pts - pts.mean(axis=0), axis=1), largest=False)
             centre = pts[i]
@@ -341,6 +345,7 @@ def find_high_points(
                 plateau_mm=plateau,
                 persistence_mm=persistence,
                 plateau_triangles_mm=tris,
+                ring_shaped=ring_shaped,
             )
         )
     found.sort(key=lambda hp: (-hp.height_mm, hp.position_mm))
@@ -431,12 +436,18 @@ def plan_openings(
     hps = find_high_points(mesh, u, persistence_mm, plateau_mm)
     if not hps:
         return ()
-    openings = [Opening(OpeningKind.SPRUE, hps[0].position_mm, float(sprue_radius_mm))]
+    sprue_at = hps[0].position_mm
+    if hps[0].ring_shaped:
+        # On a ring-shaped plateau the high point lies on the inner rim: a sprue mouth
+        # there would hang over the edge (a knife edge of mold), so move it onto the plateau.
+        q = np.round(_mouth_point(hps[0], np.asarray(sprue_at), sprue_radius_mm, u), 6) + 0.0
+        sprue_at = (float(q[0]), float(q[1]), float(q[2]))
+    openings = [Opening(OpeningKind.SPRUE, sprue_at, float(sprue_radius_mm))]
     # At most one vent per high point from the first pass and MAX_EXTRA_VENTS from the second:
     # preallocate the arrays the reach tests run on instead of rebuilding them every time.
     centres = np.empty(((MAX_EXTRA_VENTS + 1) * len(hps) + 1, 3))
     radii = np.empty((MAX_EXTRA_VENTS + 1) * len(hps) + 1)
-    centres[0], radii[0] = hps[0].position_mm, sprue_radius_mm
+    centres[0], radii[0] = sprue_at, sprue_radius_mm
 
     def add(where: tuple[float, float, float]) -> None:
         centres[len(openings)], radii[len(openings)] = where, vent_radius_mm

@@ -11,6 +11,7 @@ over facets is the plate's thickness to within the tessellation's chord error.
 
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
@@ -91,12 +92,16 @@ def _samples(cast: Surface, idx: np.ndarray, spacing_mm: float
 
 
 def wall_map(cast: Surface, void_facets: np.ndarray, min_wall_mm: float,
-             spacing_mm: float = 1.0) -> WallMap:
+             spacing_mm: float = 1.0,
+             skip: Callable[[np.ndarray], np.ndarray] | None = None) -> WallMap:
     """Wall thickness behind the void facets of ``cast`` (sampled at most ``spacing_mm``
-    apart) and the thinnest wall of each kind. ``thickness_mm`` holds one value per
-    sample."""
+    apart; ``skip`` maps sample points (n, 3) to those left out) and the thinnest wall of
+    each kind. ``thickness_mm`` holds one value per sample."""
     idx = np.flatnonzero(void_facets)
     c, n, areas = _samples(cast, idx, spacing_mm)
+    if skip is not None:
+        keep = ~skip(c)
+        c, n, areas = c[keep], n[keep], areas[keep]
     t, hit = thickness_along_normals(cast.caster, c, n)
     ok = np.isfinite(t) & (hit >= 0)
     ends_on_void = np.zeros(len(c), dtype=bool)

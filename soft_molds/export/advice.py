@@ -38,6 +38,10 @@ ADVICE: dict[str, str] = {
         "core-n leaves through inlets[n-1]), the chambers narrower, or use a stretchier grade "
         "(`material.grade`, or your measured `material.elongation_pct`); or print the core "
         "in a water-soluble filament and dissolve it out (`core.kind: dissolved`)."),
+    "motion": (
+        "No bend or stretch is predicted for this body: the motion estimates take the cast "
+        "for a beam along its length, and a ring has none. Measure the squeeze on a cast "
+        "part, raising the pressure slowly up to the working pressure only."),
     "drain": (
         "A dissolved core's solution cannot leave that pocket when the part stands "
         "inlet-down: its only way out lies above it. Join the pocket's low end to the "

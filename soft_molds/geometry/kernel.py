@@ -30,6 +30,7 @@ from ..recipe.primitives import (
     ProfileLine,
     Revolved,
     RoundedBox,
+    RoundedRing,
     RoundedRod,
 )
 
@@ -345,7 +346,39 @@ def build_primitive(p: Primitive, part: str) -> cq.Shape:
         return _revolved(p, part)
     if isinstance(p, Extruded):
         return _extruded(p, part)
+    if isinstance(p, RoundedRing):
+        return _rounded_ring(p, part)
     raise GeometryError("build primitive", f"unknown primitive {type(p).__name__}", part)
+
+
+def _rounded_ring(p: RoundedRing, part: str) -> cq.Shape:
+    """Revolve the rounded (radius, z) rectangle about the ring's axis: drawn in the local
+    XY plane (X the radius, Y the height) and turned about Y, then stood up with Y along
+    world z; checked against the closed-form volume (Pappus)."""
+    f = p.round_mm
+    r0, r1, h = p.inner_radius_mm, p.outer_radius_mm, p.height_mm
+    s = math.sqrt(0.5)
+    wp = cq.Workplane("XY").moveTo(r0 + f, 0.0)
+    if f > 0.0:
+        wp = wp.lineTo(r1 - f, 0.0).threePointArc((r1 - f + f * s, f - f * s), (r1, f))
+        wp = wp.lineTo(r1, h - f).threePointArc((r1 - f + f * s, h - f + f * s), (r1 - f, h))
+        wp = wp.lineTo(r0 + f, h).threePointArc((r0 + f - f * s, h - f + f * s), (r0, h - f))
+        wp = wp.lineTo(r0, f).threePointArc((r0 + f - f * s, f - f * s), (r0 + f, 0.0))
+        wire = wp.wire()
+    else:
+        wire = wp.lineTo(r1, 0.0).lineTo(r1, h).lineTo(r0, h).close()
+    try:
+        made = wire.revolve(360, (0, 0, 0), (0, 1, 0)).val()
+    except Exception as exc:  # OCCT raises bare Standard_Failure subclasses
+        raise GeometryError("revolve ring", f"the kernel failed: {exc}", part) from exc
+    if not isinstance(made, cq.Shape):
+        raise GeometryError("revolve ring", "the kernel returned no solid", part)
+    # Local Y -> world z; the seam (the profile's meridian) turned off both planes through
+    # the axis along x and y, where a parting plane may run (as SEAM_TURN_DEG).
+    made = made.rotate(cq.Vector(0, 0, 0), cq.Vector(1, 0, 0), 90)
+    made = made.rotate(cq.Vector(0, 0, 0), cq.Vector(0, 0, 1), SEAM_TURN_DEG)
+    made = made.translate(cq.Vector(p.center_mm[0], p.center_mm[1], p.z0_mm))
+    return checked(made, part, "revolve ring", volume_mm3=p.volume_mm3(), rel_tol=1e-6)
 
 
 def fuse(shapes: Sequence[cq.Shape], part: str, step: str,
@@ -373,7 +406,7 @@ def fuse(shapes: Sequence[cq.Shape], part: str, step: str,
 
 def cut(base: cq.Shape, tools: Sequence[cq.Shape], part: str, step: str,
         solids: int | None = 1, volume_mm3: float | None = None,
-        clean: bool = True) -> cq.Shape:
+        clean: bool = True, rel_tol: float = VOLUME_REL_TOL) -> cq.Shape:
     """Cut every tool from ``base`` in one boolean. ``clean=False`` skips merging coplanar
     faces afterwards: right for a last cut of many small faces (a label), where merging
     costs more than the cut and gains nothing."""
@@ -384,9 +417,10 @@ def cut(base: cq.Shape, tools: Sequence[cq.Shape], part: str, step: str,
     except Exception as exc:
         raise GeometryError(step, f"cut failed: {exc}", part) from exc
     if not clean:
-        return checked(raw, part, step, solids, volume_mm3)
+        return checked(raw, part, step, solids, volume_mm3, rel_tol=rel_tol)
     shape, valid, vol = _clean(raw)
-    return checked(shape, part, step, solids, volume_mm3, known_valid=valid, known_volume=vol)
+    return checked(shape, part, step, solids, volume_mm3, rel_tol=rel_tol, known_valid=valid,
+                   known_volume=vol)
 
 
 def _clean(raw: cq.Shape) -> tuple[cq.Shape, bool, float | None]:

@@ -206,8 +206,22 @@ def build_cast(r: Recipe, step: CastingStep, body: k.Shape | None = None) -> Cas
         vols["void_set"] += void_vol
         vols[sup.part] = k.volume(core)
         cores.append(core)
+    rel_tol = k.VOLUME_REL_TOL
+    if getattr(type(r.body), "CURVED_INLET_FACE", False):
+        # The kernel's default volume integration misses up to ~2e-5 of a ring whose
+        # curved face a socket crosses (measured: 0.17 mm3 of 14 109; integrated at 1e-9
+        # the cast matches the closed form to 1e-8), so the cut is held to 1e-4.
+        rel_tol = 1e-4
+        # A socket entering a curved face (a ring's outer face, touching the plane x = 0
+        # along a line) starts on that plane: the sliver between plane and face is mold,
+        # not cast, and leaves the void set.
+        for sock in sockets:
+            sliver = k.cut(k.build_primitive(sock, "voids"), [body], "voids",
+                           "socket outside a curved face", solids=None)
+            vols["void_set"] -= k.volume(sliver)
     what = "cut voids from body" if len(cores) == 1 else "cut every core's voids from body"
-    cast = k.cut(body, cores, "cast", what, volume_mm3=vols["body"] - vols["void_set"])
+    cast = k.cut(body, cores, "cast", what, volume_mm3=vols["body"] - vols["void_set"],
+                 rel_tol=rel_tol)
     vols["cast"] = k.volume(cast)
     return CastSolids(body, tuple(cores), cast, vols)
 

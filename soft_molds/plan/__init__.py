@@ -26,7 +26,13 @@ from .model import (
     Role,
 )
 from .processes import own_problems, steps_of
-from .rules import first_rule_broken, frame_problems, parting_problems, printer_problems
+from .rules import (
+    first_rule_broken,
+    frame_problems,
+    lost_core_problems,
+    parting_problems,
+    printer_problems,
+)
 
 __all__ = ["CastingStep", "ChosenBy", "CoreSupport", "Inlet", "Layout", "MoldPlan", "Opening",
            "OpeningKind", "PartPlan", "PartingPlane", "PlaneScore", "Role", "plan_mold",
@@ -39,7 +45,7 @@ DEFAULT_PROCESS = "one-shot"
 def plan_problems(r: Recipe) -> list[Problem]:
     """Every rule of the mold the recipe breaks (empty when it can be planned)."""
     line = line_finder(r.lines)
-    out = frame_problems(r, line)
+    out = frame_problems(r, line) + lost_core_problems(r, line)
     if out:
         return out
     if r.core.melted:

@@ -29,6 +29,23 @@ def frame_problems(r: Recipe, line: LineOf) -> list[Problem]:
     return []
 
 
+def lost_core_problems(r: Recipe, line: LineOf) -> list[Problem]:
+    """A void whose core cannot be drawn out through its socket (a closed channel all
+    round a ring: a void kind's ``lost_core_reason()`` says why) on a pulled core."""
+    if r.core.lost:
+        return []
+    out = []
+    for i, v in enumerate(r.voids):
+        why = getattr(v, "lost_core_reason", lambda: None)()
+        if why is not None:
+            out.append(Problem(f"voids[{i}]", f"{why}; it needs a lost core", line("core.kind")
+                               or line(f"voids[{i}]"), r.core.kind,
+                               "core.kind: dissolved (printed in a water-soluble filament, "
+                               "dissolved and flushed out through the socket after the "
+                               "cure; a melted core is not offered yet)"))
+    return out
+
+
 def parting_problems(r: Recipe, axis: str, offset_mm: float, line: LineOf) -> list[Problem]:
     """The plane normal to ``axis`` at ``offset_mm``: through the socket axis and the widest
     section, and the mold-block rules of the layout it gives."""

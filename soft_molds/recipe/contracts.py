@@ -23,6 +23,11 @@ A void placed by default (a chamber row without ``start_mm``) may also provide
 the void with that default settled so that it starts no nearer the inlet face than
 ``clear_from_mm`` (the socket floor plus ``checks.min_wall_mm``); a void the recipe places
 itself is returned unchanged.
+
+A body without a long axis (``ring``) says so with class attributes: ``CURVED_INLET_FACE``
+(the socket enters a curved face touching x = 0) and ``LONG_AXIS = False`` (no motion
+model applies). A void whose core cannot be drawn out through its socket provides
+``lost_core_reason()`` (why, or None); the plan then asks for a lost core.
 """
 
 from __future__ import annotations

@@ -681,7 +681,138 @@ def _scale_interval(e: Extruded, lo: float, hi: float, u: float) -> tuple[float,
     return (e.start_mm + f_lo * e.length_mm, e.start_mm + f_hi * e.length_mm)
 
 
-Primitive = RoundedBox | RoundedRod | Revolved | Extruded
+# ---- RoundedRing: a rounded rectangle in (radius, z) turned about an axis along z --------
+
+#: Distance from a rounding's centre to the centroid of the spandrel it removes (square
+#: corner less the quarter disc), along each of the corner's two edges, as a fraction of
+#: the rounding radius: 2 / (3 (4 - pi)) (the spandrel's first moment over its area).
+SPANDREL_CENTROID = 2.0 / (3.0 * (4.0 - np.pi))
+
+
+@dataclass(frozen=True)
+class RoundedRing:
+    """An annulus about an axis parallel to z through ``center_mm`` (x, y): at every
+    angle its section is the rectangle radius in [inner_radius_mm, outer_radius_mm],
+    z in [z0_mm, z0_mm + height_mm], its four corners rounded by ``round_mm`` (mm)."""
+
+    center_mm: tuple[float, float]
+    inner_radius_mm: float
+    outer_radius_mm: float
+    z0_mm: float
+    height_mm: float
+    round_mm: float = 0.0
+
+    def _section(self, p: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """(radius from the axis, z) of points ``p`` (n, 3)."""
+        rho = np.hypot(p[:, 0] - self.center_mm[0], p[:, 1] - self.center_mm[1])
+        return rho, p[:, 2]
+
+    def sdf(self, p: np.ndarray) -> np.ndarray:
+        """Exact signed distance (mm): the nearest surface point of a solid of revolution
+        lies in the query point's own meridian half plane, so it is the 2-D distance to the
+        rounded rectangle in (radius, z)."""
+        rho, z = self._section(np.asarray(p, dtype=np.float64).reshape(-1, 3))
+        f = self.round_mm
+        mid_r = (self.inner_radius_mm + self.outer_radius_mm) / 2.0
+        half_r = (self.outer_radius_mm - self.inner_radius_mm) / 2.0
+        d = np.stack([np.abs(rho - mid_r) - (half_r - f),
+                      np.abs(z - (self.z0_mm + self.height_mm / 2.0))
+                      - (self.height_mm / 2.0 - f)], axis=1)
+        outside = np.linalg.norm(np.maximum(d, 0.0), axis=1)
+        inside = np.minimum(d.max(axis=1), 0.0)
+        return outside + inside - f
+
+    def bounds(self) -> tuple[np.ndarray, np.ndarray]:
+        cx, cy = self.center_mm
+        r = self.outer_radius_mm
+        return (np.array([cx - r, cy - r, self.z0_mm]),
+                np.array([cx + r, cy + r, self.z0_mm + self.height_mm]))
+
+    def section_area_mm2(self) -> float:
+        """Area of the rounded rectangle (mm2): each rounding removes (1 - pi/4) f^2."""
+        f = self.round_mm
+        return ((self.outer_radius_mm - self.inner_radius_mm) * self.height_mm
+                - 4.0 * (1.0 - np.pi / 4.0) * f * f)
+
+    def volume_mm3(self) -> float:
+        """Closed form by Pappus's centroid theorem: pi (R^2 - r^2) h less, for each
+        rounding, its spandrel's area (1 - pi/4) f^2 times 2 pi its centroid's radius (the
+        outer two at R - f + c f, the inner two at r + f - c f, c = SPANDREL_CENTROID)."""
+        f, big, small = self.round_mm, self.outer_radius_mm, self.inner_radius_mm
+        spandrel = (1.0 - np.pi / 4.0) * f * f
+        c = SPANDREL_CENTROID * f
+        radii = 2.0 * ((big - f + c) + (small + f - c))
+        return float(np.pi * (big * big - small * small) * self.height_mm
+                     - 2.0 * np.pi * spandrel * radii)
+
+    def _outline(self, spacing_mm: float) -> np.ndarray:
+        """Points (radius, z) on the rounded rectangle, at most ``spacing_mm`` apart."""
+        f = self.round_mm
+        r0, r1 = self.inner_radius_mm, self.outer_radius_mm
+        z0, z1 = self.z0_mm, self.z0_mm + self.height_mm
+        corners = ((r1 - f, z1 - f, 0.0), (r0 + f, z1 - f, 0.5 * np.pi),
+                   (r0 + f, z0 + f, np.pi), (r1 - f, z0 + f, 1.5 * np.pi))
+        out = []
+        for k, (cr, cz, a0) in enumerate(corners):
+            n = max(2, int(np.ceil(0.5 * np.pi * f / spacing_mm)) + 1) if f > 0 else 1
+            ang = a0 + np.linspace(0.0, 0.5 * np.pi, n)
+            arc = np.stack([cr + f * np.cos(ang), cz + f * np.sin(ang)], axis=1)
+            nr, nz, _ = corners[(k + 1) % 4]
+            end = np.array([nr + f * np.cos(a0 + 0.5 * np.pi),
+                            nz + f * np.sin(a0 + 0.5 * np.pi)])
+            start = arc[-1]
+            m = max(2, int(np.ceil(float(np.linalg.norm(end - start)) / spacing_mm)) + 1)
+            line = start + np.linspace(0.0, 1.0, m)[:, None] * (end - start)
+            out += [arc, line]
+        return np.concatenate(out)
+
+    def surface_samples(self, spacing_mm: float) -> np.ndarray:
+        """Points on the surface: the section's outline sampled at most ``spacing_mm``
+        apart, each sample turned round the axis with at most that spacing."""
+        cx, cy = self.center_mm
+        out = []
+        for rho, z in self._outline(spacing_mm):
+            k = max(3, int(np.ceil(2 * np.pi * rho / spacing_mm)))
+            ang = np.arange(k) * 2 * np.pi / k
+            out.append(np.stack([cx + rho * np.cos(ang), cy + rho * np.sin(ang),
+                                 np.full(k, z)], axis=1))
+        return np.concatenate(out)
+
+    def _outer_at(self, z: float) -> float:
+        """Outer radius (mm) at height ``z`` (the roundings pull it in near the flat
+        faces); -inf off the ring's height."""
+        z0, h, f = self.z0_mm, self.height_mm, self.round_mm
+        if z < z0 or z > z0 + h:
+            return -np.inf
+        e = max(z0 + f - z, z - (z0 + h - f), 0.0)
+        return self.outer_radius_mm - (f - float(np.sqrt(max(f * f - e * e, 0.0)))
+                                       if e > 0.0 else 0.0)
+
+    def section_extent(self, v: int, w: int, t: float) -> tuple[float, float] | None:
+        """Extent (lo, hi) along ``v`` of the section by ``coord[w] = t`` (None: the plane
+        misses), over the third axis. Exact: across the axis (w = z) the outer circle at
+        that height; a plane along the axis at distance a from it reaches every z where the
+        outer radius is at least a, and across, the chord of the outer circle."""
+        if w == 2:
+            big = self._outer_at(t)
+            if big == -np.inf:
+                return None
+            c = self.center_mm[v]
+            return (c - big, c + big)
+        a = abs(t - self.center_mm[w])
+        big, f = self.outer_radius_mm, self.round_mm
+        if a > big:
+            return None
+        if v == 2:
+            d = a - (big - f)
+            short = f - float(np.sqrt(max(f * f - d * d, 0.0))) if d > 0.0 else 0.0
+            return (self.z0_mm + short, self.z0_mm + self.height_mm - short)
+        half = float(np.sqrt(big * big - a * a))
+        c = self.center_mm[v]
+        return (c - half, c + half)
+
+
+Primitive = RoundedBox | RoundedRod | Revolved | Extruded | RoundedRing
 
 
 def union_sdf(prims: tuple[Primitive, ...], p: np.ndarray) -> np.ndarray:

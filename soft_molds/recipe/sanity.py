@@ -122,15 +122,27 @@ def _inlet_problems(out: list[Problem], r: Recipe, j: int, body: tuple[Primitive
     rim = np.stack([np.full_like(ring, face_x + inward * delta),
                     cy + (sock_r + min_wall) * np.cos(ring),
                     cz + (sock_r + min_wall) * np.sin(ring)], axis=1)
+    # A curved inlet face (a ring's outer face, touching the plane x = 0 along a line)
+    # stands back from the plane at the rim: the mouth counts as on the face when the rim
+    # meets it within half the socket's depth, so the tube still grips the other half.
+    curved = bool(getattr(type(r.body), "CURVED_INLET_FACE", False))
+    on_plane = rim - np.array([inward * delta, 0.0, 0.0])
+    sags = (_face_sag_mm(body, on_plane, inward, inlet.socket_depth_mm / 2.0) if curved
+            else np.zeros(len(rim)))
+    sag = float(sags.max())
+    rim[:, 0] += inward * sags
+    # Past a sloping face, delta along x is delta x the slope's cosine from it: the rim
+    # points of a curved face are tested by being inside at all.
     d = union_sdf(body, rim)
-    if np.any(d > -delta + 1e-7):
+    if np.any(d > (0.0 if curved else -delta + 1e-7)) or sag > inlet.socket_depth_mm / 2.0:
         # When the socket follows the first void, point at the line the user wrote.
         given = f"{path}.center_mm" in lines
         follows = "" if given else " (derived from voids[0].center_mm)"
         where = line(f"{path}.center_mm") if given else (
             lines.get("voids[0].center_mm") or line(path) or line("voids[0]"))
         face = (f"the flat end face (x = {face_x:g})" if inlet.at_end
-                else "the flat inlet face (x = 0)")
+                else "the curved outer face touching x = 0 (within half the socket depth)"
+                if curved else "the flat inlet face (x = 0)")
         out.append(Problem(f"{path}.center_mm", f"puts the socket off {face} "
                            f"or closer than checks.min_wall_mm = {min_wall:g} mm to its edge"
                            + follows, where,
@@ -145,8 +157,47 @@ def _inlet_problems(out: list[Problem], r: Recipe, j: int, body: tuple[Primitive
     # socket's side is checked as well as its floor, since a body may narrow away from
     # the face (a tapered section).
     depth_in = inward * (sock_samples[:, 0] - face_x)
-    sock_samples = sock_samples[depth_in >= min(min_wall, inlet.socket_depth_mm) - EPS]
+    sock_samples = sock_samples[depth_in >= sag + min(min_wall, inlet.socket_depth_mm) - EPS]
     _wall_problems(out, path, line(path) or line(""), body, sock_samples, min_wall)
+
+
+def mouth_depth_mm(r: Recipe, j: int) -> float:
+    """How deep (mm, from its face's plane) the mouth of socket ``j`` reaches on a curved
+    inlet face (the body kind's ``CURVED_INLET_FACE``): the face's greatest standback at
+    the rim of socket radius + least wall, plus the least wall (or the socket's depth, if
+    less). Within it the socket's side meets the face at a feather edge that no wall
+    check can hold to the least wall; the checks leave it out, as on a flat face they
+    leave out the face itself. 0 for a flat face."""
+    if not getattr(type(r.body), "CURVED_INLET_FACE", False):
+        return 0.0
+    inlet = r.inlets[j]
+    cy, cz = inlet.center_mm
+    reach = inlet.socket_diameter_mm / 2.0 + r.checks.min_wall_mm
+    ring = np.linspace(0.0, 2 * np.pi, 73)[:-1]
+    rim = np.stack([np.full_like(ring, inlet.face_x_mm(r.body_length_mm)),
+                    cy + reach * np.cos(ring), cz + reach * np.sin(ring)], axis=1)
+    inward = -1.0 if inlet.at_end else 1.0
+    sag = float(_face_sag_mm(r.body_primitives(), rim, inward,
+                             inlet.socket_depth_mm / 2.0).max())
+    return sag + min(r.checks.min_wall_mm, inlet.socket_depth_mm)
+
+
+def _face_sag_mm(body: tuple[Primitive, ...], rim: np.ndarray, inward: float,
+                 limit_mm: float) -> np.ndarray:
+    """How far (mm, along ``inward`` x) the body's surface stands back from each of the
+    rim points' plane: each point marched along x by its distance to the body (sphere
+    tracing; the distance is exact outside a union); beyond ``limit_mm`` where a point
+    does not meet the body within it."""
+    p = rim.copy()
+    t = np.zeros(len(p))
+    for _ in range(200):
+        d = union_sdf(body, p)
+        step = np.maximum(d, 0.0)
+        if float(step.max()) < 1e-9 or float(t.max()) > limit_mm:
+            break
+        t += step
+        p[:, 0] += inward * step
+    return np.where(t <= limit_mm, t, limit_mm + 1e-3)
 
 
 def _socket_pair_problems(out: list[Problem], r: Recipe,

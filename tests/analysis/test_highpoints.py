@@ -298,3 +298,21 @@ def test_rounded_void_corners_and_thin_plates_trap_no_air():
     hps = find_high_points(mesh, UP)
     assert len(hps) == 1
     assert hps[0].height_mm == pytest.approx(BLOCK[2])
+
+
+def test_sprue_on_a_ring_top_lies_wholly_on_the_flat_annulus():
+    # A ring (trimesh.creation.annulus, radii 10 and 22, 14 tall, axis z): its top face
+    # is a ring-shaped plateau whose centroid lies in the bore. The sprue's mouth must lie
+    # on the flat between the radii (plan distance from the axis in [10 + r, 22 - r]),
+    # not hang over the bore's edge where a knife edge of mold would be left.
+    ring = from_trimesh(trimesh.creation.annulus(r_min=10.0, r_max=22.0, height=14.0,
+                                                 sections=128))
+    sprue_r = 3.0
+    ops = plan_openings(ring, UP, sprue_radius_mm=sprue_r, vent_radius_mm=1.0)
+    sprue = ops[0]
+    rho = math.hypot(sprue.center_mm[0], sprue.center_mm[1])
+    # The 128-gons' corners lie on the circles, their edges' middles cos(pi / 128) of the
+    # radius from the axis (elementary geometry).
+    outer_flat = 22.0 * math.cos(math.pi / 128)
+    assert 10.0 + sprue_r - 1e-6 <= rho <= outer_flat - sprue_r + 1e-6
+    assert sprue.center_mm[2] == pytest.approx(7.0, abs=1e-6)

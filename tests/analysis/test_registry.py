@@ -32,7 +32,7 @@ from soft_molds.analysis.registry import (
 from soft_molds.analysis.review import run_checks
 
 BUILT_IN = ("draft", "core-draft", "core-extraction", "drain", "core-support", "silicone-wall",
-            "trapped-air", "build-volume", "fin-print", "fin-draft", "pressure")
+            "trapped-air", "build-volume", "fin-print", "fin-draft", "pressure", "motion")
 
 
 def _context(m) -> CheckContext:
@@ -91,7 +91,7 @@ def test_a_check_in_a_new_module_of_the_checks_package_is_picked_up(ctx, tmp_pat
     try:
         keys = [c.names[0] for c in registered_checks()]
         # order 650 puts it between the print checks (600) and pressure (700)
-        assert keys == [*BUILT_IN[:-1], "opening-count", "pressure"]
+        assert keys == [*BUILT_IN[:-2], "opening-count", "pressure", "motion"]
         rev = run_checks(ctx)
         (f,) = [f for f in rev.findings if f.check == "opening-count"]
         assert f.value == float(len(ctx.openings)) > 0

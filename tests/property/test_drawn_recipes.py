@@ -87,6 +87,8 @@ BODY_WINDOWS = {
     # The outline's own sizes are drawn by outline below (a polygon only through the
     # mutant corpus: random points mostly cross themselves).
     "section": {"length_mm": (20, 80), "tip_scale": (0.6, 1.0)},
+    # The outer diameter is drawn by body below, a radial wall of 6 to 14 mm round the bore.
+    "ring": {"inner_diameter_mm": (8, 30), "height_mm": (8, 20), "edge_round_mm": (0, 2)},
 }
 #: Section outlines drawn, and the (width, height) window of each in mm.
 SECTION_OUTLINES = ("rounded-rectangle", "circle", "ellipse", "half-round")
@@ -108,6 +110,13 @@ def body(draw, kind: str) -> tuple[dict, tuple[float, float, float]]:
         return out, (out["length_mm"], out["diameter_mm"], out["diameter_mm"])
     if kind == "section":
         return section(draw, out, fields)
+    if kind == "ring":
+        wall = number(draw, declared(fields, "outer_diameter_mm"), 6, 14)
+        out["outer_diameter_mm"] = out["inner_diameter_mm"] + 2 * wall
+        d = out["outer_diameter_mm"]
+        # (length, width, height) of a ring: its outer diameter across x and y; the void
+        # strategy reads the radial wall from length - inner diameter.
+        return out, (d, d, out["height_mm"])
     inner = out["inner_radius_mm"]
     out["outer_radius_mm"] = number(draw, declared(fields, "outer_radius_mm"), inner + 3,
                                     inner + 6)
@@ -144,6 +153,18 @@ def void(draw, kind: str, size: tuple[float, float, float]) -> dict:
     out: dict = {"kind": kind}
     if kind == "bellows":
         out["wall_mm"] = number(draw, declared(fields, "wall_mm"), 1.0, 2.5)
+        return out
+    if kind == "annulus":
+        # size carries the ring's outer diameter; the radial wall is at least 6 mm (body).
+        wall = number(draw, declared(fields, "wall_mm"), 1.0, 2.5)
+        out.update(wall_mm=wall,
+                   depth_mm=number(draw, declared(fields, "depth_mm"), 1.5, 3.0),
+                   height_mm=number(draw, declared(fields, "height_mm"), 3.0,
+                                    max(3.0, height - 4)),
+                   feed_diameter_mm=number(draw, declared(fields, "feed_diameter_mm"), 1.0,
+                                           2.0),
+                   corner_round_mm=number(draw, declared(fields, "corner_round_mm"), 0.0,
+                                          0.5))
         return out
     if kind == "bore":
         d = number(draw, declared(fields, "diameter_mm"), 2.0, max(2.0, min(width, height) - 4))
@@ -202,7 +223,7 @@ def block(draw, name: str) -> dict:
 
 PAIRS = (("bar", "chambers"), ("bar", "bore"), ("rod", "bore"), ("rod", "chambers"),
          ("revolved", "bellows"), ("section", "chambers"), ("section", "bore"),
-         ("bar", "slits"))
+         ("bar", "slits"), ("ring", "annulus"))
 
 
 @st.composite
@@ -245,6 +266,10 @@ def recipe_text(draw) -> str:
                     "socket_depth_mm": number(draw, declared(BLOCKS["inlet"],
                                                              "socket_depth_mm"), 3.0, 10.0)}
     doc["material"] = {"grade": draw(st.sampled_from(GRADE_NAMES))}
+    if void_kind == "annulus":
+        # A closed channel's core is lost (a pulled one is refused by a line, which the
+        # bad-input tests cover).
+        doc["core"] = {"kind": "dissolved"}
     for name in ("parting", "mold", "checks", "casting", "marking", "printer", "mesh",
                  "inflate"):
         values = draw(block(name))

@@ -96,13 +96,16 @@ def profile_of(mesh: TriMesh, void_facets: np.ndarray, from_mm: float, to_mm: fl
 def predict_motion(r: Recipe, cast: TriMesh, walls: Sequence[WallPressure],
                    sheet_yz_mm: tuple[float, float] | None = None) -> MotionCurve | None:
     """The motion curve of the cast ``cast`` of recipe ``r`` (None when the silicone's
-    modulus is unknown, or no model applies); with several sockets, for the voids fed
-    through the first inflated alone (:func:`pressurised`). ``walls``: the pressure check's
+    modulus is unknown, the body has no long axis, or no model applies); with several
+    sockets, for the voids fed through the first inflated alone (:func:`pressurised`).
+    ``walls``: the pressure check's
     weakest wall per group (their lowest limit ends the curve). ``sheet_yz_mm``: a point
     (y, z) of a strain-limiting sheet bonded flat in the cast (a layered finger's), or
     None."""
     e = r.material.silicone.youngs_modulus_mpa()
-    if e is None or not r.voids:
+    # A body without a long axis (a ring) is no beam along x: no model applies (the
+    # ``motion`` check's note says so).
+    if e is None or not r.voids or not getattr(type(r.body), "LONG_AXIS", True):
         return None
     voids = r.void_primitives()
     lo, hi = bounds_of(tuple(p for i in pressurised(r) for p in voids[i]))
