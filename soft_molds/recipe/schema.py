@@ -162,9 +162,11 @@ PROCESS_FIELDS: tuple[Field, ...] = (
            "bond face lies this far above the body's bottom", 4.0, lo=1.0, hi=50.0,
            lo_open=False),
     number("cover_margin_mm", "how far the strain-limiting sheet stays inside the "
-           "footprint, so silicone covers its edge (layered)", 2.0, lo=0.0, hi=20.0,
+           "footprint (layered) or the bladder's flat face (half-round overmold), so "
+           "silicone covers its edge", 2.0, lo=0.0, hi=20.0,
            lo_open=False),
-    choice("sheet", "strain-limiting sheet laid on the liquid base layer (layered)",
+    choice("sheet", "strain-limiting sheet laid on the liquid base layer (layered) or on "
+           "the wound bladder's flat face before the skin is cast (half-round overmold)",
            ("paper", "fabric", "none"), "paper"),
     number("skin_mm", "thickness of the skin cast over the wound bladder, over the guide "
            "ridges and beyond the far end (overmold)", 1.5, lo=0.3, hi=20.0, lo_open=False),
@@ -179,6 +181,10 @@ PROCESS_FIELDS: tuple[Field, ...] = (
            hi=10.0, lo_open=False),
     number("thread_diameter_mm", "diameter of the thread wound along the guides; the skin "
            "covers it too (overmold)", 0.5, lo=0.05, hi=3.0, lo_open=False),
+    choice("bladder", "section of the overmolded bladder: round (the rod and its bore) or "
+           "half-round (the rod's half above its axis, flat face down, around the bore's "
+           "half above the bladder wall, so it bends towards the flat face) (overmold)",
+           ("round", "half-round"), "round"),
 )
 
 CORE_FIELDS: tuple[Field, ...] = (
