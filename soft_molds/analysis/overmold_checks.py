@@ -92,10 +92,17 @@ def release_finding(rel: Release, step: str) -> Finding:
                    "mm3 shared)", value=rel.locked_mm3, limit=TOUCH_MM3)
 
 
+def thread_round(t: ThreadPlan) -> str:
+    """Where the thread's centre line runs: "18.5 mm" round, or a D's size and perimeter."""
+    if t.half_round:
+        return f"a {t.diameter_mm:g} mm D, {t.perimeter_mm:.1f} mm around"
+    return f"{t.diameter_mm:g} mm"
+
+
 def thread_finding(t: ThreadPlan, part: str) -> Finding:
     return finding("thread", Severity.INFO, part,
                    f"cut {t.helices} x {t.per_helix_mm:.0f} mm of thread ({t.turns:.2f} "
-                   f"turns at {t.pitch_mm:g} mm pitch on {t.diameter_mm:g} mm, "
+                   f"turns at {t.pitch_mm:g} mm pitch on {thread_round(t)}, "
                    f"{t.helix_mm:.0f} mm, plus {t.ends_mm:.0f} mm for end wraps and knots)",
                    value=t.total_mm)
 
