@@ -75,7 +75,7 @@ def thread_plan(r: Recipe, bl: Bladder) -> ThreadPlan | None:
     the hypotenuse of the unrolled cylinder, sqrt((pi d)^2 + pitch^2); round a D, of the
     unrolled prism, sqrt(perimeter^2 + pitch^2) (the thread advancing evenly along the
     perimeter: the guides advance it pitch / 2 over each face, which the curved face's
-    longer arc makes 1e-4 longer here, well inside the knot allowance)."""
+    longer arc makes 4e-4 longer on the demo, well inside the knot allowance)."""
     p = r.process
     if p.guides == "none" or not bl.pieces:
         return None

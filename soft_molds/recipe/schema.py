@@ -152,8 +152,8 @@ PROCESS_FIELDS: tuple[Field, ...] = (
     choice("kind", "how the actuator is cast: one-shot (one pour into a two-part shell "
            "around a pull-out core) or layered (a chambered layer poured in an open tray "
            "around posts, then pressed face down onto a liquid base layer) or overmold (a "
-           "round bladder with helical thread guides cast around a rod core, wound with "
-           "thread, then a skin cast over it on the same core)",
+           "round or half-round bladder with helical thread guides cast around a rod core, "
+           "wound with thread, then a skin cast over it on the same core)",
            ("one-shot", "layered", "overmold"), "one-shot"),
     number("draft_deg", "draft on the posts of the layered first step (1 deg or more "
            "releases cleanly from a printed post; common practice)", 1.0, unit="deg",
@@ -183,7 +183,8 @@ PROCESS_FIELDS: tuple[Field, ...] = (
            "covers it too (overmold)", 0.5, lo=0.05, hi=3.0, lo_open=False),
     choice("bladder", "section of the overmolded bladder: round (the rod and its bore) or "
            "half-round (the rod's half above its axis, flat face down, around the bore's "
-           "half above the bladder wall, so it bends towards the flat face) (overmold)",
+           "part above a flat wall as thick as the curved one; it bends towards the flat "
+           "face) (overmold)",
            ("round", "half-round"), "round"),
 )
 
