@@ -16,10 +16,6 @@ import trimesh
 from conftest import built_steps
 
 NAMES = ["seedling-wound-finger", "seedling-bend-wound-finger"]
-#: Agreement of a mesh volume with the kernel's (relative): the meshes are within
-#: mesh.chord_mm = 0.02 mm of the surfaces, so round parts lose about chord / radius x 2/3,
-#: under 0.2 % for these radii.
-MESH_TOL = 0.002
 #: Two parts only touching share less than this (mm3): coincident faces meshed apart.
 TOUCH_MM3 = 0.05
 
@@ -55,7 +51,12 @@ def test_every_part_of_each_step_is_a_closed_manifold_volume(om):
             assert tm.is_watertight and tm.is_winding_consistent and tm.is_volume, p.name
             solid = manifold(p.mesh)
             assert solid.status() == m3.Error.NoError, (s.name, p.name)
-            assert solid.volume() == pytest.approx(p.brep_volume_mm3, rel=MESH_TOL), \
+            # Every facet lies within the chord of the surface it stands for, so the two
+            # volumes differ by at most chord x area, and by the project's mesh rule by at
+            # most 0.5 % (a thin segment core's curved face loses 0.22 %).
+            bound = min(om.recipe.mesh.chord_mm * area_mm2(p.mesh),
+                        0.005 * p.brep_volume_mm3)
+            assert solid.volume() == pytest.approx(p.brep_volume_mm3, abs=bound), \
                 (s.name, p.name)
 
 
