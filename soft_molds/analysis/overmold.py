@@ -160,9 +160,11 @@ class OvermoldMoldSet:
     @property
     def motion(self) -> MotionCurve | None:
         """Not predicted: how the wound thread holds the bladder's radial growth is outside
-        every registered motion model (:mod:`soft_molds.analysis.motion`); the half-round
-        bladder's sheet would suit ``sheet-bending``, but that model's walls between
-        chambers stand in for the thread only under assumptions no test here backs."""
+        every registered motion model (:mod:`soft_molds.analysis.motion`). A half-round
+        bladder's sheet would suit ``sheet-bending`` in kind, but the motion stage finds the
+        pressurised faces from the recipe's void primitives (a round bore, not the segment
+        the core leaves) and ends each curve at the unwound wall's balloon limit, which the
+        thread is there to lift; neither holds here."""
         return None
 
 
