@@ -87,3 +87,20 @@ def test_the_manifest_echoes_the_section_and_sheet_and_lists_the_template(encode
     digest = hashlib.sha256(files["step-2-skin/sheet.svg"]).hexdigest()
     assert man["files"]["step-2-skin/sheet.svg"] == digest
     assert any(c["check"] == "sheet-cover" and c["severity"] == "info" for c in man["checks"])
+
+
+def test_the_written_set_reads_back_and_a_sweep_finds_it_done(encoded, tmp_path):
+    from soft_molds.export.files import json_bytes
+    from soft_molds.export.overmold import write_overmold
+    from soft_molds.export.steps_manifest import read_stepped_manifest
+    from soft_molds.export.typedjson import to_json
+    from soft_molds.sweep.cache import stepped_up_to_date
+
+    m, files = encoded
+    write_overmold(m, tmp_path)
+    folder = tmp_path / m.recipe.name / m.recipe.label
+    man = read_stepped_manifest(folder)
+    assert json_bytes(to_json(man)) == (folder / MANIFEST_NAME).read_bytes()
+    assert (folder / "step-2-skin" / "sheet.svg").read_bytes() == files["step-2-skin/sheet.svg"]
+    # Up to date for the recipe it was built from (its hash covers the section and sheet).
+    assert stepped_up_to_date(tmp_path, m.recipe) is not None
