@@ -272,3 +272,38 @@ def test_no_motion_is_predicted_for_a_wound_bladder(om):
     # No registered motion model covers a bladder held by wound thread (see the
     # OvermoldMoldSet.motion docstring); the manifest and card say nothing of motion.
     assert om.motion is None
+
+
+@pytest.mark.parametrize("guides", ["single", "none"])
+def test_single_and_no_guides_on_a_d_build_to_their_closed_forms(guides):
+    # A shorter rod (3 turns of guide) keeps this quick; a single helix keeps half of
+    # each turn, the curved face's: 3 pi of ridge in all, or none.
+    from pathlib import Path
+
+    from recipe_text import edit, planned_from_text
+
+    from soft_molds.geometry.overmold import build_casts
+    from soft_molds.plan import plan_mold
+
+    text = (Path(__file__).resolve().parents[2] / "recipes" / f"{NAME}.yaml").read_text()
+    text = edit(text, "guides: double", f"guides: {guides}")
+    text = edit(text, "  length_mm: 48\n", "  length_mm: 24\n")
+    text = edit(text, "length_mm: 44 ", "length_mm: 20 ")
+    r = planned_from_text(text, "short.yaml", "short")
+    first, second = plan_mold(r).steps
+    casts = build_casts(first.overmold, second.overmold)
+    big, small, length = r.body.diameter_mm / 2, r.voids[0].diameter_mm / 2, 24.0
+    wall = big - small
+    p = r.process
+    span = 3 * math.pi if guides == "single" else 0.0
+    ridges = p.guide_width_mm * p.guide_height_mm * (big + p.guide_height_mm / 2) * span
+    tube = (math.pi * big ** 2 / 2 - segment_mm2(small, wall)) * length
+    # Split at the flat face, a single guide is half-turn sweeps like a double guide's
+    # pieces, which fuse to about 1e-7 (RIDGE_VOLUME_TOL in the geometry module).
+    assert casts.bladder.Volume() == pytest.approx(tube + ridges, rel=1e-5)
+    sk = second.overmold
+    rs, d = sk.cavity_radius_mm, sk.flat_depth_mm
+    skin = ((math.pi * rs ** 2 / 2 + 2 * rs * d) * sk.cavity_end_x_mm
+            - math.pi * big ** 2 / 2 * length - ridges
+            - segment_mm2(small, wall) * (sk.core.end_x_mm - length))
+    assert casts.skin.Volume() == pytest.approx(skin, rel=1e-5)
