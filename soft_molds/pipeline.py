@@ -279,10 +279,13 @@ def build_overmold(recipe: Recipe, progress: Callable[[str], None] | None = None
     from .analysis.layered_checks import print_plans, recipe_printer
     from .analysis.overmold import (
         OvermoldStep,
+        arc_centre_yz,
         axis_yz_mm,
         pour_quantities,
         radial_extent_mm,
         releases,
+        sheet_cover_mm,
+        skin_over_half_round_mm,
         thread_plan,
     )
     from .analysis.overmold_checks import overmold_findings
@@ -343,18 +346,32 @@ def build_overmold(recipe: Recipe, progress: Callable[[str], None] | None = None
         bl = first.overmold.bladder
         skin_r = second.overmold.cavity_radius_mm
         # The bore's surface of the bladder against the skin cavity's wall.
-        by, bz = axis_yz_mm(bladder_mesh, 0.0, (bl.bore_radius_mm + bl.outer_radius_mm) / 2)
-        sy, sz = axis_yz_mm(skin_mesh, skin_r - 0.25 * (skin_r - bl.crest_radius_mm), skin_r
-                            + 1.0)
+        if bl.half_round:
+            by, bz = arc_centre_yz(bladder_mesh, bl.bore_radius_mm - 0.05,
+                                   bl.bore_radius_mm + 0.05, bl.wall_mm + 0.1)
+            sy, sz = arc_centre_yz(skin_mesh, skin_r - 0.05, skin_r + 0.05, 0.1)
+        else:
+            by, bz = axis_yz_mm(bladder_mesh, 0.0,
+                                (bl.bore_radius_mm + bl.outer_radius_mm) / 2)
+            sy, sz = axis_yz_mm(skin_mesh, skin_r - 0.25 * (skin_r - bl.crest_radius_mm),
+                                skin_r + 1.0)
         offset = float(((by - sy) ** 2 + (bz - sz) ** 2) ** 0.5)
-        over = radial_extent_mm(skin_mesh) - max(
-            radial_extent_mm(bladder_mesh),
-            bl.outer_radius_mm + recipe.process.thread_diameter_mm)
+        thread_mm = recipe.process.thread_diameter_mm
+        if bl.half_round:
+            over = skin_over_half_round_mm(skin_mesh, bladder_mesh, bl.outer_radius_mm,
+                                           thread_mm)
+        else:
+            over = radial_extent_mm(skin_mesh) - max(radial_extent_mm(bladder_mesh),
+                                                     bl.outer_radius_mm + thread_mm)
+        sheet = second.overmold.sheet
+        cover = None if sheet is None else sheet_cover_mm(sheet, skin_mesh)
         thread = thread_plan(recipe, bl)
         printer = recipe_printer(recipe)
         plans = tuple(print_plans(s, printer) for s in steps)
-        findings = worst_first(overmold_findings(recipe, steps, over, offset, thread, plans))
-    return OvermoldMoldSet(plan, tuple(steps), thread, over, offset, timings, findings, plans)
+        findings = worst_first(overmold_findings(recipe, steps, over, offset, thread, plans,
+                                                 cover))
+    return OvermoldMoldSet(plan, tuple(steps), thread, over, offset, timings, findings, plans,
+                           cover)
 
 
 def with_openings_of(plan: MoldPlan, step_name: str, openings: tuple[Opening, ...]

@@ -17,7 +17,9 @@
   the soft silicone flexes out of (common practice for thread-guide molds) is a warning,
   and the volume is printed. The measure includes the slivers two meshes of one surface
   share (chord-sized; a fraction of a mm3 here);
-- ``thread``: the thread to cut per helix (a note).
+- ``thread``: the thread to cut per helix (a note);
+- ``sheet-cover``: a half-round bladder's strain-limiting sheet, the skin under it and past
+  each of its edges against ``checks.min_wall_mm``.
 
 Frame: the actuator frame (mm), z up in pour orientation.
 """
@@ -28,7 +30,7 @@ from collections.abc import Mapping, Sequence
 
 from ..recipe.model import Recipe
 from .findings import Finding, Severity, finding
-from .layered_checks import part_name, printing_findings, recipe_printer
+from .layered_checks import part_name, printing_findings, recipe_printer, sheet_cover_finding
 from .overmold import TOUCH_MM3, OvermoldStep, Release, ThreadPlan
 from .printability import PrintPlan
 
@@ -90,19 +92,28 @@ def release_finding(rel: Release, step: str) -> Finding:
                    "mm3 shared)", value=rel.locked_mm3, limit=TOUCH_MM3)
 
 
+def thread_round(t: ThreadPlan) -> str:
+    """Where the thread's centre line runs: "18.5 mm" round, or a D's size and perimeter."""
+    if t.half_round:
+        return f"a {t.diameter_mm:g} mm D, {t.perimeter_mm:.1f} mm around"
+    return f"{t.diameter_mm:g} mm"
+
+
 def thread_finding(t: ThreadPlan, part: str) -> Finding:
     return finding("thread", Severity.INFO, part,
                    f"cut {t.helices} x {t.per_helix_mm:.0f} mm of thread ({t.turns:.2f} "
-                   f"turns at {t.pitch_mm:g} mm pitch on {t.diameter_mm:g} mm, "
+                   f"turns at {t.pitch_mm:g} mm pitch on {thread_round(t)}, "
                    f"{t.helix_mm:.0f} mm, plus {t.ends_mm:.0f} mm for end wraps and knots)",
                    value=t.total_mm)
 
 
 def overmold_findings(r: Recipe, steps: Sequence[OvermoldStep], skin_over_guides_mm: float,
                       axis_offset_mm: float, thread: ThreadPlan | None,
-                      plans: Sequence[Mapping[str, PrintPlan]]) -> tuple[Finding, ...]:
+                      plans: Sequence[Mapping[str, PrintPlan]],
+                      sheet_cover_mm: float | None = None) -> tuple[Finding, ...]:
     """Every finding of an overmold build, step by step in pour order (``plans``: each
-    step's :func:`~.layered_checks.print_plans`)."""
+    step's :func:`~.layered_checks.print_plans`; ``sheet_cover_mm``: a half-round
+    bladder's sheet's, None without one)."""
     printer = recipe_printer(r)
     out: list[Finding] = []
     for s, step_plans in zip(steps, plans, strict=True):
@@ -118,4 +129,7 @@ def overmold_findings(r: Recipe, steps: Sequence[OvermoldStep], skin_over_guides
     out.append(axis_finding(axis_offset_mm, part_name(second, "shell-lower")))
     if thread is not None:
         out.append(thread_finding(thread, part_name(first, "cast")))
+    if sheet_cover_mm is not None:
+        out.append(sheet_cover_finding(sheet_cover_mm, r.checks.min_wall_mm,
+                                       part_name(second, "cast")))
     return tuple(out)

@@ -18,11 +18,19 @@ from ..analysis.findings import verdict
 from ..analysis.layered import LayeredMoldSet
 from ..analysis.melted import MeltedMoldSet
 from ..analysis.overmold import WRAP_TURNS_PER_END, OvermoldMoldSet, OvermoldStep
+from ..analysis.overmold_checks import thread_round
 from ..units import mm3_to_cm3
 from ..version import __version__
 from .card import CAUTIONS
 from .files import json_bytes, write_file_set
-from .layered import finding_record, print_lines, step_print_files
+from .layered import (
+    SHEET_NAME,
+    SHEETS,
+    finding_record,
+    print_lines,
+    sheet_svg,
+    step_print_files,
+)
 from .steps_manifest import (
     OVERMOLD_FORMAT,
     OpeningRecord,
@@ -50,8 +58,15 @@ THREAD_CAUTIONS = (
 
 
 def step_files(s: OvermoldStep, label: str) -> dict[str, bytes]:
-    return {f"{s.folder}/{p.name}.stl": encode_binary_stl(p.mesh, f"{label} {s.name} {p.name}")
-            for p in s.parts}
+    """The STL of every part of ``s`` and, for the skin over a half-round bladder with a
+    sheet, the sheet's 1:1 template (the layered process's)."""
+    out = {f"{s.folder}/{p.name}.stl": encode_binary_stl(p.mesh, f"{label} {s.name} {p.name}")
+           for p in s.parts}
+    sheet = s.overmold.sheet
+    if sheet is not None:
+        out[f"{s.folder}/{SHEET_NAME}"] = sheet_svg(
+            sheet.outline_xy(), f"{label}: strain-limiting sheet, cut on the line")
+    return out
 
 
 def _pour_line(s: OvermoldStep) -> str:
@@ -86,24 +101,43 @@ def card_text(m: OvermoldMoldSet, files: Mapping[str, bytes]) -> bytes:
         pattern = ("two opposite-handed helices (one along each guide; where they cross, "
                    "one guide is gapped: lay that thread over the other)"
                    if t.helices == 2 else "one helix along the guide")
+        if bl.half_round:
+            pattern += (" over the curved face; across the flat face lay it straight and "
+                        "flat from the end of one ridge to the start of the next")
         lines.append(
             f"2. Wind the thread: cut {t.helices} piece(s) of {t.per_helix_mm:.0f} mm "
             f"({t.helix_mm:.0f} mm along {t.turns:.2f} turns at {t.pitch_mm:g} mm pitch on "
-            f"{t.diameter_mm:g} mm, the thread's centre line beside the ridges, plus "
+            f"{thread_round(t)}, the thread's centre line beside the ridges, plus "
             f"{t.ends_mm:.0f} mm for {WRAP_TURNS_PER_END} wraps at each end and the knots). Wind "
             f"{pattern}, starting {bl.guide_start_x_mm:g} mm from the inlet face; tie "
             f"off each end with its wraps on the plain tube there.")
     n = 3 if t is not None else 2
+    sheet = second.overmold.sheet
+    if sheet is not None:
+        length, width = sheet.size_mm
+        lines.append(
+            f"{n}. Lay the strain-limiting sheet: cut {SHEETS[sheet.material]} to "
+            f"{length:g} x {width:g} mm on the line of {second.folder}/{SHEET_NAME} (printed "
+            f"at 100 %: measure its scale bar), lay it on the thread across the bladder's "
+            f"flat face, {sheet.x0_mm:g} mm in from the inlet face, the far end and both "
+            f"edges, and tack it there with a few dabs of mixed silicone so it stays on "
+            f"when the bladder goes in flat face down.")
+        n += 1
     lines += [
         f"{n}. Place the bladder, still on the core, in {second.folder}'s lower shell: the "
         f"core's key in the same pocket of the inlet wall as before, so the bladder lies "
         f"on the skin mold's axis.",
         f"{n + 1}. {second.folder}: the skin, {_pour_line(second)}. Close the upper shell, "
         f"pour until every vent shows silicone; the skin covers the guides by "
-        f"{m.skin_over_guides_mm:.2f} mm and caps the far end. {cure} Open the shell "
+        f"{m.skin_over_guides_mm:.2f} mm and caps the far end"
+        + ("" if sheet is None else f", and holds the sheet against the flat face under "
+           f"at least {m.sheet_cover_mm or 0.0:.2f} mm") + f". {cure} Open the shell "
         f"and pull the core out through the inlet.", "",
         "The bore opens on the inlet face: seal a tube into it with a drop of the same "
-        "silicone.", "", "## Parts to print", ""]
+        "silicone." + ("" if sheet is None else " Inflated, the actuator bends towards "
+                       "its flat face: the thread keeps the bladder from ballooning, the "
+                       "sheet keeps the flat face from stretching."), "",
+        "## Parts to print", ""]
     lines += print_lines(m, files)
     lines += ["", "## Checks", ""]
     lines += [f"- {f.severity}: {f.check} ({f.part}): {f.message}" for f in m.findings] \

@@ -2,7 +2,9 @@
 
 Actuator frame (mm): the rod's axis is x from the inlet face x = 0; both steps part on
 z = 0 (through the axis), the upper shell pulling along +z; pour orientation is this frame
-as it stands (z up).
+as it stands (z up). A half-round bladder's flat face lies on z = 0 (down), its core is
+the bore's part above the flat wall, and the skin cavity is a D on a slab below the flat
+face (see :mod:`soft_molds.plan.processes.overmold`).
 
 The guide ridges are sweeps of their rectangular section along ``cq.Wire.makeHelix`` (a
 screw motion: the section stays in a plane through the axis, so the sweep's volume is the
@@ -20,7 +22,14 @@ from dataclasses import dataclass
 import cadquery as cq
 
 from ..errors import GeometryError
-from ..plan.model import Bladder, GuidePiece, Opening, Overmold, OvermoldCore
+from ..plan.model import (
+    Bladder,
+    GuidePiece,
+    Opening,
+    Overmold,
+    OvermoldCore,
+    segment_area_mm2,
+)
 from . import kernel as k
 
 #: How far a ridge's section reaches into the tube below its surface (mm; at most half
@@ -74,31 +83,69 @@ def ridge_piece(bl: Bladder, p: GuidePiece) -> cq.Shape:
                      rel_tol=RIDGE_VOLUME_TOL)
 
 
+def d_prism(x0_mm: float, length_mm: float, radius_mm: float, flat_z_mm: float,
+            part: str) -> cq.Shape:
+    """The disc of ``radius_mm`` about the x axis cut by the plane z = ``flat_z_mm`` (its
+    part above: a half disc at 0, a segment above 0) or, for ``flat_z_mm`` below 0, the
+    half disc above z = 0 on a slab of its width down to ``flat_z_mm``; extruded along +x
+    from ``x0_mm`` by ``length_mm``."""
+    r, h = radius_mm, flat_z_mm
+    # The YZ workplane's local (x, y) is the global (y, z); it extrudes along +x.
+    wp = cq.Workplane("YZ", origin=(x0_mm, 0.0, 0.0))
+    if h >= 0.0:
+        a = math.sqrt(r * r - h * h)
+        sketch = wp.moveTo(-a, h).lineTo(a, h).threePointArc((0.0, r), (-a, h)).close()
+        area = segment_area_mm2(r, h)
+    else:
+        sketch = (wp.moveTo(-r, h).lineTo(r, h).lineTo(r, 0.0)
+                  .threePointArc((0.0, r), (-r, 0.0)).close())
+        area = math.pi * r * r / 2.0 - 2.0 * r * h
+    solid = sketch.extrude(length_mm).val()
+    if not isinstance(solid, cq.Shape):
+        raise GeometryError("extrude a half-round section", "no solid came out", part)
+    return k.checked(solid, part, "extrude a half-round section", volume_mm3=area * length_mm)
+
+
 def build_core(c: OvermoldCore) -> cq.Shape:
-    rod = k.cylinder(0, (c.start_x_mm, 0.0, 0.0), c.end_x_mm - c.start_x_mm, c.radius_mm)
+    rod: cq.Shape
+    if c.flat_z_mm is None:
+        rod = k.cylinder(0, (c.start_x_mm, 0.0, 0.0), c.end_x_mm - c.start_x_mm, c.radius_mm)
+    else:
+        rod = d_prism(c.start_x_mm, c.end_x_mm - c.start_x_mm, c.radius_mm, c.flat_z_mm,
+                      "core")
     key = k.box(*c.key_box)
     return k.fuse([rod, key], "core", "build core", volume_mm3=c.volume_mm3())
 
 
 def build_casts(bladder_step: Overmold, skin_step: Overmold) -> OvermoldCasts:
     bl = bladder_step.bladder
-    tube = k.cylinder(0, (0.0, 0.0, 0.0), bl.length_mm, bl.outer_radius_mm)
+    tube: cq.Shape
+    if bl.half_round:
+        tube = d_prism(0.0, bl.length_mm, bl.outer_radius_mm, 0.0, "cast")
+    else:
+        tube = k.cylinder(0, (0.0, 0.0, 0.0), bl.length_mm, bl.outer_radius_mm)
     ridges = [ridge_piece(bl, p) for p in bl.pieces]
-    full = math.pi * bl.outer_radius_mm ** 2 * bl.length_mm + bl.ridge_volume_mm3()
+    full = bl.outside_area_mm2() * bl.length_mm + bl.ridge_volume_mm3()
     outside = k.fuse([tube, *ridges], "cast", "fuse the guide ridges to the tube",
                      volume_mm3=full, rel_tol=RIDGE_VOLUME_TOL)
     core = build_core(bladder_step.core)
     # The cuts are checked against the fused outside as measured (its closed form was
     # checked above, to RIDGE_VOLUME_TOL): the core's rod fills the bore over the length.
     out_vol = k.volume(outside)
-    bore = math.pi * bl.bore_radius_mm ** 2 * bl.length_mm
+    bore = bl.bore_area_mm2() * bl.length_mm
     bladder = k.cut(outside, [core], "cast", "cut the bore", volume_mm3=out_vol - bore)
     rs, end = skin_step.cavity_radius_mm, skin_step.cavity_end_x_mm
-    cavity = k.cylinder(0, (0.0, 0.0, 0.0), end, rs)
+    cavity: cq.Shape
+    if skin_step.flat_depth_mm is None:
+        cavity = k.cylinder(0, (0.0, 0.0, 0.0), end, rs)
+        cavity_vol = math.pi * rs * rs * end
+    else:
+        cavity = d_prism(0.0, end, rs, -skin_step.flat_depth_mm, "cast")
+        cavity_vol = (math.pi * rs * rs / 2.0 + 2.0 * rs * skin_step.flat_depth_mm) * end
     c = skin_step.core
-    beyond = math.pi * c.radius_mm ** 2 * (c.end_x_mm - bl.length_mm)
+    beyond = c.section_mm2() * (c.end_x_mm - bl.length_mm)
     skin = k.cut(cavity, [outside, core], "cast", "cut the bladder from the skin cavity",
-                 volume_mm3=math.pi * rs * rs * end - out_vol - beyond)
+                 volume_mm3=cavity_vol - out_vol - beyond)
     return OvermoldCasts(outside, bladder, core, cavity, skin)
 
 

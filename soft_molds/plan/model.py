@@ -309,11 +309,22 @@ class GuidePiece:
         return self.t1_rad - self.t0_rad
 
 
+def segment_area_mm2(radius_mm: float, flat_z_mm: float) -> float:
+    """Area of the part of a disc of ``radius_mm`` about the origin above the chord at
+    z = ``flat_z_mm`` (closed form: r^2 acos(h / r) - h sqrt(r^2 - h^2)); at h = 0 the half
+    disc, pi r^2 / 2."""
+    r, h = radius_mm, flat_z_mm
+    return r * r * math.acos(h / r) - h * math.sqrt(r * r - h * h)
+
+
 @dataclass(frozen=True)
 class Bladder:
     """The first pour (actuator frame, mm): a tube x in [0, ``length_mm``] between
     ``bore_radius_mm`` and ``outer_radius_mm`` about the x axis, with guide ridges whose
-    helices start at x = ``guide_start_x_mm``."""
+    helices start at x = ``guide_start_x_mm``. ``half_round``: only the half above the
+    flat face z = 0 (a D, flat face down), around the bore's part above z = the wall
+    (``outer_radius_mm - bore_radius_mm``), so the wall is even on both faces; its guide
+    pieces lie on the curved face only."""
 
     outer_radius_mm: float
     bore_radius_mm: float
@@ -323,6 +334,11 @@ class Bladder:
     guide_width_mm: float
     guide_start_x_mm: float
     pieces: tuple[GuidePiece, ...]
+    half_round: bool = False
+
+    @property
+    def wall_mm(self) -> float:
+        return self.outer_radius_mm - self.bore_radius_mm
 
     @property
     def crest_radius_mm(self) -> float:
@@ -337,10 +353,21 @@ class Bladder:
         rho = self.outer_radius_mm + self.guide_height_mm / 2.0
         return a * rho * sum(p.span_rad for p in self.pieces)
 
+    def outside_area_mm2(self) -> float:
+        """The section's outline filled: the disc, or the half disc of a D."""
+        full = math.pi * self.outer_radius_mm ** 2
+        return full / 2.0 if self.half_round else full
+
+    def bore_area_mm2(self) -> float:
+        """The bore's section: its disc, or its part above the flat wall (a segment)."""
+        if self.half_round:
+            return segment_area_mm2(self.bore_radius_mm, self.wall_mm)
+        return math.pi * self.bore_radius_mm ** 2
+
     def volume_mm3(self) -> float:
-        """The tube, pi (R^2 - r^2) L, plus the ridges."""
-        r_o, r_i = self.outer_radius_mm, self.bore_radius_mm
-        return math.pi * (r_o * r_o - r_i * r_i) * self.length_mm + self.ridge_volume_mm3()
+        """The tube, (outside - bore) x L (pi (R^2 - r^2) L when round), plus the ridges."""
+        return ((self.outside_area_mm2() - self.bore_area_mm2()) * self.length_mm
+                + self.ridge_volume_mm3())
 
 
 @dataclass(frozen=True)
@@ -348,18 +375,48 @@ class OvermoldCore:
     """The rod core (actuator frame, mm): radius ``radius_mm`` about the x axis from
     ``start_x_mm`` (the handle's end, outside the inlet wall) to ``end_x_mm`` (its tip,
     seated in the bladder mold's far wall), with a square key ``key_box`` (lo, hi corners)
-    in the inlet wall; the same core and key locate both steps."""
+    in the inlet wall; the same core and key locate both steps. ``flat_z_mm``: a
+    half-round bladder's core, the rod's part above z = ``flat_z_mm`` (a segment)."""
 
     radius_mm: float
     start_x_mm: float
     end_x_mm: float
     key_box: tuple[Vec3, Vec3]
+    flat_z_mm: float | None = None
+
+    def section_mm2(self) -> float:
+        if self.flat_z_mm is None:
+            return math.pi * self.radius_mm ** 2
+        return segment_area_mm2(self.radius_mm, self.flat_z_mm)
 
     def volume_mm3(self) -> float:
         (x0, y0, z0), (x1, y1, z1) = self.key_box
-        rod = math.pi * self.radius_mm ** 2 * (self.end_x_mm - self.start_x_mm)
-        key = (x1 - x0) * ((y1 - y0) * (z1 - z0) - math.pi * self.radius_mm ** 2)
+        rod = self.section_mm2() * (self.end_x_mm - self.start_x_mm)
+        key = (x1 - x0) * ((y1 - y0) * (z1 - z0) - self.section_mm2())
         return rod + key
+
+
+@dataclass(frozen=True)
+class Sheet:
+    """The strain-limiting sheet of a half-round bladder (actuator frame, mm): a rectangle
+    x in [``x0_mm``, ``x1_mm``], |y| <= ``half_width_mm`` in the plane z = ``z_mm`` (on the
+    thread across the flat face), of ``material`` ("paper" or "fabric"); its thickness is
+    neglected."""
+
+    material: str
+    x0_mm: float
+    x1_mm: float
+    half_width_mm: float
+    z_mm: float
+
+    @property
+    def size_mm(self) -> tuple[float, float]:
+        return (self.x1_mm - self.x0_mm, 2.0 * self.half_width_mm)
+
+    def outline_xy(self) -> tuple[tuple[float, float], ...]:
+        """Its corners counter-clockwise seen from +z (x, y in mm)."""
+        h = self.half_width_mm
+        return ((self.x0_mm, -h), (self.x1_mm, -h), (self.x1_mm, h), (self.x0_mm, h))
 
 
 @dataclass(frozen=True)
@@ -367,7 +424,11 @@ class Overmold:
     """One step of the overmold process (actuator frame, mm; parting plane z = 0 through
     the core's axis, the upper shell pulls +z, the lower -z). The cavity: the bladder
     (``bladder`` step) or a cylinder of ``cavity_radius_mm`` from x = 0 to
-    ``cavity_end_x_mm`` (``skin`` step, the far end capped)."""
+    ``cavity_end_x_mm`` (``skin`` step, the far end capped). A half-round bladder's
+    (``flat_depth_mm`` set): the half cylinder above z = 0 on a slab reaching down to
+    z = -``flat_depth_mm`` (0 for the bladder step: its flat face lies in the parting
+    plane; the skin's flat face lies parallel to it, below); ``sheet``: the sheet the
+    skin step holds against the bladder's flat face."""
 
     kind: OvermoldKind
     bladder: Bladder
@@ -379,11 +440,14 @@ class Overmold:
     clearance_mm: float
     key_diameter_mm: float
     key_height_mm: float
+    flat_depth_mm: float | None = None
+    sheet: Sheet | None = None
 
     @property
     def block_lo(self) -> Vec3:
         c = self.cavity_radius_mm
-        return (-self.wall_mm, -(c + self.wall_mm + self.flange_mm), -(c + self.wall_mm))
+        below = c if self.flat_depth_mm is None else self.flat_depth_mm
+        return (-self.wall_mm, -(c + self.wall_mm + self.flange_mm), -(below + self.wall_mm))
 
     @property
     def block_hi(self) -> Vec3:

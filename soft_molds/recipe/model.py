@@ -187,7 +187,8 @@ class Process:
     from the body's bottom to the bond face), the strain-limiting sheet's inset from the
     footprint (mm) and the sheet ("paper", "fabric" or "none"). Overmold: the skin's
     thickness (mm), the thread guides ("none", "single", "double"), their helix pitch,
-    ridge height and width (mm) and the thread's diameter (mm)."""
+    ridge height and width (mm), the thread's diameter (mm) and the bladder's section
+    ("round" or "half-round"); a half-round bladder also reads the sheet and its inset."""
 
     kind: str = "one-shot"
     draft_deg: float = 1.0
@@ -200,6 +201,7 @@ class Process:
     guide_height_mm: float = 0.8
     guide_width_mm: float = 1.2
     thread_diameter_mm: float = 0.5
+    bladder: str = "round"
 
     @property
     def layered(self) -> bool:
@@ -212,8 +214,10 @@ class Process:
 
     def params(self) -> dict[str, Any]:
         """The values of this kind of process (a layered recipe's hash is the same as
-        before the overmold fields existed)."""
-        names = (LAYERED_FIELDS if self.layered else OVERMOLD_FIELDS)
+        before the overmold fields existed, and a round bladder's as before the half-round
+        one)."""
+        names = (LAYERED_FIELDS if self.layered else OVERMOLD_FIELDS
+                 + (HALF_ROUND_FIELDS if self.bladder == "half-round" else ()))
         values = asdict(self)
         return {"kind": self.kind, **{n: values[n] for n in names}}
 
@@ -247,6 +251,9 @@ class CoreSettings:
 LAYERED_FIELDS = ("draft_deg", "base_mm", "cover_margin_mm", "sheet")
 OVERMOLD_FIELDS = ("skin_mm", "guides", "guide_pitch_mm", "guide_height_mm",
                    "guide_width_mm", "thread_diameter_mm")
+#: Further fields a half-round overmold reads: its section, the strain-limiting sheet laid
+#: on its flat face and the sheet's inset (shared with the layered process).
+HALF_ROUND_FIELDS = ("bladder", "sheet", "cover_margin_mm")
 
 
 @dataclass(frozen=True)

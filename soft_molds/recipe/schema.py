@@ -153,8 +153,8 @@ PROCESS_FIELDS: tuple[Field, ...] = (
     choice("kind", "how the actuator is cast: one-shot (one pour into a two-part shell "
            "around a pull-out core) or layered (a chambered layer poured in an open tray "
            "around posts, then pressed face down onto a liquid base layer) or overmold (a "
-           "round bladder with helical thread guides cast around a rod core, wound with "
-           "thread, then a skin cast over it on the same core)",
+           "round or half-round bladder with helical thread guides cast around a rod core, "
+           "wound with thread, then a skin cast over it on the same core)",
            ("one-shot", "layered", "overmold"), "one-shot"),
     number("draft_deg", "draft on the posts of the layered first step (1 deg or more "
            "releases cleanly from a printed post; common practice)", 1.0, unit="deg",
@@ -163,9 +163,11 @@ PROCESS_FIELDS: tuple[Field, ...] = (
            "bond face lies this far above the body's bottom", 4.0, lo=1.0, hi=50.0,
            lo_open=False),
     number("cover_margin_mm", "how far the strain-limiting sheet stays inside the "
-           "footprint, so silicone covers its edge (layered)", 2.0, lo=0.0, hi=20.0,
+           "footprint (layered) or the bladder's flat face (half-round overmold), so "
+           "silicone covers its edge", 2.0, lo=0.0, hi=20.0,
            lo_open=False),
-    choice("sheet", "strain-limiting sheet laid on the liquid base layer (layered)",
+    choice("sheet", "strain-limiting sheet laid on the liquid base layer (layered) or on "
+           "the wound bladder's flat face before the skin is cast (half-round overmold)",
            ("paper", "fabric", "none"), "paper"),
     number("skin_mm", "thickness of the skin cast over the wound bladder, over the guide "
            "ridges and beyond the far end (overmold)", 1.5, lo=0.3, hi=20.0, lo_open=False),
@@ -180,6 +182,11 @@ PROCESS_FIELDS: tuple[Field, ...] = (
            hi=10.0, lo_open=False),
     number("thread_diameter_mm", "diameter of the thread wound along the guides; the skin "
            "covers it too (overmold)", 0.5, lo=0.05, hi=3.0, lo_open=False),
+    choice("bladder", "section of the overmolded bladder: round (the rod and its bore) or "
+           "half-round (the rod's half above its axis, flat face down, around the bore's "
+           "part above a flat wall as thick as the curved one; it bends towards the flat "
+           "face) (overmold)",
+           ("round", "half-round"), "round"),
 )
 
 CORE_FIELDS: tuple[Field, ...] = (

@@ -95,3 +95,48 @@ def test_an_overmold_socket_on_the_end_face_is_refused_naming_the_face(
             "(got 'end'); allowed: one inlet on the start face (x = 0)")
     assert want in err.splitlines() or f"error: {want}" in err.splitlines(), err
     assert not (tmp_path / "out").exists()
+
+
+HALF_TEXT = (ROOT / "recipes" / "seedling-bend-wound-finger.yaml").read_text()
+
+HALF_CASES = [
+    # Only a half-round bladder has a flat face for a sheet.
+    ("sheet-on-a-round-bladder", TEXT, ("guides: double", "guides: double\n  sheet: paper"),
+     "process.sheet", "only a half-round bladder"),
+    # A 9.5 mm bore in an 18 mm rod: a 4.25 mm flat wall, the core 0.5 mm high above it,
+    # under checks.min_wall_mm = 1.
+    ("half-round-core-too-low", HALF_TEXT, ("diameter_mm: 13 ", "diameter_mm: 9.5 "),
+     "voids[0].diameter_mm", "half-round core lower than"),
+    # Two bores: one half-round core cannot form them.
+    ("half-round-two-voids", HALF_TEXT,
+     ("inlet:\n", "  - kind: bore\n    diameter_mm: 3\n    length_mm: 20\n"
+                  "    start_mm: 10\n    center_mm: [0, -5]\ninlet:\n"),
+     "voids", "cannot be overmolded"),
+    # The sheet 0.5 mm in from the inlet face: under checks.min_wall_mm = 1.
+    ("sheet-edge-at-the-inlet-face", HALF_TEXT,
+     ("cover_margin_mm: 2", "cover_margin_mm: 0.5"), "process.cover_margin_mm",
+     "closer than checks.min_wall_mm"),
+]
+
+
+@pytest.mark.parametrize(("name", "text", "change", "field", "words"), HALF_CASES,
+                         ids=[c[0] for c in HALF_CASES])
+def test_a_sheet_or_half_round_the_plan_cannot_cast_exits_2_naming_the_field(
+        name, text, change, field, words, tmp_path, capsys, no_cad_work, no_step_build):
+    text = edit(text, *change)
+    path = tmp_path / "recipe.yaml"
+    path.write_text(text)
+    out = tmp_path / "out"
+    status = main(["build", str(path), "--out", str(out)])
+    cap = capsys.readouterr()
+    assert status == 2
+    assert cap.out == ""
+    lines = [ln.removeprefix("error: ") for ln in cap.err.splitlines() if str(path) in ln]
+    assert len(lines) == 1, cap.err
+    needles = ["voids:"] if field == "voids" else [change[1].splitlines()[0],
+                                                   change[1].splitlines()[-1]]
+    assert any(lines[0].startswith(f"{path}:{line_of(text, n)}: {field}") for n in needles), \
+        lines[0]
+    assert words in lines[0], lines[0]
+    assert "Traceback" not in cap.err
+    assert not out.exists()

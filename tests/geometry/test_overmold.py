@@ -1,8 +1,8 @@
-"""The overmold process's two steps, checked against sources outside the project: each
-part a closed volume for manifold3d, no two parts of a step sharing volume (the skin step
-with the bladder and core it is poured around), the bladder and the skin against closed
-forms, the thread against a helix's arc length summed numerically, one axis for both steps
-from circle fits, and how each part releases along its pull.
+"""The round overmold's two steps, checked against sources outside the project (what
+every overmold build holds, closed parts that share no volume among them, is in
+test_overmold_casts.py): the bladder and the skin against closed forms, the thread against
+a helix's arc length summed numerically, one axis for both steps from circle fits, and how
+each part releases along its pull.
 
 Closed forms: a tube's volume pi (R^2 - r^2) L; a ridge's volume by Pappus' theorem for a
 screw motion (a section of area A in a plane through the axis, screwed through angle T,
@@ -60,33 +60,6 @@ def ridge_span_rad(om) -> float:
     assert abs(2 * turns - round(2 * turns)) < 1e-9
     gap = w * math.pi / pitch + CROSSING_CLEAR_RAD
     return 2 * 2 * math.pi * turns - 2 * gap * 2 * turns
-
-
-def test_every_part_of_each_step_is_a_closed_manifold_volume(om):
-    for s in om.steps:
-        for p in s.parts:
-            solid = manifold(p.mesh)
-            assert solid.status() == m3.Error.NoError, (s.name, p.name)
-            assert solid.volume() == pytest.approx(p.brep_volume_mm3, rel=MESH_TOL), \
-                (s.name, p.name)
-
-
-def test_no_two_parts_of_a_step_share_volume(om):
-    # Parts that touch are meshed apart, each within the chord c of the surface they
-    # share: two such meshes of one surface of area A overlap by at most c x A, slivers
-    # that vanish once a part moves off (see the release test). A is bounded by the
-    # smaller part's whole surface; parts that truly interpenetrate share far more.
-    first, second = om.steps
-    chord = om.recipe.mesh.chord_mm
-    bladder, core = first.part("cast").mesh, first.part("core").mesh
-    for meshes in ([p.mesh for p in first.parts],
-                   [*(p.mesh for p in second.parts), bladder, core]):
-        solids = [manifold(m) for m in meshes]
-        for i in range(len(solids)):
-            for j in range(i + 1, len(solids)):
-                limit = chord * min(area_mm2(meshes[i]), area_mm2(meshes[j]))
-                shared = (solids[i] ^ solids[j]).volume()
-                assert shared < max(TOUCH_MM3, limit), (i, j, shared, limit)
 
 
 def area_mm2(mesh) -> float:

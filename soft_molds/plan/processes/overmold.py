@@ -13,6 +13,17 @@ actuators).
    stands higher) plus ``process.skin_mm``, running on beyond the core's tip by the skin
    thickness, so the skin also caps the far end.
 
+With ``process.bladder: half-round`` the bladder is the rod's half above its axis (a D,
+flat face down on z = 0, the parting plane of the bladder step, so the lower shell is a
+plate and the upper holds the whole curved face), cast around the bore's part above the
+flat wall (a segment, the wall even on both faces) as the core; the guide pieces lie on
+the curved face only (the thread crosses the flat face lying flat). The strain-limiting
+sheet (``process.sheet``) is laid on the thread across the flat face, inset by
+``process.cover_margin_mm``, and the skin, a D over the crests or thread plus
+``process.skin_mm`` on a slab of thread plus ``process.skin_mm`` below the flat face,
+holds it there: the actuator bends towards its flat face. The skin step still parts on
+z = 0, now parallel to the skin's flat face, so the key and both shells pull as before.
+
 Actuator frame (mm): x along the rod from the inlet face x = 0, parting plane z = 0, the
 upper shell pulling along +z. Only a flat-ended rod with one concentric bore from the inlet
 face can be overmolded (the core runs through the whole bladder whatever the bore's length):
@@ -22,6 +33,7 @@ the plan refuses anything else, naming the field (exit 2), before any kernel cal
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 
 from ...errors import Problem
 from ...recipe.model import Recipe
@@ -34,6 +46,7 @@ from ..model import (
     OvermoldCore,
     OvermoldKind,
     PartingPlane,
+    Sheet,
 )
 from . import casting_process
 
@@ -80,8 +93,35 @@ def steps(r: Recipe) -> tuple[CastingStep, ...]:
 def _step(r: Recipe, kind: OvermoldKind, bl: Bladder, c: OvermoldCore, cavity_radius_mm: float,
           cavity_end_x_mm: float) -> Overmold:
     m = r.mold
-    return Overmold(kind, bl, c, cavity_radius_mm, cavity_end_x_mm, m.wall_mm, m.flange_mm,
-                    m.clearance_mm, m.key_diameter_mm, m.key_height_mm)
+    om = Overmold(kind, bl, c, cavity_radius_mm, cavity_end_x_mm, m.wall_mm, m.flange_mm,
+                  m.clearance_mm, m.key_diameter_mm, m.key_height_mm)
+    if not bl.half_round:
+        return om
+    if kind is OvermoldKind.BLADDER:
+        return replace(om, flat_depth_mm=0.0)
+    return replace(om, flat_depth_mm=skin_flat_depth_mm(r), sheet=sheet(r))
+
+
+def half_round(r: Recipe) -> bool:
+    return r.process.bladder == "half-round"
+
+
+def skin_flat_depth_mm(r: Recipe) -> float:
+    """How far a half-round skin's flat face lies below the bladder's (mm): the thread
+    lying flat across it, then the skin."""
+    return r.process.thread_diameter_mm + r.process.skin_mm
+
+
+def sheet(r: Recipe) -> Sheet | None:
+    """The strain-limiting sheet of a half-round bladder (None: ``sheet: none``): on the
+    thread across the flat face, ``cover_margin_mm`` inside the flat face's edges and the
+    bladder's ends."""
+    p = r.process
+    if not half_round(r) or p.sheet == "none":
+        return None
+    big, _, length = radii_mm(r)
+    m = p.cover_margin_mm
+    return Sheet(p.sheet, m, length - m, big - m, -p.thread_diameter_mm)
 
 
 def radii_mm(r: Recipe) -> tuple[float, float, float]:
@@ -98,6 +138,22 @@ def skin_radius_mm(r: Recipe) -> float:
     p = r.process
     under = max(p.guide_height_mm if p.guides != "none" else 0.0, p.thread_diameter_mm)
     return big + under + p.skin_mm
+
+
+def on_curved_face(pieces: tuple[GuidePiece, ...]) -> tuple[GuidePiece, ...]:
+    """The parts of ``pieces`` on a D's curved face: a piece at helix angle t points along
+    cos t on z for either hand (0 = +z), so the curved face is t within pi/2 of 2 pi k;
+    each part ends in the plane z = 0, flush with the flat face."""
+    out = []
+    for p in pieces:
+        k = math.floor((p.t0_rad + math.pi / 2.0) / (2.0 * math.pi))
+        while 2.0 * math.pi * k - math.pi / 2.0 < p.t1_rad:
+            lo = max(p.t0_rad, 2.0 * math.pi * k - math.pi / 2.0)
+            hi = min(p.t1_rad, 2.0 * math.pi * k + math.pi / 2.0)
+            if hi - lo >= MIN_PIECE_RAD:
+                out.append(GuidePiece(p.hand, lo, hi))
+            k += 1
+    return tuple(out)
 
 
 def crossing_gap_rad(r: Recipe) -> float:
@@ -136,6 +192,10 @@ def guide_pieces(r: Recipe) -> tuple[GuidePiece, ...]:
 def bladder(r: Recipe) -> Bladder:
     big, small, length = radii_mm(r)
     p = r.process
+    if half_round(r):
+        return Bladder(big, small, length, p.guide_pitch_mm, p.guide_height_mm,
+                       p.guide_width_mm, GUIDE_MARGIN_MM, on_curved_face(guide_pieces(r)),
+                       half_round=True)
     return Bladder(big, small, length, p.guide_pitch_mm, p.guide_height_mm,
                    p.guide_width_mm, GUIDE_MARGIN_MM, guide_pieces(r))
 
@@ -143,15 +203,54 @@ def bladder(r: Recipe) -> Bladder:
 def core(r: Recipe) -> OvermoldCore:
     """The rod core: the bore's radius, from the handle (``mold.core_handle_mm`` outside
     the inlet wall) to its tip seated in the far wall, a land of SEAT_LAND_MM short of the
-    outside; the square key centred in the inlet wall."""
-    _, small, length = radii_mm(r)
+    outside; the square key centred in the inlet wall. A half-round bladder's core is the
+    rod's part above the flat wall, its key standing KEY_SHOULDER_MM beyond it on every
+    side and reaching as far below z = 0, so the parting plane still splits its pocket."""
+    big, small, length = radii_mm(r)
     wall = r.mold.wall_mm
     key_len = min(6.0, wall - 2 * KEY_LAND_MM)
     x0 = -wall / 2.0 - key_len / 2.0
     half = small + KEY_SHOULDER_MM
+    start, end = -wall - r.mold.core_handle_mm, length + wall - SEAT_LAND_MM
+    if half_round(r):
+        key = ((x0, -half, -KEY_SHOULDER_MM), (x0 + key_len, half, half))
+        return OvermoldCore(small, start, end, key, flat_z_mm=big - small)
     key = ((x0, -half, -half), (x0 + key_len, half, half))
-    return OvermoldCore(small, -wall - r.mold.core_handle_mm, length + wall - SEAT_LAND_MM,
-                        key)
+    return OvermoldCore(small, start, end, key)
+
+
+def half_round_problems(r: Recipe, line: LineOf) -> list[Problem]:
+    """A sheet only on a half-round bladder (a round one has no flat face to hold it); a
+    half-round core at least ``checks.min_wall_mm`` high above the flat wall; a sheet
+    whose edge lies at least ``checks.min_wall_mm`` inside the inlet face, and that is
+    left with a size after its inset."""
+    p, c = r.process, r.checks
+    if not half_round(r):
+        if "process.sheet" in r.lines and p.sheet != "none":
+            return [Problem("process.sheet", "needs a flat face to lie on: only a half-round "
+                            "bladder takes a strain-limiting sheet", line("process.sheet"),
+                            p.sheet, "none, or process.bladder: half-round")]
+        return []
+    big, small, length = radii_mm(r)
+    out: list[Problem] = []
+    if 2.0 * small - big < c.min_wall_mm:
+        out.append(Problem("voids[0].diameter_mm", "leaves the half-round core lower than "
+                           "checks.min_wall_mm above the bladder's flat wall",
+                           line("voids[0].diameter_mm"), 2 * small,
+                           f"at least body.diameter_mm / 2 + checks.min_wall_mm = "
+                           f"{big + c.min_wall_mm:g} mm"))
+    if p.sheet == "none":
+        return out
+    m = p.cover_margin_mm
+    if m < c.min_wall_mm:
+        out.append(Problem("process.cover_margin_mm", "leaves the sheet's edge closer than "
+                           "checks.min_wall_mm to the inlet face", line("process.cover_margin_mm"),
+                           m, f"at least {c.min_wall_mm:g} mm"))
+    elif m >= min(big, length / 2.0):
+        out.append(Problem("process.cover_margin_mm", "leaves no sheet on the flat face",
+                           line("process.cover_margin_mm"), m,
+                           f"less than {min(big, length / 2.0):g} mm"))
+    return out
 
 
 def overmold_problems(r: Recipe, line: LineOf) -> list[Problem]:
@@ -198,6 +297,7 @@ def overmold_problems(r: Recipe, line: LineOf) -> list[Problem]:
         out.append(Problem("process.skin_mm", "is thinner than checks.min_wall_mm",
                            line("process.skin_mm"), p.skin_mm,
                            f"at least {c.min_wall_mm:g} mm"))
+    out += half_round_problems(r, line)
     if p.guides == "none":
         return out
     rib = RIB_NOZZLES * r.printer.nozzle_mm
