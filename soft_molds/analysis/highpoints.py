@@ -497,10 +497,21 @@ MOUTH_RAYS = 24
 
 def _sits_flat(mesh: TriMesh, u: np.ndarray, at: tuple[float, float, float],
                radius_mm: float) -> bool:
-    """Whether a mouth of ``radius_mm`` at ``at`` lies wholly over a flat top: the lowest
-    ceiling under it is the centre's own height."""
-    (op,) = _with_floors(mesh, u, [Opening(OpeningKind.SPRUE, at, radius_mm)])
-    return op.floor_mm is not None and op.floor_mm >= float(np.asarray(at) @ u) - FLAT_MOUTH_TOL_MM
+    """Whether a mouth of ``radius_mm`` at ``at`` lies wholly over a flat top: every ray sent
+    down onto the cast (a ring at the mouth's radius and its centre, as for the floors)
+    meets it at the centre's own height."""
+    from .rays import RayCaster
+
+    c = np.asarray(at, dtype=np.float64)
+    e1, e2 = _plan_axes(u)
+    ang = np.linspace(0.0, 2.0 * np.pi, MOUTH_RAYS, endpoint=False)
+    ring = np.concatenate([[np.zeros(3)], radius_mm * (
+        np.cos(ang)[:, None] * e1 + np.sin(ang)[:, None] * e2)])
+    top = float((mesh.vertices @ u).max()) + 1.0
+    o = c + ring + (top - c @ u) * u
+    t, _ = RayCaster(mesh).first_hit(o, -u)
+    return bool(np.all(np.isfinite(t))
+                and np.all(np.abs(o @ u - t - c @ u) <= FLAT_MOUTH_TOL_MM))
 
 
 def _fitted_sprue(mesh: TriMesh, hp: HighPoint, at: tuple[float, float, float],
