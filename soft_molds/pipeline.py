@@ -430,7 +430,8 @@ def build_melted(recipe: Recipe, progress: Callable[[str], None] | None = None
     with _stage(timings, "features", label):
         step = replace(step, openings=plan_openings(core.mesh, parting.up,
                                                     recipe.mold.sprue_diameter_mm / 2.0,
-                                                    recipe.mold.vent_diameter_mm / 2.0))
+                                                    recipe.mold.vent_diameter_mm / 2.0,
+                                                    narrow_sprue=True))
     vol = core.brep_volume_mm3
     cast = mold.CastSolids(core.brep, (), core.brep,
                            {"body": vol, "void_set": 0.0, "cast": vol})

@@ -69,6 +69,7 @@ def _process(path: Path) -> str:
 BUNDLED = sorted(p.stem for p in RECIPES.glob("*.yaml") if _process(p) == "one-shot")
 LAYERED = sorted(p.stem for p in RECIPES.glob("*.yaml") if _process(p) == "layered")
 MULTI_STEP = sorted(p.stem for p in RECIPES.glob("*.yaml") if _process(p) != "one-shot")
+MELTED = sorted(p.stem for p in RECIPES.glob("*.yaml") if _process(p) == "melted-core")
 
 
 def built_layered(name: str):

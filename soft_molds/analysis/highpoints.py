@@ -38,6 +38,13 @@ MAX_EXTRA_VENTS = 12
 SERVE_RADIAL_SLACK_MM = 0.05
 """Extra radius when deciding whether an opening reaches a plateau vertex (float noise)."""
 
+FLAT_MOUTH_TOL_MM = 0.01
+"""A mouth whose lowest ceiling lies within this of its centre's height (mm) sits wholly on
+a flat top (float and chord noise)."""
+
+FIT_STEP = 0.9
+"""Each try of a sprue narrowed to fit its plateau is this fraction of the one before."""
+
 SERVE_HEIGHT_SLACK_MM = 0.5
 """Extra height band, beyond ``plateau_mm``, within which an opening reaches a plateau."""
 
@@ -419,6 +426,7 @@ def plan_openings(
     far_vent_min_mm: float = 15.0,
     persistence_mm: float = AIR_PERSISTENCE_MM,
     plateau_mm: float = AIR_PLATEAU_MM,
+    narrow_sprue: bool = False,
 ) -> tuple[Opening, ...]:
     """Sprue and vents for the cavity of ``mesh`` (mm, world frame); sprue first.
 
@@ -428,6 +436,11 @@ def plan_openings(
     farthest from every opening until no plateau vertex is farther than ``far_vent_min_mm``
     from one (straight-line distances in mm; at most MAX_EXTRA_VENTS per high point).
     Returns () when the cavity has no high point.
+
+    ``narrow_sprue``: when the highest plateau is too narrow for a mouth of
+    ``sprue_radius_mm`` lying wholly on its flat top (a ring channel's top, 2 mm across),
+    the sprue narrows (down to ``vent_radius_mm`` at least) to the widest mouth that does,
+    at the plateau's most central point (see :func:`_fitted_sprue`).
     """
     for name, value in (("sprue_radius_mm", sprue_radius_mm), ("vent_radius_mm", vent_radius_mm)):
         if not (np.isfinite(value) and value > 0.0):
@@ -442,6 +455,9 @@ def plan_openings(
         # there would hang over the edge (a knife edge of mold), so move it onto the plateau.
         q = np.round(_mouth_point(hps[0], np.asarray(sprue_at), sprue_radius_mm, u), 6) + 0.0
         sprue_at = (float(q[0]), float(q[1]), float(q[2]))
+    if narrow_sprue:
+        sprue_at, sprue_radius_mm = _fitted_sprue(mesh, hps[0], sprue_at, sprue_radius_mm,
+                                                  vent_radius_mm, u)
     openings = [Opening(OpeningKind.SPRUE, sprue_at, float(sprue_radius_mm))]
     # At most one vent per high point from the first pass and MAX_EXTRA_VENTS from the second:
     # preallocate the arrays the reach tests run on instead of rebuilding them every time.
@@ -479,6 +495,57 @@ def plan_openings(
 MOUTH_RAYS = 24
 
 
+def _sits_flat(mesh: TriMesh, u: np.ndarray, at: tuple[float, float, float],
+               radius_mm: float) -> bool:
+    """Whether a mouth of ``radius_mm`` at ``at`` lies wholly over a flat top: every ray sent
+    down onto the cast (a ring at the mouth's radius and its centre, as for the floors)
+    meets it at the centre's own height."""
+    from .rays import RayCaster
+
+    c = np.asarray(at, dtype=np.float64)
+    e1, e2 = _plan_axes(u)
+    ang = np.linspace(0.0, 2.0 * np.pi, MOUTH_RAYS, endpoint=False)
+    ring = np.concatenate([[np.zeros(3)], radius_mm * (
+        np.cos(ang)[:, None] * e1 + np.sin(ang)[:, None] * e2)])
+    top = float((mesh.vertices @ u).max()) + 1.0
+    o = c + ring + (top - c @ u) * u
+    t, _ = RayCaster(mesh).first_hit(o, -u)
+    return bool(np.all(np.isfinite(t))
+                and np.all(np.abs(o @ u - t - c @ u) <= FLAT_MOUTH_TOL_MM))
+
+
+def _fitted_sprue(mesh: TriMesh, hp: HighPoint, at: tuple[float, float, float],
+                  radius_mm: float, least_mm: float, u: np.ndarray
+                  ) -> tuple[tuple[float, float, float], float]:
+    """The sprue mouth (centre, radius mm) for plateau ``hp``: ``at`` and ``radius_mm`` when
+    that mouth lies wholly over the flat top; else, at the plateau point (corner, edge
+    midpoint or centroid of its triangles) farthest from its rim in plan, the widest radius
+    (from that rim distance down by FIT_STEP, not under ``least_mm``) that does; else ``at``
+    and ``radius_mm`` unchanged.
+
+    A mouth reaching over the rounded edge of a narrow top leaves a knife edge of mold
+    between the sprue's floor and the cavity, too thin to print and apt to break into the
+    cast; a narrower sprue under the funnel pours a low-viscosity melt as well."""
+    if _sits_flat(mesh, u, at, radius_mm):
+        return at, radius_mm
+    tris = hp.plateau_triangles_mm
+    # Candidates on the plateau's surface: its corners, edge midpoints and centroids (a
+    # narrow flat top has corners only on its rims).
+    pts = np.concatenate([tris.reshape(-1, 3), 0.5 * (tris + np.roll(tris, 1, axis=1))
+                          .reshape(-1, 3), tris.mean(axis=1)]) if len(tris) else tris
+    clear = _rim_clearance(hp, pts, u)
+    if clear is None or len(pts) == 0:
+        return at, radius_mm
+    i = _pick(pts, clear, largest=True)
+    centre = (float(pts[i][0]), float(pts[i][1]), float(pts[i][2]))
+    r = min(radius_mm, float(clear[i]))
+    while r >= least_mm - 1e-9:
+        if _sits_flat(mesh, u, centre, r):
+            return centre, float(np.round(r, 6))
+        r *= FIT_STEP
+    return at, radius_mm
+
+
 def _with_floors(mesh: TriMesh, u: np.ndarray, openings: list[Opening]) -> tuple[Opening, ...]:
     """Each opening with the lowest ceiling height under its mouth, found by rays sent down
     onto the cast from above it (a ring at the mouth's radius and its centre)."""
@@ -506,6 +573,39 @@ def _with_floors(mesh: TriMesh, u: np.ndarray, openings: list[Opening]) -> tuple
     return tuple(out)
 
 
+def _plan_axes(u: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Two unit vectors spanning the plane normal to ``u`` (the plan)."""
+    a = np.array([1.0, 0.0, 0.0]) if abs(u[0]) < 0.9 else np.array([0.0, 1.0, 0.0])
+    e1 = np.cross(u, a)
+    e1 /= np.linalg.norm(e1)
+    return e1, np.cross(u, e1)
+
+
+def _rim_clearance(hp: HighPoint, q: np.ndarray, u: np.ndarray) -> np.ndarray | None:
+    """Plan distance (mm) of each point of ``q`` to the rim of ``hp``'s plateau (its edges
+    used by one plateau triangle, corners matched to 1e-6 mm); None without a rim."""
+    tris = hp.plateau_triangles_mm
+    if len(tris) == 0:
+        return None
+    e1, e2 = _plan_axes(u)
+    ends = tris[:, [0, 1, 1, 2, 2, 0]].reshape(-1, 2, 3)
+    keys = np.round(ends * 1e6).astype(np.int64)
+    k0, k1 = keys[:, 0], keys[:, 1]
+    swap = _lex_less(k1, k0)[:, None]
+    pair = np.concatenate([np.where(swap, k1, k0), np.where(swap, k0, k1)], axis=1)
+    _, inv, cnt = np.unique(pair, axis=0, return_inverse=True, return_counts=True)
+    rim = ends[cnt[inv.reshape(-1)] == 1]
+    if len(rim) == 0:
+        return None
+    s0 = np.stack([rim[:, 0] @ e1, rim[:, 0] @ e2], axis=1)
+    seg = np.stack([rim[:, 1] @ e1, rim[:, 1] @ e2], axis=1) - s0
+    ll = np.maximum((seg * seg).sum(axis=1), 1e-18)
+    q2 = np.stack([q @ e1, q @ e2], axis=1)
+    rel = q2[:, None, :] - s0[None]
+    t = np.clip((rel * seg[None]).sum(axis=2) / ll[None], 0.0, 1.0)
+    return np.linalg.norm(rel - t[..., None] * seg[None], axis=2).min(axis=1)
+
+
 def _mouth_point(hp: HighPoint, p: np.ndarray, radius_mm: float, u: np.ndarray) -> np.ndarray:
     """A point near ``p`` (the nearest on a quarter-radius grid within three radii, else
     the nearest on the way to the plateau's centre) whose whole vent mouth (a disc of
@@ -518,23 +618,7 @@ def _mouth_point(hp: HighPoint, p: np.ndarray, radius_mm: float, u: np.ndarray) 
     tris = hp.plateau_triangles_mm
     if len(tris) == 0:
         return p
-    a = np.array([1.0, 0.0, 0.0]) if abs(u[0]) < 0.9 else np.array([0.0, 1.0, 0.0])
-    e1 = np.cross(u, a)
-    e1 /= np.linalg.norm(e1)
-    e2 = np.cross(u, e1)
-    # Rim = plateau edges used by one plateau triangle (corners matched to 1e-6 mm).
-    ends = tris[:, [0, 1, 1, 2, 2, 0]].reshape(-1, 2, 3)
-    keys = np.round(ends * 1e6).astype(np.int64)
-    k0, k1 = keys[:, 0], keys[:, 1]
-    swap = _lex_less(k1, k0)[:, None]
-    pair = np.concatenate([np.where(swap, k1, k0), np.where(swap, k0, k1)], axis=1)
-    _, inv, cnt = np.unique(pair, axis=0, return_inverse=True, return_counts=True)
-    rim = ends[cnt[inv.reshape(-1)] == 1]
-    if len(rim) == 0:
-        return p
-    s0 = np.stack([rim[:, 0] @ e1, rim[:, 0] @ e2], axis=1)
-    seg = np.stack([rim[:, 1] @ e1, rim[:, 1] @ e2], axis=1) - s0
-    ll = np.maximum((seg * seg).sum(axis=1), 1e-18)
+    e1, e2 = _plan_axes(u)
     centre = np.asarray(hp.position_mm)
     # Candidates: a plan grid around p (step a quarter radius, out to three radii), nearest
     # first, then the straight way to the plateau's centre.
@@ -544,10 +628,9 @@ def _mouth_point(hp: HighPoint, p: np.ndarray, radius_mm: float, u: np.ndarray) 
     near = np.lexsort((gv.reshape(-1), gu.reshape(-1), np.round(np.hypot(gu, gv).reshape(-1), 9)))
     steps = np.linspace(0.0, 1.0, 41)
     q = np.concatenate([grid[near], p[None, :] + steps[:, None] * (centre - p)[None, :]])
-    q2 = np.stack([q @ e1, q @ e2], axis=1)
-    rel = q2[:, None, :] - s0[None]
-    t = np.clip((rel * seg[None]).sum(axis=2) / ll[None], 0.0, 1.0)
-    clear = np.linalg.norm(rel - t[..., None] * seg[None], axis=2).min(axis=1)
+    clear = _rim_clearance(hp, q, u)
+    if clear is None:
+        return p
     for k in np.flatnonzero(clear >= radius_mm - 1e-6).tolist():
         inside, b1, b2 = _shadow_coords(tris, q[k], u)
         if inside.any():

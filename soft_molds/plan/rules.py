@@ -40,9 +40,10 @@ def lost_core_problems(r: Recipe, line: LineOf) -> list[Problem]:
         if why is not None:
             out.append(Problem(f"voids[{i}]", f"{why}; it needs a lost core", line("core.kind")
                                or line(f"voids[{i}]"), r.core.kind,
-                               "core.kind: dissolved (printed in a water-soluble filament, "
-                               "dissolved and flushed out through the socket after the "
-                               "cure; a melted core is not offered yet)"))
+                               "core.kind: melted | dissolved (cast in wax or a "
+                               "low-melting alloy and melted out, or printed in a "
+                               "water-soluble filament and dissolved out, through the "
+                               "socket after the cure)"))
     return out
 
 

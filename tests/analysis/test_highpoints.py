@@ -18,6 +18,7 @@ import trimesh
 from meshes import from_manifold, from_trimesh
 
 from soft_molds.analysis.highpoints import (
+    FIT_STEP,
     HighPoint,
     Opening,
     find_high_points,
@@ -316,3 +317,23 @@ def test_sprue_on_a_ring_top_lies_wholly_on_the_flat_annulus():
     outer_flat = 22.0 * math.cos(math.pi / 128)
     assert 10.0 + sprue_r - 1e-6 <= rho <= outer_flat - sprue_r + 1e-6
     assert sprue.center_mm[2] == pytest.approx(7.0, abs=1e-6)
+
+
+def test_a_sprue_narrowed_for_a_narrow_ring_top_lies_wholly_on_it():
+    # A thin ring (trimesh.creation.annulus, radii 12 and 14, 10 tall, axis z): its flat top
+    # is 2 mm across, so no 6 mm mouth fits on it and the widest that does is 2 mm across,
+    # centred at radius 13 (elementary geometry). Narrowed, the sprue's mouth lies between
+    # the rims (plan distance from the axis in [12 + r, 14 cos(pi / 128) - r], the outer
+    # 128-gon's edge middles) at its widest within one narrowing step; its floor is the top.
+    ring = from_trimesh(trimesh.creation.annulus(r_min=12.0, r_max=14.0, height=10.0,
+                                                 sections=128))
+    wide = plan_openings(ring, UP, sprue_radius_mm=3.0, vent_radius_mm=0.5)[0]
+    assert wide.radius_mm == 3.0  # unchanged unless asked for
+    sprue = plan_openings(ring, UP, sprue_radius_mm=3.0, vent_radius_mm=0.5,
+                          narrow_sprue=True)[0]
+    r = sprue.radius_mm
+    assert FIT_STEP * 1.0 * math.cos(math.pi / 128) <= r <= 1.0
+    rho = math.hypot(sprue.center_mm[0], sprue.center_mm[1])
+    assert 12.0 + r - 1e-6 <= rho <= 14.0 - r + 1e-6
+    assert sprue.center_mm[2] == pytest.approx(5.0, abs=1e-6)
+    assert sprue.floor_mm == pytest.approx(5.0, abs=1e-3)  # rays stop 1e-4 short

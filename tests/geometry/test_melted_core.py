@@ -1,4 +1,5 @@
-"""The melted-core build of the bundled wax tray-lift pad, step by step, checked with
+"""The melted-core build of each bundled melted-core recipe (the wax tray-lift pad, the
+wax stem ring cuff whose core is a closed ring channel), step by step, checked with
 independent libraries on the meshes (manifold3d booleans and connected components, trimesh
 proximity), as every one-shot mold set is (tests/geometry/test_mold.py,
 test_mold_release.py):
@@ -10,7 +11,7 @@ test_mold_release.py):
   taken from both) the closed cavity and the core agree to 0.1 %;
 - the core mold casts the silicone step's core: the same solid.
 
-The recipe is built once per session (conftest.built_steps).
+Each recipe is built once per session (conftest.built_steps).
 """
 
 from __future__ import annotations
@@ -21,18 +22,17 @@ import manifold3d as m3
 import numpy as np
 import pytest
 import trimesh
-from conftest import built_steps
+from conftest import MELTED, built_steps
 
-NAME = "tray-lift-pad-wax"
 #: As in test_mold_release.py: overlap of parts touching face to face (per mm3 of the
 #: smaller), and how far the air reaches beyond the closed mold (mm).
 TOUCH_FRACTION = 5e-4
 MARGIN_MM = 10.0
 
 
-@pytest.fixture(scope="module")
-def melted():
-    return built_steps(NAME)
+@pytest.fixture(scope="module", params=MELTED)
+def melted(request):
+    return built_steps(request.param)
 
 
 def manifold(mesh) -> m3.Manifold:

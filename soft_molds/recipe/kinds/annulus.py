@@ -9,11 +9,11 @@ the outer face (x = 0) to the channel.
 
 ``opens_to`` says where the channel opens. ``none``: a closed channel, formed by a core that
 cannot be drawn out through a socket (it runs all round the ring): it is built only on a
-lost core (``core.kind: dissolved``); the plan refuses it on a pulled core, naming that way
-out. ``outside`` (an open groove round the outer face, closed afterwards by a bonded band)
-needs a mold parted through the ring's axis with a separate bore pin, and ``inside`` (an
-open groove in the bore) a collapsible core: neither mold is built yet, and both are refused
-when the recipe is read, each with its reason.
+lost core (``core.kind: melted`` or ``dissolved``); the plan refuses it on a pulled core,
+naming those ways out. ``outside`` (an open groove round the outer face, closed afterwards
+by a bonded band) needs a mold parted through the ring's axis with a separate bore pin,
+and ``inside`` (an open groove in the bore) a collapsible core: neither mold is built yet,
+and both are refused when the recipe is read, each with its reason.
 """
 
 from __future__ import annotations
@@ -46,7 +46,8 @@ class Annulus:
     plus ``depth_mm``, ``height_mm`` along the ring's axis centred on z = 0, its four
     corners rounded by ``corner_round_mm``; a feed of ``feed_diameter_mm`` along +x on the
     axis y = z = 0 from the inlet plane x = 0 (inside the tube socket on the outer face)
-    into the channel (mm). Only ``opens_to: none`` (closed, on a dissolved core) builds."""
+    into the channel (mm). Only ``opens_to: none`` (closed, on a melted or dissolved core)
+    builds."""
 
     FIELDS: ClassVar[tuple[Field, ...]] = (
         number("wall_mm", "silicone between the bore and the channel: the wall that "
@@ -54,7 +55,7 @@ class Annulus:
         number("depth_mm", "radial depth of the channel"),
         number("height_mm", "extent of the channel along the ring's axis"),
         choice("opens_to", "where the channel opens: none (closed; needs core.kind: "
-               "dissolved), outside or inside (open grooves; not built yet)",
+               "melted or dissolved), outside or inside (open grooves; not built yet)",
                ("none", "outside", "inside"), "none"),
         number("corner_round_mm", "rounding of the channel's four circular corners", 0.5,
                lo=0.0, lo_open=False),
@@ -73,7 +74,8 @@ class Annulus:
         if v["opens_to"] in NOT_BUILT:
             out.append(Problem(f"{path}.opens_to", f"is {v['opens_to']}: that channel "
                                f"{NOT_BUILT[v['opens_to']]}", line, v["opens_to"],
-                               "none (a closed channel on core.kind: dissolved)"))
+                               "none (a closed channel on core.kind: melted or "
+                               "dissolved)"))
         limit = MAX_ROUND_SHARE * min(v["depth_mm"], v["height_mm"])
         if v["corner_round_mm"] > limit:
             out.append(Problem(f"{path}.corner_round_mm", "is too large for the channel", line,
