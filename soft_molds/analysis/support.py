@@ -7,8 +7,9 @@ core's volume standing in the silicone (the part inside the body: its voids and 
 socket plug), positive when it floats up (along the pour's up), in newtons.
 
 Supports: what holds the core in the closed mold. Today each core has one, its core print
-seated in the two shells at the socket's face (:class:`Support` of kind ``print``); a
-further kind (a second print, a peg) adds to :func:`supports_of`'s tuple. A core held by
+seated in the two shells at the socket's face (:class:`Support` of kind ``print``), and
+a disc magnet pair in its key and seat (kind ``magnets``, with ``core.support`` magnets
+or both); a further kind (a second print, a peg) adds to :func:`supports_of`'s tuple. A core held by
 two or more supports spans between them and is not checked here.
 
 Criterion for one support (from memory, kept simple): the print is a round cantilever
@@ -50,8 +51,9 @@ HOLD_STRESS_MPA = {"wax": 0.5, "low-melt-alloy": 10.0, "soluble-filament": 5.0}
 @dataclass(frozen=True)
 class Support:
     """One thing holding a core in the closed mold: ``kind`` ("print": its core print,
-    seated in both shells), where it meets the cavity (``at_mm``, world) and the radius of
-    its section there (mm)."""
+    seated in both shells; "magnets": a disc magnet pair in the print's key and its
+    seat), where it meets the cavity (``at_mm``, world) and the radius of its section
+    there (the magnet's for a pair; mm)."""
 
     kind: str
     at_mm: tuple[float, float, float]
@@ -142,11 +144,18 @@ def immersed(core: TriMesh, face_x_mm: float, outward: float
 
 
 def supports_of(r: Recipe, inlet_index: int) -> tuple[Support, ...]:
-    """What holds the core that leaves through ``r.inlets[inlet_index]``: its print."""
+    """What holds the core that leaves through ``r.inlets[inlet_index]``: its print
+    (``core.support`` prints or both) and its magnet pair (magnets or both; ``radius_mm``
+    the magnet's), both where the print meets the cavity wall."""
     inlet = r.inlets[inlet_index]
     cy, cz = inlet.center_mm
-    return (Support("print", (inlet.face_x_mm(r.body_length_mm), cy, cz),
-                    inlet.socket_diameter_mm / 2.0),)
+    at = (inlet.face_x_mm(r.body_length_mm), cy, cz)
+    out = []
+    if r.core.support in ("prints", "both"):
+        out.append(Support("print", at, inlet.socket_diameter_mm / 2.0))
+    if r.core.magnets:
+        out.append(Support("magnets", at, r.core.magnet_diameter_mm / 2.0))
+    return tuple(out)
 
 
 def core_support(r: Recipe, part: str, core: TriMesh, inlet_index: int
@@ -162,7 +171,9 @@ def core_support(r: Recipe, part: str, core: TriMesh, inlet_index: int
     force = net_force_n(rho_s, rho_c, vol)
     sups = supports_of(r, inlet_index)
     lever = abs(centre[0] - face_x)
+    # A magnet pair's pull is the supplier's figure, not one this check knows: it is
+    # counted, not rated.
     holding = (print_holding_nmm(HOLD_STRESS_MPA[core_material(r)], sups[0].radius_mm)
-               if len(sups) == 1 else None)
+               if len(sups) == 1 and sups[0].kind == "print" else None)
     return CoreSupportFigures(part, core_material(r), rho_c, rho_s, vol, centre, force,
                               sups, lever, abs(force) * lever, holding)

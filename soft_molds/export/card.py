@@ -141,7 +141,8 @@ def card_blocks(family: Sequence[Manifest], title: str,
     blocks += _check_blocks([man for man, _ in cast])
     blocks += _print_blocks(cast)
     blocks.append(("h2", "Cautions"))
-    blocks.append(("ul", list(CAUTIONS)))
+    magnets = any(man.params.core_magnets_mm is not None for man, _ in cast)
+    blocks.append(("ul", [*CAUTIONS, *((MAGNET_CAUTION,) if magnets else ())]))
     return blocks
 
 
@@ -392,8 +393,32 @@ def _tubes_line(man: Manifest) -> str | None:
             + "; ".join(parts) + ".")
 
 
+#: The caution a card with magnets adds.
+MAGNET_CAUTION = (
+    "Small magnets are a swallowing hazard: two swallowed magnets (or one and a piece of "
+    "steel) can pinch the gut between them. Keep loose magnets, and the mold parts that "
+    "hold them, away from children and pets. They can chip or shatter when they snap "
+    "together; wear eye protection. Their pull, the heat they stand (a melted core or a "
+    "heated cure) and their handling are the supplier's data sheet's: it wins.")
+
+
+def _magnet_line(man: Manifest) -> str | None:
+    size = man.params.core_magnets_mm
+    if size is None:
+        return None
+    d, t = size
+    cores = max(1, len(man.params.inlets))
+    return (f"Disc magnets: {2 * cores} ({d:g} mm across x {t:g} mm thick), a pair per "
+            "core: press one flush into the pocket under each core print's square key and "
+            "one into the pocket in the lower shell's seat below it, turned so that the "
+            "pair attracts (the north face of one towards the south face of the other; "
+            "try each pair together before pressing it in). The pockets are a press fit; a "
+            "drop of glue holds a loose one.")
+
+
 def _hardware_blocks(family: Sequence[Manifest]) -> list[Block]:
-    items = _grouped(family, _screw_line) + _grouped(family, _tube_line)
+    items = (_grouped(family, _screw_line) + _grouped(family, _tube_line)
+             + _grouped(family, _magnet_line))
     return [("h2", "Have at hand"), ("ul", items)] if items else []
 
 

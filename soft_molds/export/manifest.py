@@ -308,6 +308,18 @@ class RecipeEcho:
         return _inlets(self.data, "params")
 
     @property
+    def core_magnets_mm(self) -> tuple[float, float] | None:
+        """The disc magnets' (diameter, thickness) in mm when a magnet pair holds each
+        core (``core.support`` magnets or both), else None."""
+        core = self.data.get("core")
+        if not isinstance(core, dict) or core.get("support") not in ("magnets", "both"):
+            return None
+        d, t = core.get("magnet_diameter_mm"), core.get("magnet_thickness_mm")
+        if not isinstance(d, (int, float)) or not isinstance(t, (int, float)):
+            return None
+        return float(d), float(t)
+
+    @property
     def core_dissolved(self) -> bool:
         """Whether the core is dissolved out rather than pulled (``core.kind``)."""
         core = self.data.get("core")

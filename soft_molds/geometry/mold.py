@@ -17,6 +17,7 @@ import numpy as np
 
 from ..errors import GeometryError
 from ..plan.layout import MIN_LAND_MM, NOTCH_HALF_HEIGHT_MM, Layout
+from ..plan.magnets import MagnetPockets, magnet_pockets
 from ..plan.model import CastingStep, CoreSupport, OpeningKind
 from ..plan.tags import core_label_text, core_tag, label_margin
 from ..recipe.model import MoldSettings, Recipe
@@ -133,6 +134,7 @@ def label_core(r: Recipe, step: CastingStep, core: k.Shape,
     cut the label into its +w face."""
     parting = step.settled_parting
     support = support or step.core_supports[0]
+    core = cut_core_magnet_pocket(r, step, core, support)
     tab = core_tag(r, support, parting, step.core_supports)
     if tab is None:
         return core, None
@@ -149,6 +151,31 @@ def label_core(r: Recipe, step: CastingStep, core: k.Shape,
     right = np.cross(up, normal)
     return cut_label(r, core, support.part, centre, right, up, hi[va] - lo[va],
                      core_label_text(r, support))
+
+
+def magnet_pocket_tools(pockets: MagnetPockets) -> tuple[k.Shape, k.Shape]:
+    """The cut tools of a magnet pair's pockets: (the core's, running up from the key's
+    underside; the seat's, running down from the seat's floor). Each starts a little
+    outside its face, in the seat's fit gap (empty either way), so it opens cleanly."""
+    c = list(pockets.centre_mm)
+    a, rp, d = pockets.axis, pockets.radius_mm, pockets.depth_mm
+    c[a] = pockets.core_face_mm - 0.1
+    core_tool = k.cylinder(a, tuple(c), d + 0.1, rp)
+    c[a] = pockets.seat_face_mm - d
+    seat_tool = k.cylinder(a, tuple(c), d + 0.1, rp)
+    return core_tool, seat_tool
+
+
+def cut_core_magnet_pocket(r: Recipe, step: CastingStep, core: k.Shape,
+                           support: CoreSupport) -> k.Shape:
+    """The blind pocket for the magnet in the underside of ``support``'s print key (none
+    without magnets); cut once the parting, and so the pour's up, is settled."""
+    pockets = magnet_pockets(r, support, step.settled_parting)
+    if pockets is None:
+        return core
+    tool, _ = magnet_pocket_tools(pockets)
+    vol = k.volume(core) - math.pi * pockets.radius_mm ** 2 * pockets.depth_mm
+    return k.cut(core, [tool], support.part, "cut the magnet pocket", volume_mm3=vol)
 
 
 @dataclass(frozen=True)
@@ -259,6 +286,11 @@ def build_shells(r: Recipe, step: CastingStep, cs: CastSolids) -> ShellSolids:
                for klo, khi in (sup.key_box for sup in step.core_supports)]
     w_lo, w_hi = lay.block_lo[wa], lay.block_hi[wa]
     tools = [cs.body, *cs.cores, *pockets]
+    # The seat's magnet pockets lie wholly below the parting plane: the lower shell's.
+    for sup in step.core_supports:
+        mp = magnet_pockets(r, sup, step.settled_parting)
+        if mp is not None:
+            tools.append(magnet_pocket_tools(mp)[1])
     if m.clamp_hole_mm is not None:
         for u, v in lay.bolts_uv:
             tools.append(k.cylinder(wa, f.world(u, v, w_lo - 1.0), w_hi - w_lo + 2.0,

@@ -12,6 +12,7 @@ from ..errors import Problem, RecipeError
 from ..recipe.model import Recipe
 from .layout import Layout, plan_layout
 from .lines import LineOf, line_finder
+from .magnets import magnet_kind_problems, magnet_problems
 from .model import (
     CastingStep,
     ChosenBy,
@@ -45,7 +46,8 @@ DEFAULT_PROCESS = "one-shot"
 def plan_problems(r: Recipe) -> list[Problem]:
     """Every rule of the mold the recipe breaks (empty when it can be planned)."""
     line = line_finder(r.lines)
-    out = frame_problems(r, line) + lost_core_problems(r, line)
+    out = (frame_problems(r, line) + lost_core_problems(r, line)
+           + magnet_kind_problems(r, line))
     if out:
         return out
     if r.core.melted:
@@ -63,6 +65,15 @@ def plan_problems(r: Recipe) -> list[Problem]:
         prints = print_problems(r, line)
         if prints:
             return prints
+    if r.core.magnets:
+        from .processes.one_shot import steps
+
+        # The key is square across the inlet axis: its walls are the same for either
+        # parting axis, so an automatic parting is checked on z.
+        axis = "z" if r.parting.auto else r.parting.axis
+        pockets = magnet_problems(r, steps(r)[0].core_supports, PartingPlane(axis, 0.0), line)
+        if pockets:
+            return pockets
     if not r.parting.auto:
         assert r.parting.offset_mm is not None
         return parting_problems(r, r.parting.axis, r.parting.offset_mm, line)

@@ -232,6 +232,17 @@ class CoreSettings:
 
     kind: str = "pulled"
     material: str = "wax"
+    #: What holds the core: "prints", "magnets" or "both" (see :attr:`magnets`).
+    support: str = "prints"
+    magnet_diameter_mm: float = 2.0
+    magnet_thickness_mm: float = 1.0
+    #: Pocket diameter minus magnet diameter (mm): negative is a press fit.
+    press_fit_mm: float = -0.1
+
+    @property
+    def magnets(self) -> bool:
+        """A disc magnet pair holds the core: one in the print's key, one in the seat."""
+        return self.support != "prints"
 
     @property
     def lost(self) -> bool:
@@ -243,8 +254,13 @@ class CoreSettings:
 
     def params(self) -> dict[str, Any]:
         """The echo of a lost core: the material only where it is read (a melted core), so
-        a dissolved core hashes as before the material existed."""
-        return {"kind": self.kind, **({"material": self.material} if self.melted else {})}
+        a dissolved core hashes as before the material existed; the magnet fields only
+        with magnets, so a core held by its print hashes as before they existed."""
+        magnets = ({"support": self.support, "magnet_diameter_mm": self.magnet_diameter_mm,
+                    "magnet_thickness_mm": self.magnet_thickness_mm,
+                    "press_fit_mm": self.press_fit_mm} if self.magnets else {})
+        return {"kind": self.kind, **({"material": self.material} if self.melted else {}),
+                **magnets}
 
 
 #: The process fields each multi-step kind reads.
@@ -361,7 +377,8 @@ class Recipe:
             # or without a process block.
             **({"process": self.process.params()} if self.process.multi_step else {}),
             # Likewise a pulled core (the default) hashes as before the core block existed.
-            **({"core": self.core.params()} if self.core.lost else {}),
+            # Magnets, set off the default, echo too (with them a pulled core's block).
+            **({"core": self.core.params()} if self.core.lost or self.core.magnets else {}),
         }
 
     @property

@@ -198,6 +198,19 @@ CORE_FIELDS: tuple[Field, ...] = (
     choice("material", "what a melted core is cast in: wax (paraffin-type casting wax) or "
            "low-melt-alloy (a bismuth-based alloy melting below boiling water); read only "
            "with kind melted", tuple(CORE_DENSITY_G_CM3), "wax"),
+    choice("support", "what holds the core in the closed mold: prints (its core print, "
+           "seated in both shells), magnets (a disc magnet pressed into the underside of "
+           "the print's key and one into the lower shell's seat below it, attracting) or "
+           "both (the print and the magnet pair counted as two supports); magnets need a "
+           "printed core print (one-shot process, core pulled or dissolved)",
+           ("prints", "magnets", "both"), "prints"),
+    number("magnet_diameter_mm", "diameter of each disc magnet (read only with support "
+           "magnets or both)", 2.0, lo=0.5, hi=50.0),
+    number("magnet_thickness_mm", "thickness of each disc magnet (read only with support "
+           "magnets or both)", 1.0, lo=0.3, hi=20.0),
+    number("press_fit_mm", "pocket diameter minus magnet diameter: negative presses the "
+           "magnet in (-0.1 mm is a usual press fit on a printed hole, common practice), "
+           "positive leaves it loose for glue", -0.1, lo=-0.5, hi=0.5, lo_open=False),
 )
 
 BLOCKS: dict[str, tuple[Field, ...]] = {

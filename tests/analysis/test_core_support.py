@@ -75,12 +75,19 @@ def test_the_bundled_lost_cores_feel_archimedes_force(name, core_g_cm3, print_r_
     want = (rho_s - core_g_cm3) * 1e3 * G * v * 1e-9
     assert fig.net_force_n == pytest.approx(want, rel=5e-3)
     assert fig.floats is (core_g_cm3 < rho_s)
-    assert len(fig.supports) == 1 and fig.supports[0].kind == "print"
-    # One print of the socket's radius: it holds sigma pi r^3 / 4 (the section modulus of a
-    # round bar, any strength-of-materials text); the moment is |F| times the lever arm.
-    assert fig.holding_nmm == pytest.approx(
-        HOLD_STRESS_MPA[fig.material] * math.pi * print_r_mm ** 3 / 4.0)
     assert fig.moment_nmm == pytest.approx(abs(fig.net_force_n) * fig.lever_mm)
+    if molds.recipe.core.magnets:
+        # The dissolved pad's core is held by its magnet pair alone (core.support:
+        # magnets), counted as its one support and not rated (the supplier's figure).
+        assert [s.kind for s in fig.supports] == ["magnets"]
+        assert fig.supports[0].radius_mm == pytest.approx(1.0)  # a 2 mm disc
+        assert fig.holding_nmm is None
+    else:
+        assert len(fig.supports) == 1 and fig.supports[0].kind == "print"
+        # One print of the socket's radius: it holds sigma pi r^3 / 4 (the section modulus
+        # of a round bar, any strength-of-materials text); the moment is |F| times the lever.
+        assert fig.holding_nmm == pytest.approx(
+            HOLD_STRESS_MPA[fig.material] * math.pi * print_r_mm ** 3 / 4.0)
     (f,) = [f for f in molds.findings if f.check == "core-support"]
     assert f.severity is Severity.INFO and not fig.overloaded
 
@@ -108,3 +115,17 @@ def test_a_pulled_core_gets_no_support_finding(finger):
     # The finger's core is printed in the mold's filament and pulled: nothing to weigh.
     assert not [f for f in finger.findings if f.check == "core-support"]
     assert finger.review.result(CoreSupports) is None
+
+
+def test_supports_count_the_magnet_pair_beside_the_print():
+    # core.support: both counts the print and the magnet pair, two supports spanning the
+    # core (the one-print cantilever rating is then not applied).
+    from soft_molds.analysis.support import supports_of
+
+    text = edit(recipe_path("tray-lift-pad").read_text(), "support: magnets", "support: both")
+    r = recipe_from_text(text, "both.yaml", "both")
+    assert [s.kind for s in supports_of(r, 0)] == ["print", "magnets"]
+    fig = core_support(r, "core", box_mesh((-20.0, -20.0, -3.0), (50.0, 20.0, 3.0)), 0)
+    assert fig.holding_nmm is None and "spanning" in _finding(fig).message
+    prints = recipe_from_text(edit(text, "support: both", "support: prints"), "p.yaml", "p")
+    assert [s.kind for s in supports_of(prints, 0)] == ["print"]

@@ -189,3 +189,23 @@ def test_a_family_says_a_shared_line_once_and_labels_lines_that_differ(finger):
     assert sum(t.startswith("Clamp screws: 6 M4 x 35") for t in items) == 1  # both alike
     assert "A: Tube: 4 mm outer diameter" in " ".join(items)
     assert "B: Tube: 5 mm outer diameter" in " ".join(items)
+
+
+def test_a_magnet_held_core_lists_its_magnets_the_poles_and_the_cautions(finger):
+    # The dissolved tray-lift pad's core is held by a 2 x 1 mm disc pair (one core: two
+    # magnets); the finger's by its print alone: no magnet line, no magnet caution.
+    from conftest import built_variant
+
+    pad = built_variant("tray-lift-pad", "A").manifest()
+    assert pad.params.core_magnets_mm == (2.0, 1.0)
+    blocks = card_blocks([pad], "pad")
+    have = next(b[1] for i, b in enumerate(blocks) if blocks[i - 1] == ("h2", "Have at hand"))
+    (line,) = [x for x in have if x.startswith("Disc magnets")]
+    assert "Disc magnets: 2 (2 mm across x 1 mm thick)" in line
+    assert "attracts" in line and "north face of one towards the south face" in line
+    cautions = blocks[-1][1]
+    (caution,) = [c for c in cautions if "magnet" in c]
+    assert "swallowing hazard" in caution and "children" in caution
+    assert "data sheet" in caution
+    plain = card_blocks([finger.manifest()], "finger")
+    assert not any("magnet" in str(b).lower() for b in plain)

@@ -37,6 +37,10 @@ def _finding(f: CoreSupportFigures) -> Finding:
     head = (f"the {f.material} core ({f.core_density_g_cm3:g} g/cm3, {f.immersed_mm3:.0f} "
             f"mm3 in silicone of {f.silicone_density_g_cm3:g} g/cm3) {way} with a net "
             f"{abs(f.net_force_n):.3f} N, held by {len(f.supports)} support(s)")
+    if f.holding_nmm is None and len(f.supports) == 1:
+        return finding("core-support", Severity.INFO, f.part, head + ": its magnet pair, "
+                       "whose pull is the supplier's figure (see its data sheet)",
+                       value=f.net_force_n)
     if f.holding_nmm is None:
         return finding("core-support", Severity.INFO, f.part, head + ", spanning between "
                        "them", value=f.net_force_n)
