@@ -152,8 +152,10 @@ def build_casts(bladder_step: Overmold, skin_step: Overmold) -> OvermoldCasts:
     skin = k.cut(cavity, [outside, core], "cast", "cut the bladder from the skin cavity",
                  volume_mm3=cavity_vol - out_vol - beyond)
     if not bl.half_round:
+        # A long single guide's sweep integrates 7e-5 apart once its neighbours are
+        # divided (measured): the ridged solids' slack applies.
         bladder, skin = (k.divide_revolved_faces(s, ROUND_FACE_MAX_DEG, "cast",
-                                                 "divide the round faces")
+                                                 "divide the round faces", RIDGE_VOLUME_TOL)
                          for s in (bladder, skin))
     return OvermoldCasts(outside, bladder, core, cavity, skin)
 
@@ -199,6 +201,6 @@ def build_shells(om: Overmold, cavity: cq.Shape, core: cq.Shape,
                             "shell-upper")
     if not om.bladder.half_round:
         lower, upper = (k.divide_revolved_faces(s, ROUND_FACE_MAX_DEG, part,
-                                                "divide the round faces")
+                                                "divide the round faces", RIDGE_VOLUME_TOL)
                         for s, part in ((lower, "shell-lower"), (upper, "shell-upper")))
     return OvermoldShells(lower, upper, fill)

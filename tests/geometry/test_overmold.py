@@ -89,9 +89,14 @@ def test_the_skin_is_the_cavity_less_the_bladder_and_core(om):
     lo, hi = cavity.bounding_box()[:3], cavity.bounding_box()[3:]
     assert lo[0] == pytest.approx(0.0, abs=1e-6) and hi[0] == pytest.approx(
         sk.cavity_end_x_mm, abs=1e-6)
-    rest = cavity - manifold(first.part("cast").mesh) - manifold(first.part("core").mesh)
+    bladder, core = manifold(first.part("cast").mesh), manifold(first.part("core").mesh)
+    rest = cavity - bladder - core
     skin = manifold(second.part("cast").mesh)
-    assert skin.volume() == pytest.approx(rest.volume(), rel=MESH_TOL)
+    # Each mesh is within MESH_TOL of its solid, inscribed: the bladder's and the core's
+    # losses add to the rest while the skin's takes from it, so the errors stack (measured
+    # 0.29 %: 10.5, 11.0 and 7.8 mm3 lost by the bladder, core and skin meshes).
+    stacked = MESH_TOL * (skin.volume() + bladder.volume() + core.volume())
+    assert skin.volume() == pytest.approx(rest.volume(), abs=stacked)
     # And by the closed forms: the capped cylinder less the tube filled, the ridges and
     # the core's tip beyond the bladder.
     big, small, length, h, w, _ = figures(om)
