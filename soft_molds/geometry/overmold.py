@@ -43,6 +43,11 @@ CAVITY_OVERLAP_MM = 0.3
 #: to 1e-7). Cutting a long single guide into touching half turns was worse (1.4 % short
 #: at a 2 mm pitch), so the slack is 1e-4 and a single guide is one sweep.
 RIDGE_VOLUME_TOL = 1e-4
+#: Widest face about the axis a round tube's meshed solids keep (deg): its one cylindrical
+#: face, pierced by every ridge's footprint, meshed with facets sunk up to 1.5 mm into
+#: pits no shell followed; quarter faces mesh within the chord (a half-round's curved
+#: face, 180 degrees, meshed cleanly and is left whole).
+ROUND_FACE_MAX_DEG = 90.0
 
 
 @dataclass(frozen=True)
@@ -146,6 +151,12 @@ def build_casts(bladder_step: Overmold, skin_step: Overmold) -> OvermoldCasts:
     beyond = c.section_mm2() * (c.end_x_mm - bl.length_mm)
     skin = k.cut(cavity, [outside, core], "cast", "cut the bladder from the skin cavity",
                  volume_mm3=cavity_vol - out_vol - beyond)
+    if not bl.half_round:
+        # A long single guide's sweep integrates 7e-5 apart once its neighbours are
+        # divided (measured): the ridged solids' slack applies.
+        bladder, skin = (k.divide_revolved_faces(s, ROUND_FACE_MAX_DEG, "cast",
+                                                 "divide the round faces", RIDGE_VOLUME_TOL)
+                         for s in (bladder, skin))
     return OvermoldCasts(outside, bladder, core, cavity, skin)
 
 
@@ -188,4 +199,8 @@ def build_shells(om: Overmold, cavity: cq.Shape, core: cq.Shape,
     if not k.volume(upper) < before:
         raise GeometryError("cut key sockets, sprue and vents", "nothing was removed",
                             "shell-upper")
+    if not om.bladder.half_round:
+        lower, upper = (k.divide_revolved_faces(s, ROUND_FACE_MAX_DEG, part,
+                                                "divide the round faces", RIDGE_VOLUME_TOL)
+                        for s, part in ((lower, "shell-lower"), (upper, "shell-upper")))
     return OvermoldShells(lower, upper, fill)

@@ -89,9 +89,14 @@ def test_the_skin_is_the_cavity_less_the_bladder_and_core(om):
     lo, hi = cavity.bounding_box()[:3], cavity.bounding_box()[3:]
     assert lo[0] == pytest.approx(0.0, abs=1e-6) and hi[0] == pytest.approx(
         sk.cavity_end_x_mm, abs=1e-6)
-    rest = cavity - manifold(first.part("cast").mesh) - manifold(first.part("core").mesh)
+    bladder, core = manifold(first.part("cast").mesh), manifold(first.part("core").mesh)
+    rest = cavity - bladder - core
     skin = manifold(second.part("cast").mesh)
-    assert skin.volume() == pytest.approx(rest.volume(), rel=MESH_TOL)
+    # Each mesh is within MESH_TOL of its solid, inscribed: the bladder's and the core's
+    # losses add to the rest while the skin's takes from it, so the errors stack (measured
+    # 0.29 %: 10.5, 11.0 and 7.8 mm3 lost by the bladder, core and skin meshes).
+    stacked = MESH_TOL * (skin.volume() + bladder.volume() + core.volume())
+    assert skin.volume() == pytest.approx(rest.volume(), abs=stacked)
     # And by the closed forms: the capped cylinder less the tube filled, the ridges and
     # the core's tip beyond the bladder.
     big, small, length, h, w, _ = figures(om)
@@ -198,3 +203,36 @@ def test_single_and_no_guides_build_to_their_closed_forms(guides):
             - math.pi * big ** 2 * length - ridges
             - math.pi * small ** 2 * (sk.core.end_x_mm - length))
     assert casts.skin.Volume() == pytest.approx(skin, rel=1e-4)
+
+
+def test_a_ridged_round_tube_meshes_within_the_chord_once_its_faces_are_quartered():
+    """A short tube of radius 8 mm with three guide pieces fused on (a small copy of the
+    demo's first turn): after dividing, no face of revolution spans over 90 degrees
+    (its u range, the angle about the axis, read from the kernel) and no facet sinks below
+    the cylinder by more than the chord (every facet of a mesh within chord c of a convex
+    surface lies at most c inside it, elementary geometry). Measured: meshed as one face,
+    facets sank 0.035 mm at a 0.02 mm chord here and 1.5 mm on the demo."""
+    from OCP.BRepTools import BRepTools
+
+    from soft_molds.geometry import kernel as k
+    from soft_molds.geometry.overmold import ROUND_FACE_MAX_DEG, ridge_piece
+    from soft_molds.geometry.tessellate import tessellate
+    from soft_molds.plan.model import Bladder, GuidePiece
+
+    r_mm, length_mm, chord_mm = 8.0, 12.0, 0.02
+    pieces = (GuidePiece(1, 0.88, 5.40), GuidePiece(-1, 0.0, 2.26), GuidePiece(-1, 4.02, 8.55))
+    bl = Bladder(r_mm, 5.0, length_mm, 6.0, 0.8, 1.2, 3.0, pieces)
+    tube = k.cylinder(0, (0.0, 0.0, 0.0), length_mm, r_mm)
+    whole = k.fuse([tube, *(ridge_piece(bl, p) for p in pieces)], "cast", "fuse")
+    quartered = k.divide_revolved_faces(whole, ROUND_FACE_MAX_DEG, "cast", "divide")
+    # The same solid: only the volume integration over other faces differs (5e-8 here).
+    assert k.volume(quartered) == pytest.approx(k.volume(whole), rel=1e-6)
+    spans = [BRepTools.UVBounds_s(f.wrapped) for f in quartered.Faces()
+             if f.geomType() == "CYLINDER"]
+    assert len(spans) >= 4
+    assert max(u1 - u0 for u0, u1, _, _ in spans) <= math.radians(ROUND_FACE_MAX_DEG) + 1e-9
+    mesh = tessellate(quartered, chord_mm, 12.0, "cast")
+    centres = np.asarray(mesh.vertices)[np.asarray(mesh.faces)].mean(axis=1)
+    on_side = (centres[:, 0] > 1e-3) & (centres[:, 0] < length_mm - 1e-3)
+    sunk = r_mm - np.hypot(centres[on_side, 1], centres[on_side, 2]).min()
+    assert sunk <= chord_mm

@@ -91,23 +91,11 @@ def foot(o) -> float:
     return float(o.center_mm[2] if o.floor_mm is None else o.floor_mm)
 
 
-@pytest.fixture(scope="module", params=[
-    pytest.param(NAMES[0], marks=pytest.mark.xfail(strict=True, reason=(
-        "measured: the round bladder's mesh has pits near two ridge ends (x 4-7 and 49-53 "
-        "mm), up to 1.5 mm deep, that no shell surface follows (99.2 % and 99.1 % of the "
-        "surface on a tool; 4.3 mm3 of air beside a vent); its kernel volumes agree with "
-        "the closed forms"))),
-    NAMES[1]])
-def om_surface(request):
-    return built_steps(request.param)
-
-
 def test_each_cast_lies_on_a_mold_a_core_or_the_first_pour_but_under_its_openings(
-        om_surface):
+        om):
     """Sampled points of each cast's surface lie within 0.05 mm of a surface it was poured
     against (trimesh proximity): at least 99.5 % of those away from the sprue and vent
     mouths, which take at most 5 % of the surface."""
-    om = om_surface
     for s in om.steps:
         cast = s.part("cast").mesh.to_trimesh()
         tools = trimesh.util.concatenate([p.mesh.to_trimesh() for p in around(om, s)])
@@ -130,12 +118,11 @@ def grown(solid: m3.Manifold, by_mm: float) -> m3.Manifold:
         m3.OpType.Add)
 
 
-def test_each_cavity_reaches_the_outside_only_through_its_top_openings(om_surface):
+def test_each_cavity_reaches_the_outside_only_through_its_top_openings(om):
     """The mold block less every solid in it (shells, core, first pour, each grown by
     0.1 mm to close the films between facetings) and less the cast leaves pieces of air:
     every piece that touches the cast (the cast grown by 0.2 mm meets it) lies in the
     sprue and vent bores above it and runs out of the top face."""
-    om = om_surface
     for s in om.steps:
         o = s.overmold
         block = m3.Manifold.cube(tuple(b - a for a, b in zip(o.block_lo, o.block_hi))
