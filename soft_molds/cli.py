@@ -286,9 +286,10 @@ def cmd_check(args: argparse.Namespace) -> int:
         return 2
     failed = []
     files: dict[str, bool] = {}  # recipe file -> every variant passed
-    for _, r in variants:
+    recipes = [r for _, r in variants]
+    for r, (text, problem) in zip(recipes, _checked(recipes, args)):
+        print(text, end="")
         files.setdefault(r.source, True)
-        problem = _check_one(r, args)
         if problem is not None:
             failed.append(problem)
             files[r.source] = False
@@ -299,11 +300,40 @@ def cmd_check(args: argparse.Namespace) -> int:
     return 1 if failed else 0
 
 
-def _check_one(r, args: argparse.Namespace) -> str | None:
-    """Build and check one variant, print its parts and findings, and say why it failed
+def _checked(recipes: list, args: argparse.Namespace):
+    """``(report, problem)`` of each variant, in the order given. With ``--jobs 1`` the
+    variants are checked here, one after another; with more, in that many worker
+    processes (each imports the CAD kernel once), the reports still printed in order so
+    the output does not depend on which worker finished first."""
+    if args.jobs == 1 or len(recipes) < 2:
+        return (_check_one(r, args) for r in recipes)
+    import multiprocessing
+    from concurrent.futures import ProcessPoolExecutor
+
+    # "spawn": a fresh interpreter per worker, never a fork of a process that may hold
+    # kernel state.
+    pool = ProcessPoolExecutor(max_workers=min(args.jobs, len(recipes)),
+                               mp_context=multiprocessing.get_context("spawn"))
+    with pool:
+        return list(pool.map(_check_one, recipes, [args] * len(recipes)))
+
+
+def _check_one(r, args: argparse.Namespace) -> tuple[str, str | None]:
+    """Build and check one variant; its report (parts and findings) and why it failed
     (None: it passed). Multi-step processes get their own checks (trays and a post
     bridge, or two pours on one core: soft_molds.analysis.layered_checks,
     overmold_checks); every step's parts are listed in pour order."""
+    import contextlib
+    import io
+
+    out = io.StringIO()
+    with contextlib.redirect_stdout(out):
+        problem = _report_one(r, args)
+    return out.getvalue(), problem
+
+
+def _report_one(r, args: argparse.Namespace) -> str | None:
+    """Print one variant's check report; why it failed, or None."""
     from .pipeline import build, build_steps
 
     try:
@@ -745,6 +775,9 @@ def make_parser() -> argparse.ArgumentParser:
     c.add_argument("recipes", nargs="+", metavar="RECIPE",
                    help="recipe YAML files or folders of them (every variant is checked)")
     c.add_argument("--strict", action="store_true", help="fail on warnings too")
+    c.add_argument("--jobs", type=_positive, default=1, metavar="N",
+                   help="check N variants at a time in worker processes (default 1: in "
+                        "this process); the report comes out in the same order")
     c.add_argument("-v", "--verbose", action="store_true",
                    help="also list the checks' notes (figures that need no action)")
     c.set_defaults(func=cmd_check)
