@@ -20,11 +20,11 @@ from .casting import Quantities, silicone_quantities
 from .findings import Finding
 from .motion import MotionCurve
 from .printability import PrintPlan
-from .result import Part
+from .result import Part, PartsOfAStep
 
 
 @dataclass(frozen=True, eq=False)
-class LayerStep:
+class LayerStep(PartsOfAStep):
     """One pour of a layered build: its 1-based ``index``, ``name`` (the plan step's),
     parts (pour orientation), the silicone to mix (``pour``) and, for the chambered step,
     the least draft (deg) of any post facet against the bridge's pull."""
@@ -39,16 +39,6 @@ class LayerStep:
     #: thin ribs the print-wall check skips.
     label_boxes: Mapping[str, tuple[tuple[float, float, float],
                                     tuple[float, float, float]]] = field(default_factory=dict)
-
-    @property
-    def folder(self) -> str:
-        return f"step-{self.index}-{self.name}"
-
-    def part(self, name: str) -> Part:
-        for p in self.parts:
-            if p.name == name:
-                return p
-        raise KeyError(name)
 
 
 @dataclass(frozen=True, eq=False)

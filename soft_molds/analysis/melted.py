@@ -20,7 +20,7 @@ from .findings import Finding, Severity, finding
 from .motion import MotionCurve
 from .overmold import Release
 from .printability import PrintPlan
-from .result import BuiltMoldSet, Part
+from .result import BuiltMoldSet, Part, PartsOfAStep
 from .support import CoreSupportFigures, CoreSupports
 
 #: Core volume a shell half may share with the core when pulled, as a fraction of the
@@ -31,7 +31,7 @@ LOCK_FRACTION = 1e-3
 
 
 @dataclass(frozen=True, eq=False)
-class CoreMoldStep:
+class CoreMoldStep(PartsOfAStep):
     """The first step: the core mold's parts (shells and the core as its cast), what to
     melt for the core (``pour``, one portion: the core material), the sprue and vents
     located on the core and how each shell half releases it."""
@@ -44,16 +44,6 @@ class CoreMoldStep:
     openings: tuple[Opening, ...]
     releases: tuple[Release, ...]
     fill_mm3: float
-
-    @property
-    def folder(self) -> str:
-        return f"step-{self.index}-{self.name}"
-
-    def part(self, name: str) -> Part:
-        for p in self.parts:
-            if p.name == name:
-                return p
-        raise KeyError(name)
 
 
 @dataclass(frozen=True, eq=False)

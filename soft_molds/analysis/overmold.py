@@ -22,7 +22,7 @@ from .casting import Quantities, silicone_quantities
 from .findings import Finding
 from .motion import MotionCurve
 from .printability import PrintPlan
-from .result import Part
+from .result import Part, PartsOfAStep
 
 #: Full circumferential wraps of thread at each end of a helix to anchor it before the
 #: skin is poured (common practice: a few tight wraps, tied off).
@@ -105,7 +105,7 @@ class Release:
 
 
 @dataclass(frozen=True, eq=False)
-class OvermoldStep:
+class OvermoldStep(PartsOfAStep):
     """One pour of an overmold build: its 1-based ``index``, ``name`` (the plan step's),
     parts (actuator frame), the silicone to mix, the openings cut into its upper shell and
     how each printed part releases."""
@@ -117,16 +117,6 @@ class OvermoldStep:
     pour: Quantities
     openings: tuple[Opening, ...]
     releases: tuple[Release, ...]
-
-    @property
-    def folder(self) -> str:
-        return f"step-{self.index}-{self.name}"
-
-    def part(self, name: str) -> Part:
-        for p in self.parts:
-            if p.name == name:
-                return p
-        raise KeyError(name)
 
 
 @dataclass(frozen=True, eq=False)

@@ -53,6 +53,26 @@ class Part:
         return f"{self.name}.step"
 
 
+class PartsOfAStep:
+    """What every casting step of a multi-step process offers over its parts: its output
+    folder (``step-<index>-<name>``) and a part by name. Mixed into each process's frozen
+    step dataclass, which declares the three fields."""
+
+    index: int
+    name: str
+    parts: tuple[Part, ...]
+
+    @property
+    def folder(self) -> str:
+        return f"step-{self.index}-{self.name}"
+
+    def part(self, name: str) -> Part:
+        for p in self.parts:
+            if p.name == name:
+                return p
+        raise KeyError(name)
+
+
 @dataclass(frozen=True, eq=False)
 class BuiltMoldSet:
     """Everything built from one recipe. Nothing here changes after the build.

@@ -17,6 +17,7 @@ import html
 from collections.abc import Callable, Mapping, Sequence
 from typing import Any
 
+from ..analysis.casting import Quantities
 from ..analysis.findings import Severity, Verdict
 from ..units import inhg_to_kpa, kpa_to_psi, mm3_to_cm3
 from .advice import advice_for
@@ -485,3 +486,12 @@ def render_html(blocks: Sequence[Block]) -> str:
                                  for r in rows) + "</table>")
     out.append("</body></html>")
     return "\n".join(out) + "\n"
+
+
+def silicone_pour_line(q: Quantities) -> str:
+    """One pour of a multi-step card: the silicone it casts, what to mix (with the sprue,
+    vents and waste) and what to weigh of each part (grams)."""
+    weigh = ", ".join(f"{p.what} {p.grams:g} g" for p in q.portions)
+    return (f"{mm3_to_cm3(q.cast_mm3):.2f} cm3 of silicone, {q.mixed_g:.1f} g mixed "
+            f"({mm3_to_cm3(q.mixed_mm3):.2f} cm3 with the sprue and vents and "
+            f"{q.waste_pct:g} % waste: {weigh})")

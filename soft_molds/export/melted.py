@@ -21,7 +21,7 @@ from ..analysis.findings import verdict
 from ..analysis.melted import CoreMoldStep, MeltedMoldSet, SiliconeStep
 from ..units import mm3_to_cm3
 from ..version import __version__
-from .card import CAUTIONS
+from .card import CAUTIONS, silicone_pour_line
 from .files import json_bytes, write_file_set
 from .layered import finding_record, print_lines, step_print_files
 from .manifest import MANIFEST_NAME, motion_record
@@ -69,13 +69,6 @@ def _melt_pour_line(s: CoreMoldStep) -> str:
             f"{q.density_g_cm3:g} g/cm3)")
 
 
-def _silicone_pour_line(s: SiliconeStep) -> str:
-    q = s.pour
-    weigh = ", ".join(f"{p.what} {p.grams:g} g" for p in q.portions)
-    return (f"{mm3_to_cm3(q.cast_mm3):.2f} cm3 of silicone, {q.mixed_g:.1f} g mixed "
-            f"({mm3_to_cm3(q.mixed_mm3):.2f} cm3 with the sprue and vents and "
-            f"{q.waste_pct:g} % waste: {weigh})")
-
 
 def card_text(m: MeltedMoldSet, files: Mapping[str, bytes]) -> bytes:
     r = m.recipe
@@ -109,7 +102,7 @@ def card_text(m: MeltedMoldSet, files: Mapping[str, bytes]) -> bytes:
         f"4. Place the core: seat its print in {second.folder}'s lower shell (the square "
         "key in its pocket), coat the shells with a release agent suited to silicone and "
         "close the upper shell on the keys, then clamp.",
-        f"5. Pour the silicone: {_silicone_pour_line(second)}. Mix, degas and pour "
+        f"5. Pour the silicone: {silicone_pour_line(second.pour)}. Mix, degas and pour "
         "through the sprue until silicone shows in every vent.",
         f"6. Cure: at least {g.demold_h:g} h at room temperature (the grade's demold time; "
         f"pot life {g.pot_life_min:g} min), then open the shells. Keep the cure below the "

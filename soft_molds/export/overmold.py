@@ -21,7 +21,7 @@ from ..analysis.overmold import WRAP_TURNS_PER_END, OvermoldMoldSet, OvermoldSte
 from ..analysis.overmold_checks import thread_round
 from ..units import mm3_to_cm3
 from ..version import __version__
-from .card import CAUTIONS
+from .card import CAUTIONS, silicone_pour_line
 from .files import json_bytes, write_file_set
 from .layered import (
     SHEET_NAME,
@@ -69,13 +69,6 @@ def step_files(s: OvermoldStep, label: str) -> dict[str, bytes]:
     return out
 
 
-def _pour_line(s: OvermoldStep) -> str:
-    q = s.pour
-    weigh = ", ".join(f"{p.what} {p.grams:g} g" for p in q.portions)
-    return (f"{mm3_to_cm3(q.cast_mm3):.2f} cm3 of silicone, {q.mixed_g:.1f} g mixed "
-            f"({mm3_to_cm3(q.mixed_mm3):.2f} cm3 with the sprue and vents and "
-            f"{q.waste_pct:g} % waste: {weigh})")
-
 
 def card_text(m: OvermoldMoldSet, files: Mapping[str, bytes]) -> bytes:
     r = m.recipe
@@ -91,9 +84,9 @@ def card_text(m: OvermoldMoldSet, files: Mapping[str, bytes]) -> bytes:
              f"Silicone: {g.name}. The finished actuator holds "
              f"{mm3_to_cm3(m.silicone_volume_mm3):.2f} cm3 (bladder and skin).", "",
              "## Steps, in order", "",
-             f"1. {first.folder}: the bladder, {_pour_line(first)}. Push the core through "
-             f"the lower shell's inlet wall until its square key sits in its pocket and its "
-             f"tip in the seat of the far wall; close the upper shell on the registration "
+             f"1. {first.folder}: the bladder, {silicone_pour_line(first.pour)}. Push the core "
+             f"through the lower shell's inlet wall until its square key sits in its pocket "
+             f"and its tip in the seat of the far wall; close the upper shell on the registration "
              f"keys, clamp, and pour through the sprue until silicone rises in every vent "
              f"({len(first.openings) - 1} vents). {cure} Open the shell; leave the "
              f"bladder on the core."]
@@ -127,8 +120,8 @@ def card_text(m: OvermoldMoldSet, files: Mapping[str, bytes]) -> bytes:
         f"{n}. Place the bladder, still on the core, in {second.folder}'s lower shell: the "
         f"core's key in the same pocket of the inlet wall as before, so the bladder lies "
         f"on the skin mold's axis.",
-        f"{n + 1}. {second.folder}: the skin, {_pour_line(second)}. Close the upper shell, "
-        f"pour until every vent shows silicone; the skin covers the guides by "
+        f"{n + 1}. {second.folder}: the skin, {silicone_pour_line(second.pour)}. Close the "
+        f"upper shell, pour until every vent shows silicone; the skin covers the guides by "
         f"{m.skin_over_guides_mm:.2f} mm and caps the far end"
         + ("" if sheet is None else f", and holds the sheet against the flat face under "
            f"at least {m.sheet_cover_mm or 0.0:.2f} mm") + f". {cure} Open the shell "
