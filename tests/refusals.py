@@ -66,3 +66,23 @@ def assert_build_refused(text: str, expect: tuple[Expect, ...], tmp_path: Path, 
     assert_reported(cap.err, str(path), expect)
     assert not out.exists()
     assert sorted(p.name for p in tmp_path.iterdir()) == ["recipe.yaml"]
+
+
+def refused_once(text: str, tmp_path: Path, capsys) -> tuple[Path, str]:
+    """Build recipe ``text`` from a file in ``tmp_path`` and hold the refusal to the bad-input
+    rules: exit 2, nothing on stdout, no traceback, nothing written, exactly one stderr line
+    about the file. Returns the file and that line without its ``error: `` prefix."""
+    from soft_molds.cli import main
+
+    path = tmp_path / "recipe.yaml"
+    path.write_text(text)
+    out = tmp_path / "out"
+    status = main(["build", str(path), "--out", str(out)])
+    cap = capsys.readouterr()
+    assert status == 2
+    assert cap.out == ""
+    assert "Traceback" not in cap.err
+    assert not out.exists()
+    lines = [ln.removeprefix("error: ") for ln in cap.err.splitlines() if str(path) in ln]
+    assert len(lines) == 1, cap.err
+    return path, lines[0]

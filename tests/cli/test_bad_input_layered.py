@@ -12,8 +12,7 @@ from pathlib import Path
 
 import pytest
 from recipe_text import edit, line_of
-
-from soft_molds.cli import main
+from refusals import refused_once
 
 ROOT = Path(__file__).resolve().parents[2]
 TEXT = (ROOT / "recipes" / "seedling-layered-finger.yaml").read_text()
@@ -45,17 +44,7 @@ CASES = [
 def test_layered_recipe_the_plan_cannot_cast_exits_2_naming_the_field(
         name, change, field, words, tmp_path, capsys, no_cad_work, no_layered_build):
     text = edit(TEXT, *change)
-    path = tmp_path / "recipe.yaml"
-    path.write_text(text)
-    out = tmp_path / "out"
-    status = main(["build", str(path), "--out", str(out)])
-    cap = capsys.readouterr()
-    assert status == 2
-    assert cap.out == ""
-    lines = [ln.removeprefix("error: ") for ln in cap.err.splitlines() if str(path) in ln]
-    assert len(lines) == 1, cap.err
+    path, line = refused_once(text, tmp_path, capsys)
     key = field.rsplit(".", 1)[-1]
-    assert lines[0].startswith(f"{path}:{line_of(text, change[1])}: {field}"), lines[0]
-    assert key in lines[0] and words in lines[0], lines[0]
-    assert "Traceback" not in cap.err
-    assert not out.exists()
+    assert line.startswith(f"{path}:{line_of(text, change[1])}: {field}"), line
+    assert key in line and words in line, line

@@ -17,8 +17,7 @@ from pathlib import Path
 
 import pytest
 from recipe_text import edit, line_of
-
-from soft_molds.cli import main
+from refusals import refused_once
 
 ROOT = Path(__file__).resolve().parents[2]
 PAD = (ROOT / "recipes" / "tray-lift-pad.yaml").read_text()
@@ -42,19 +41,9 @@ CASES = [
                          ids=[c[0] for c in CASES])
 def test_magnets_the_tool_cannot_seat_exit_2_with_one_located_line(
         name, text, needle, field, words, tmp_path, capsys, no_cad_work):
-    path = tmp_path / "recipe.yaml"
-    path.write_text(text)
-    out = tmp_path / "out"
-    status = main(["build", str(path), "--out", str(out)])
-    cap = capsys.readouterr()
-    assert status == 2
-    assert cap.out == ""
-    lines = [ln.removeprefix("error: ") for ln in cap.err.splitlines() if str(path) in ln]
-    assert len(lines) == 1, cap.err
-    assert lines[0].startswith(f"{path}:{line_of(text, needle)}: {field}"), lines[0]
-    assert all(w in lines[0] for w in words), lines[0]
-    assert "Traceback" not in cap.err
-    assert not out.exists()
+    path, line = refused_once(text, tmp_path, capsys)
+    assert line.startswith(f"{path}:{line_of(text, needle)}: {field}"), line
+    assert all(w in line for w in words), line
 
 
 def test_the_largest_magnet_that_keeps_the_wall_is_accepted():

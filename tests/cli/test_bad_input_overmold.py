@@ -12,6 +12,7 @@ from pathlib import Path
 
 import pytest
 from recipe_text import edit, line_of
+from refusals import refused_once
 
 from soft_molds.cli import main
 
@@ -62,24 +63,14 @@ CASES = [
 def test_overmold_recipe_the_plan_cannot_cast_exits_2_naming_the_field(
         name, change, field, words, tmp_path, capsys, no_cad_work, no_step_build):
     text = edit(TEXT, *change)
-    path = tmp_path / "recipe.yaml"
-    path.write_text(text)
-    out = tmp_path / "out"
-    status = main(["build", str(path), "--out", str(out)])
-    cap = capsys.readouterr()
-    assert status == 2
-    assert cap.out == ""
-    lines = [ln.removeprefix("error: ") for ln in cap.err.splitlines() if str(path) in ln]
-    assert len(lines) == 1, cap.err
+    path, line = refused_once(text, tmp_path, capsys)
     key = field.rsplit(".", 1)[-1]
     # The problem points at the line that names the field (the voids list: its key).
     needles = ["voids:"] if field == "voids" else [change[1].splitlines()[0],
                                                    change[1].splitlines()[-1]]
-    assert any(lines[0].startswith(f"{path}:{line_of(text, n)}: {field}") for n in needles), \
-        lines[0]
-    assert key in lines[0] and words in lines[0], lines[0]
-    assert "Traceback" not in cap.err
-    assert not out.exists()
+    assert any(line.startswith(f"{path}:{line_of(text, n)}: {field}") for n in needles), \
+        line
+    assert key in line and words in line, line
 
 
 def test_an_overmold_socket_on_the_end_face_is_refused_naming_the_face(
@@ -124,19 +115,9 @@ HALF_CASES = [
 def test_a_sheet_or_half_round_the_plan_cannot_cast_exits_2_naming_the_field(
         name, text, change, field, words, tmp_path, capsys, no_cad_work, no_step_build):
     text = edit(text, *change)
-    path = tmp_path / "recipe.yaml"
-    path.write_text(text)
-    out = tmp_path / "out"
-    status = main(["build", str(path), "--out", str(out)])
-    cap = capsys.readouterr()
-    assert status == 2
-    assert cap.out == ""
-    lines = [ln.removeprefix("error: ") for ln in cap.err.splitlines() if str(path) in ln]
-    assert len(lines) == 1, cap.err
+    path, line = refused_once(text, tmp_path, capsys)
     needles = ["voids:"] if field == "voids" else [change[1].splitlines()[0],
                                                    change[1].splitlines()[-1]]
-    assert any(lines[0].startswith(f"{path}:{line_of(text, n)}: {field}") for n in needles), \
-        lines[0]
-    assert words in lines[0], lines[0]
-    assert "Traceback" not in cap.err
-    assert not out.exists()
+    assert any(line.startswith(f"{path}:{line_of(text, n)}: {field}") for n in needles), \
+        line
+    assert words in line, line
