@@ -131,6 +131,7 @@ def _build_one_shot(plan: MoldPlan, progress: Callable[[str], None] | None = Non
 
     solids = {"shell-lower": shells.lower, "shell-upper": shells.upper,
               **{sup.part: c for c, sup in zip(cs.cores, step.core_supports)},
+              **{g.part: c for c, g in zip(mold.build_plates(step), step.plates)},
               "cast": cs.cast}
     parts = []
     say("tessellate and check")

@@ -118,6 +118,12 @@ def shell_label_tool(r: Recipe, lay: Layout, part: str, lower: bool
     f = lay.frame
     wa, va = f.w_axis, f.v_axis
     w0, w1 = ((lay.block_lo[wa], lay.parting_w) if lower else (lay.parting_w, lay.block_hi[wa]))
+    groove = r.groove()
+    if groove is not None:
+        # The groove plates leave through that face across the parting plane: the label
+        # stays on the shell's face beside them.
+        half = groove.height_mm / 2.0
+        w0, w1 = (w0, lay.parting_w - half) if lower else (lay.parting_w + half, w1)
     up = _axis(wa)
     normal = _axis(va, -1.0)
     right = np.cross(up, normal)  # so that right x up = the outward normal
@@ -211,10 +217,31 @@ def build_body(r: Recipe) -> k.Shape:
     the cast has open gaps there and the shell beside them fills them with fins."""
     body = k.fuse([k.build_primitive(p, "body") for p in r.body_primitives()], "body",
                   "build body")
+    groove = r.groove()
+    if groove is not None:
+        # An open groove reaches past the outer face: it removes its revolved rectangle
+        # up to that face (Pappus), the rest of the tool is outside the body.
+        ring = k.volume(body)
+        return k.cut(body, [k.build_primitive(p, "body") for p in r.outer_primitives()],
+                     "body", "cut the open groove", volume_mm3=ring - groove.volume_mm3(),
+                     rel_tol=1e-4)
     cuts = r.outer_cuts()
     if not cuts:
         return body
     return k.cut(body, [k.build_slit(c, "body") for c in cuts], "body", "cut the slits")
+
+
+def build_plates(step: CastingStep) -> tuple[k.Shape, ...]:
+    """The plates of an open groove, in the step's order: each box less the groove
+    bottom's cylinder (a half cylinder of it lies in the box)."""
+    out = []
+    for g in step.plates:
+        lo, hi = g.box
+        cx, cy = g.hole_center_mm
+        hole = k.cylinder(2, (cx, cy, lo[2] - 1.0), hi[2] - lo[2] + 2.0, g.hole_radius_mm)
+        out.append(k.cut(k.box(lo, hi), [hole], g.part, "cut the groove bottom",
+                         volume_mm3=g.volume_mm3()))
+    return tuple(out)
 
 
 def build_cast(r: Recipe, step: CastingStep, body: k.Shape | None = None) -> CastSolids:
@@ -222,6 +249,11 @@ def build_cast(r: Recipe, step: CastingStep, body: k.Shape | None = None) -> Cas
     core support of the step, formed by its group of voids and held by its print."""
     if body is None:
         body = build_body(r)
+    if not step.core_supports:
+        # No core (an open groove cut from the body, formed by plates): the body is the
+        # cast.
+        vol = k.volume(body)
+        return CastSolids(body, (), body, {"body": vol, "void_set": 0.0, "cast": vol})
     sockets = r.sockets()
     all_voids = r.void_primitives()
     vols = {"body": k.volume(body), "void_set": 0.0}
@@ -285,7 +317,7 @@ def build_shells(r: Recipe, step: CastingStep, cs: CastSolids) -> ShellSolids:
     pockets = [k.box(tuple(a - c for a in klo), tuple(b + c for b in khi))
                for klo, khi in (sup.key_box for sup in step.core_supports)]
     w_lo, w_hi = lay.block_lo[wa], lay.block_hi[wa]
-    tools = [cs.body, *cs.cores, *pockets]
+    tools = [cs.body, *cs.cores, *pockets, *build_plates(step)]
     # The seat's magnet pockets lie wholly below the parting plane: the lower shell's.
     for sup in step.core_supports:
         mp = magnet_pockets(r, sup, step.settled_parting)
