@@ -18,12 +18,11 @@ clamp holes go to the block's x ends, the pry notches to its +-x faces.
 
 from __future__ import annotations
 
-import math
 from dataclasses import replace
 
 from ..errors import Problem
 from ..recipe.model import Recipe
-from .layout import MIN_LAND_MM, NOTCH_DEPTH_MM, NOTCH_LENGTH_MM, Layout, key_symmetry_clashes
+from .layout import MIN_LAND_MM, NOTCH_DEPTH_MM, NOTCH_LENGTH_MM, Layout
 from .lines import LineOf
 from .model import GroovePlate
 
@@ -81,40 +80,14 @@ def groove_layout(r: Recipe, lay: Layout) -> Layout:
     return replace(lay, bolts_uv=bolts, keys_uv=keys, notches=notches)
 
 
-def groove_problems(r: Recipe, lay: Layout, line: LineOf) -> list[Problem]:
+def groove_problems(r: Recipe, line: LineOf) -> list[Problem]:
     """What keeps the plates' mold from being built: a lost core or magnets (there is no
-    core), keys or clamp holes that would fall on the plates' strip or on each other."""
-    out: list[Problem] = []
-    if r.core.lost or r.core.magnets:
-        out.append(Problem("core", "is set, but an open groove has no core: two plates form "
-                           "it and slide out", line("core"), r.core.kind,
-                           "leave out the core block (core.kind: pulled, support: prints)"))
-        return out
-    m = r.mold
-    plates = groove_plates(r, lay)
-    strip_lo = plates[0].box[0][0]
-    u0 = lay.block_lo[0] + m.flange_mm / 2.0
-    rk = m.key_diameter_mm / 2.0 + m.clearance_mm
-    rb = (m.clamp_hole_mm or 0.0) / 2.0
-    room = strip_lo - u0 - MIN_LAND_MM
-    if max(rk, rb) > room:
-        out.append(Problem("mold.wall_mm", "leaves no room for the keys and clamp holes "
-                           "beside the groove plates", line("mold.wall_mm"), m.wall_mm,
-                           f"a key socket radius ({rk:g} mm) and clamp hole radius ({rb:g} "
-                           f"mm) within {room:.3g} mm of the band's centre line: a wider "
-                           "mold.wall_mm or flange_mm, or a smaller key"))
-    va = lay.frame.v_axis
-    half_v = (lay.block_hi[va] - lay.block_lo[va]) / 2.0 - m.flange_mm / 2.0
-    a = key_offset_mm(r)
-    if rb and half_v - a < rk + rb + MIN_LAND_MM:
-        out.append(Problem("mold.key_diameter_mm", "puts the keys on the clamp holes at the "
-                           "block's x ends", line("mold.key_diameter_mm"), m.key_diameter_mm,
-                           f"keys {a:.3g} mm from the middle and clamp holes "
-                           f"{half_v:.3g} mm from it, {MIN_LAND_MM:g} mm of wall between "
-                           "them: a smaller key or bolt"))
-    if key_symmetry_clashes(groove_layout(r, lay).keys_uv, lay.block_center_uv):
-        out.append(Problem("mold.key_diameter_mm", "lets the shells close two ways",
-                           line("mold"), m.key_diameter_mm, "keys placed one way only"))
-    if not math.isfinite(room):
-        out.append(Problem("mold", "has no finite block", line("mold"), None, "finite sizes"))
-    return out
+    core). The keys and clamp holes always clear the plates' strip: the layout's own rule
+    keeps each within flange_mm / 2 - MIN_LAND_MM of the band's centre line, which lies
+    mold.wall_mm (>= 4 mm) beyond the ring, and the strip PLATE_MARGIN_MM beyond it; the
+    keys against the clamp holes are the layout's rules too (``layout_problems``)."""
+    if r.groove() is not None and (r.core.lost or r.core.magnets):
+        return [Problem("core", "is set, but an open groove has no core: two plates form "
+                        "it and slide out", line("core"), r.core.kind,
+                        "leave out the core block (core.kind: pulled, support: prints)")]
+    return []

@@ -62,10 +62,6 @@ def parting_problems(r: Recipe, axis: str, offset_mm: float, line: LineOf) -> li
                            "a plane through the straight sides of the body (for a rod, its "
                            "axis; move the voids and socket to that plane)"))
     lay = plan_layout(r, axis, offset_mm)
-    if r.groove() is not None:
-        from .groove import groove_problems
-
-        out.extend(groove_problems(r, lay, line))
     out.extend(layout_problems(r, lay, line))
     out.extend(printer_problems(r, lay, line))
     return out

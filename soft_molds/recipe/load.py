@@ -485,7 +485,7 @@ def _split_outer(voids: list, problems: list[Problem], lines: dict[str, int]
             break
     # An outside cut that inflates (an open groove, closed by a collar after the cure) is
     # the cavity itself.
-    if not inner and not any(v.membranes(0.0) for v in outer):
+    if not inner and not any(getattr(v, "INFLATES", False) for v in outer):
         problems.append(Problem("voids", "has no cavity to inflate", lines.get("voids"),
                                 [v.KIND for v in voids],
                                 "at least one void that is not cut from the outside"))

@@ -141,16 +141,16 @@ class Annulus:
         part (clear of the edge roundings, so the cast's volume has its closed form)."""
         big = ring.outer_radius_mm
         out = []
+        if inner >= big:
+            return None, [Problem(f"{path}.wall_mm", "leaves no groove: the wall reaches the "
+                                  "ring's outer face", None, self.wall_mm,
+                                  "less than the ring's radial wall "
+                                  f"({big - ring.inner_radius_mm:g} mm)")]
         if abs(inner + self.depth_mm - big) > 1e-6:
             out.append(Problem(f"{path}.depth_mm", "must take an open groove from its bottom "
                                "to the ring's outer face", None, self.depth_mm,
                                f"{big - inner:g} mm (outer radius {big:g} - bore radius "
                                f"{ring.inner_radius_mm:g} - wall_mm {self.wall_mm:g})"))
-        if inner >= big:
-            out.append(Problem(f"{path}.wall_mm", "leaves no groove: the wall reaches the "
-                               "ring's outer face", None, self.wall_mm,
-                               f"less than the ring's radial wall ({big - ring.inner_radius_mm:g}"
-                               " mm)"))
         flat = body.height_mm - 2.0 * body.edge_round_mm
         if self.height_mm >= flat:
             out.append(Problem(f"{path}.height_mm", "reaches the rounded edges of the ring's "
@@ -171,6 +171,12 @@ class Annulus:
     def OUTER(self) -> bool:  # noqa: N802 (the name every outside cut answers to)
         """An open groove is cut from the outside: no core, no socket."""
         return self.opens_to == "outside"
+
+    @property
+    def INFLATES(self) -> bool:  # noqa: N802 (read with OUTER by the recipe reader)
+        """An open groove is an outside cut that is inflated (its collar closes it): the
+        recipe's cavity, though no cavity void is listed."""
+        return self.OUTER
 
     def groove(self) -> Groove:
         """The open groove's figures (``opens_to: outside``, after follow_body)."""
