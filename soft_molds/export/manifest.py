@@ -345,7 +345,10 @@ class RecipeEcho:
 
 
 def _inlet_center(data: Mapping[str, JsonValue], where: str) -> Vec2:
-    return _inlets(data, where)[0].center_mm
+    """The first socket's centre; with no socket (an open groove, fed through its collar)
+    the body's middle, y = z = 0, where a ring's axis plane lies."""
+    inlets = _inlets(data, where)
+    return inlets[0].center_mm if inlets else (0.0, 0.0)
 
 
 def _inlets(data: Mapping[str, JsonValue], where: str) -> tuple[InletRecord, ...]:
