@@ -184,6 +184,31 @@ def cut_core_magnet_pocket(r: Recipe, step: CastingStep, core: k.Shape,
     return k.cut(core, [tool], support.part, "cut the magnet pocket", volume_mm3=vol)
 
 
+def label_plates(r: Recipe, step: CastingStep, plates: Sequence[k.Shape]
+                 ) -> tuple[tuple[k.Shape, ...], tuple[Label, ...]]:
+    """The recipe's label cut into the top face (+z) of each plate's grip, beyond the
+    block's face, read outward along the plate's pull (none where the grip is too short
+    for the least glyph, or the plate thinner than three label depths)."""
+    lay = step.settled_layout
+    out, labs = [], []
+    for shape, g in zip(plates, step.plates):
+        (x0, y0, _), (x1, y1, z1) = g.box
+        sign = g.pull_dir[1]
+        face = lay.block_hi[1] if sign > 0 else lay.block_lo[1]
+        tip = y1 if sign > 0 else y0
+        if z1 * 2.0 < 3.0 * r.label_settings.depth_mm:
+            out.append(shape)
+            continue
+        centre = ((x0 + x1) / 2.0, (face + tip) / 2.0, z1)
+        up = (0.0, sign, 0.0)
+        right = (sign, 0.0, 0.0)  # right x up = +z, the face's outward normal
+        shape, lab = cut_label(r, shape, g.part, centre, right, up, abs(tip - face))
+        out.append(shape)
+        if lab is not None:
+            labs.append(lab)
+    return tuple(out), tuple(labs)
+
+
 @dataclass(frozen=True)
 class ShellSolids:
     lower: k.Shape
