@@ -88,6 +88,7 @@ def groove_problems(r: Recipe, line: LineOf) -> list[Problem]:
     keys against the clamp holes are the layout's rules too (``layout_problems``)."""
     if r.groove() is not None and (r.core.lost or r.core.magnets):
         return [Problem("core", "is set, but an open groove has no core: two plates form "
-                        "it and slide out", line("core"), r.core.kind,
+                        "it and slide out", line("core"),
+                        r.core.kind if r.core.lost else r.core.support,
                         "leave out the core block (core.kind: pulled, support: prints)")]
     return []

@@ -42,8 +42,13 @@ CASES = [
     ("with-another-void", edit(OPEN, _VOID, "  - kind: annulus\n    wall_mm: 2\n"
                                "    depth_mm: 2\n    height_mm: 4\n" + _VOID),
      "opens_to: outside", "voids[1].opens_to", ("the ring's only void",)),
+    ("parting-auto", edit(edit(OPEN, "axis: z", "axis: auto"), "  offset_mm: 0 ",
+                                                         "  # offset_mm: 0 "),
+     "parting:", "parting", ("must be z = 0",)),
     ("on-a-lost-core", OPEN + "core:\n  kind: dissolved\n", "core:", "core",
-     ("no core", "two plates", "leave out the core block")),
+     ("no core", "two plates", "leave out the core block", "(got 'dissolved')")),
+    ("held-by-magnets", OPEN + "core:\n  support: magnets\n", "core:", "core",
+     ("no core", "(got 'magnets')")),
 ]
 
 
