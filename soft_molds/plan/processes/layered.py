@@ -104,7 +104,8 @@ def overflow_xy_mm(foot: Footprint, posts: tuple[Post, ...], diameter_mm: float
     over the footprint at least radius + HOLE_CLEAR_MM inside its edge and from every
     post (the excess rises into the hole, not round a post); among them, as a bar's hole
     lies beyond the last post, those past every post along x if any, and of those the one
-    farthest from the nearest post (the first on the grid when tied)."""
+    farthest from the nearest post (when tied, the one nearest the footprint's middle
+    line along x)."""
     assert foot.outline is not None
     (x0, y0), (x1, y1) = foot.outline.bounds()
     gx = np.arange(math.ceil(x0 / HOLE_GRID_MM), math.floor(x1 / HOLE_GRID_MM) + 1)
@@ -124,7 +125,10 @@ def overflow_xy_mm(foot: Footprint, posts: tuple[Post, ...], diameter_mm: float
     far = max(p.x_span_mm()[1] for p in posts)
     beyond = ok & (grid[:, 0] >= far + keep)
     pick = beyond if beyond.any() else ok
-    i = int(np.argmax(np.where(pick, near, -np.inf)))
+    # Ties (to 0.01 mm) go to the point nearest the footprint's middle line along x.
+    score = np.where(pick, np.round(near, 2), -np.inf)
+    best = np.flatnonzero(score == score.max())
+    i = int(best[np.argmin(np.abs(grid[best, 1] - foot.center_mm[1]))])
     return (float(grid[i, 0]) + 0.0, float(grid[i, 1]) + 0.0)
 
 
