@@ -627,6 +627,8 @@ def offset_outline(outline: RoundedPolygon | PieceOutline, d_mm: float
         pieces = [_reversed(p) for p in reversed(pieces)]
     if d_mm == 0.0:
         return PieceOutline(tuple(pieces))
+    # Arcs of one circle in a row are one rounding (a round tip drawn as two quarters).
+    pieces = list(_merge_arcs(pieces))
     flat: list[Piece2] = []
     n = len(pieces)
     for i, p in enumerate(pieces):
@@ -701,7 +703,9 @@ def offset_outline(outline: RoundedPolygon | PieceOutline, d_mm: float
             chain.append(Arc2((float(c[0]), float(c[1])), float(r), _wrapped(a0), float(sweep)))
     if len(chain) < 2 or chain_crossing(tuple(chain)) is not None:
         return None
-    return PieceOutline(tuple(chain))
+    result = PieceOutline(tuple(chain))
+    # Squeezed flat (two edges meeting face to face) is no outline either.
+    return result if result._signed_area_mm2() > OUTLINE_EPS_MM else None
 
 
 def _joined_lines(pieces: list[Piece2]) -> list[Piece2]:
