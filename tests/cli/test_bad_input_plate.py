@@ -111,7 +111,7 @@ def test_a_round_tipped_arm_gives_the_socket_no_flat_face(tmp_path, capsys, monk
     from refusals import Expect, assert_build_refused
 
     # Half the width rounds the tip: the socket's rim (2 mm + 1 mm wall) leaves the face.
-    text = edit(HUB, "  tip_round_mm: 3\n", "")
+    text = edit(HUB, "tip_round_mm: 3", "tip_round_mm: 7")
     line = line_of(text, "socket_diameter_mm") - 1
     assert_build_refused(text, (
         Expect("inlet.center_mm", line, "puts the socket off the flat inlet face (x = 0)"),
