@@ -15,8 +15,8 @@ import cadquery as cq
 
 from ..plan.model import CastingStep, Footprint, LayerKind, Post
 from ..recipe.model import Recipe
-from ..recipe.primitives import RoundedBox
-from .kernel import box, build_primitive, checked, cut, fuse, split_at
+from ..recipe.primitives import RoundedBox, Slab
+from .kernel import box, build_primitive, checked, cut, fuse, outline_prism, split_at
 from .mold import Label, cut_label
 
 Box = tuple[tuple[float, float, float], tuple[float, float, float]]
@@ -75,6 +75,9 @@ def post_solid(p: Post) -> cq.Shape:
 
 def footprint_prism(f: Footprint, z0: float, z1: float, part: str) -> cq.Shape:
     """The footprint extruded from z0 to z1 (mm)."""
+    if f.outline is not None:
+        return outline_prism(f.outline.pieces(), z0, z1, part, "footprint prism",
+                             f.area_mm2() * (z1 - z0))
     lx, ly = f.size_mm
     wp = cq.Workplane("XY", origin=(f.center_mm[0], f.center_mm[1], z0))
     if f.corner_radius_mm > 0.0:
@@ -93,7 +96,7 @@ def _block(r: Recipe, grow_mm: float, z0: float, z1: float) -> cq.Shape:
 def build_layers(r: Recipe, steps: tuple[CastingStep, ...]) -> dict[str, LayerSolids]:
     """Every layered step's solids by step name."""
     body_p = r.body_primitives()[0]
-    assert isinstance(body_p, RoundedBox)
+    assert isinstance(body_p, RoundedBox | Slab)
     body = build_primitive(body_p, "body")
     layer0 = steps[0].layer
     assert layer0 is not None
@@ -121,7 +124,7 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
     # with the locating clearance on every side, so the bridge drops in wherever its skirt
     # lets it sit.
     notches = [post_solid(_grown(p, layer.clearance_mm)) for p in layer.posts
-               if p.center_mm[0] - p.size_mm[0] / 2.0 < 0.0]
+               if p.x_span_mm()[0] < 0.0]
     tray = cut(_block(r, wall, bond, hi[2] + wall), [above, *notches], "tray",
                "chambered tray")
     lo, _ = r.body_bounds()
@@ -133,14 +136,15 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
                    bond + SKIRT_DROP_MM)
     pocket = _block(r, wall + layer.clearance_mm, bond, bond + SKIRT_DROP_MM + 1.0)
     cutters = [pocket]
-    hole = _overflow_hole(r, layer.posts, bond)
+    hole = (_overflow_hole(r, layer.posts, bond) if layer.footprint.outline is None
+            else _hole_at(layer.overflow_xy_mm, r, bond))
     if hole is not None:
         cutters.append(hole)
     plate = cut(plate, cutters, "post-bridge", "bridge plate")
     bridge = fuse([plate, *posts], "post-bridge", "bridge posts")
     # The bridge's label goes on the plate's outer face (the face the posts stand on the
     # other side of), centred over the posts so it clears the overflow hole.
-    far = max(p.center_mm[0] + p.size_mm[0] / 2.0 for p in layer.posts)
+    far = max(p.x_span_mm()[1] for p in layer.posts)
     side = wall + layer.clearance_mm + SKIRT_WALL_MM
     bridge, bridge_label = cut_label(
         r, bridge, "post-bridge", ((lo[0] + far) / 2.0, (lo[1] + hi[1]) / 2.0, bond - PLATE_MM),
@@ -162,12 +166,21 @@ def _overflow_hole(r: Recipe, posts: tuple[Post, ...], bond: float) -> cq.Shape 
     """A hole through the plate midway between the last post and the body's far end, where
     the excess silicone rises when the bridge is lowered (None: no room for it)."""
     _, hi = r.body_bounds()
-    far = max(p.center_mm[0] + p.size_mm[0] / 2.0 for p in posts)
+    far = max(p.x_span_mm()[1] for p in posts)
     d = r.mold.vent_diameter_mm
     if hi[0] - far < d + 2.0:
         return None
     return cq.Solid.makeCylinder(d / 2.0, PLATE_MM + 2.0,
                                  cq.Vector((far + hi[0]) / 2.0, 0.0, bond - PLATE_MM - 1.0),
+                                 cq.Vector(0, 0, 1))
+
+
+def _hole_at(xy: tuple[float, float] | None, r: Recipe, bond: float) -> cq.Shape | None:
+    """The overflow hole through the plate at ``xy`` (None: no room for one)."""
+    if xy is None:
+        return None
+    return cq.Solid.makeCylinder(r.mold.vent_diameter_mm / 2.0, PLATE_MM + 2.0,
+                                 cq.Vector(xy[0], xy[1], bond - PLATE_MM - 1.0),
                                  cq.Vector(0, 0, 1))
 
 

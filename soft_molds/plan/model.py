@@ -15,6 +15,7 @@ from dataclasses import dataclass, replace
 from enum import StrEnum
 
 from ..recipe.model import InletFace, Recipe
+from ..recipe.outline import PieceOutline, offset_outline
 from .layout import Layout
 
 Vec3 = tuple[float, float, float]
@@ -202,7 +203,9 @@ class Post:
     ``base_z_mm`` a rectangle of ``size_mm`` (x, y) centred on ``center_mm`` (x, y), each
     corner cut along the arc of radius ``corner_radius_mm`` by CORNER_FACETS facets; it
     stands ``height_mm`` into the body (+z) and every side leans in by ``draft_deg``. It
-    forms the void ``name`` (the recipe's path)."""
+    forms the void ``name`` (the recipe's path). ``angle_deg`` turns the post about the
+    vertical line through its centre (counter-clockwise seen from +z; 0: its ``size_mm``
+    along x and y), for posts along an arm that does not run along x."""
 
     name: str
     center_mm: tuple[float, float]
@@ -211,6 +214,7 @@ class Post:
     base_z_mm: float
     height_mm: float
     draft_deg: float
+    angle_deg: float = 0.0
 
     def outline_mm(self) -> tuple[tuple[float, float], ...]:
         """The section at the bond face, counter-clockwise (x, y)."""
@@ -218,16 +222,30 @@ class Post:
         hx, hy = self.size_mm[0] / 2.0, self.size_mm[1] / 2.0
         r = self.corner_radius_mm
         if r <= 0.0:
-            return ((cx + hx, cy - hy), (cx + hx, cy + hy), (cx - hx, cy + hy),
-                    (cx - hx, cy - hy))
-        pts = []
-        for k, (sx, sy) in enumerate(((1, -1), (1, 1), (-1, 1), (-1, -1))):
-            ox, oy = cx + sx * (hx - r), cy + sy * (hy - r)
-            a0 = -math.pi / 2.0 + k * math.pi / 2.0
-            for j in range(CORNER_FACETS + 1):
-                a = a0 + j * (math.pi / 2.0) / CORNER_FACETS
-                pts.append((ox + r * math.cos(a), oy + r * math.sin(a)))
-        return tuple(pts)
+            pts = [(cx + hx, cy - hy), (cx + hx, cy + hy), (cx - hx, cy + hy),
+                   (cx - hx, cy - hy)]
+        else:
+            pts = []
+            for k, (sx, sy) in enumerate(((1, -1), (1, 1), (-1, 1), (-1, -1))):
+                ox, oy = cx + sx * (hx - r), cy + sy * (hy - r)
+                a0 = -math.pi / 2.0 + k * math.pi / 2.0
+                for j in range(CORNER_FACETS + 1):
+                    a = a0 + j * (math.pi / 2.0) / CORNER_FACETS
+                    pts.append((ox + r * math.cos(a), oy + r * math.sin(a)))
+        if self.angle_deg == 0.0:  # unturned: the same numbers as always
+            return tuple(pts)
+        c, s = math.cos(math.radians(self.angle_deg)), math.sin(math.radians(self.angle_deg))
+        return tuple((cx + c * (x - cx) - s * (y - cy), cy + s * (x - cx) + c * (y - cy))
+                     for x, y in pts)
+
+    def x_span_mm(self) -> tuple[float, float]:
+        """Least and greatest x (mm) of the section at the bond face (where the post is
+        widest)."""
+        if self.angle_deg == 0.0:
+            return (self.center_mm[0] - self.size_mm[0] / 2.0,
+                    self.center_mm[0] + self.size_mm[0] / 2.0)
+        xs = [x for x, _ in self.outline_mm()]
+        return (min(xs), max(xs))
 
     def area_at_mm2(self, t_mm: float) -> float:
         """Section area at height ``t_mm`` above the bond face: the outline with every edge
@@ -269,20 +287,44 @@ class LayerKind(StrEnum):
 @dataclass(frozen=True)
 class Footprint:
     """The body's section at the bond face (mm, x-y): a rectangle of ``size_mm`` centred
-    on ``center_mm`` with corners rounded ``corner_radius_mm``."""
+    on ``center_mm`` with corners rounded ``corner_radius_mm`` (a bar); or, for a plate,
+    ``outline`` (its lines and arcs), with ``center_mm`` and ``size_mm`` its bounding box
+    and no corner radius."""
 
     center_mm: tuple[float, float]
     size_mm: tuple[float, float]
     corner_radius_mm: float
+    outline: PieceOutline | None = None
+
+    @staticmethod
+    def of_outline(o: PieceOutline) -> Footprint:
+        """The footprint of a plate's outline (its bounds give centre and size)."""
+        (x0, y0), (x1, y1) = o.bounds()
+        return Footprint(((x0 + x1) / 2.0, (y0 + y1) / 2.0), (x1 - x0, y1 - y0), 0.0, o)
 
     def inset(self, d_mm: float) -> Footprint:
         """Moved in by ``d_mm`` (out when negative): the parallel curve of a rounded
-        rectangle is a rounded rectangle whose corner radius changes by the same amount."""
+        rectangle is a rounded rectangle whose corner radius changes by the same amount;
+        an outline's is :func:`soft_molds.recipe.outline.offset_outline` (ValueError where
+        the offset does not fit: the layered plan refuses that first)."""
+        if self.outline is not None:
+            moved = offset_outline(self.outline, d_mm)
+            if moved is None:
+                raise ValueError(f"an offset of {d_mm:g} mm does not fit the outline")
+            return Footprint.of_outline(moved)
         lx, ly = self.size_mm
         return Footprint(self.center_mm, (lx - 2 * d_mm, ly - 2 * d_mm),
                          max(self.corner_radius_mm - d_mm, 0.0))
 
+    def fits_offset(self, d_mm: float) -> bool:
+        """Whether :meth:`inset` by ``d_mm`` keeps the outline's shape."""
+        if self.outline is not None:
+            return offset_outline(self.outline, d_mm) is not None
+        return min(self.size_mm) > 2.0 * d_mm
+
     def area_mm2(self) -> float:
+        if self.outline is not None:
+            return self.outline.area_mm2()
         lx, ly = self.size_mm
         return lx * ly - (4.0 - math.pi) * self.corner_radius_mm ** 2
 
@@ -301,6 +343,9 @@ class Layer:
     clearance_mm: float
     wall_mm: float
     sheet_inset_mm: float | None = None
+    #: Where the post bridge's overflow hole goes (x, y) for a plate's outline (None: a
+    #: bar's, beyond the last post, or no room).
+    overflow_xy_mm: tuple[float, float] | None = None
 
     @property
     def turned_over(self) -> bool:

@@ -1,10 +1,12 @@
-"""Closed plane outlines in the body's (y, z) cross-section plane, with exact geometry.
+"""Closed plane outlines in the body's (y, z) cross-section plane (or a plate's x-y
+plane), with exact geometry.
 
-Two families: a polygon whose corners may each be rounded by a circular arc tangent to
-both edges (rectangles, circles, D shapes and free polygons are all of this family), and
-an axis-aligned ellipse. Each gives its area in closed form, its exact signed distance
-(negative inside, mm), its bounds, and its chord along one axis at a given value of the
-other. Frame: mm, first coordinate y (across), second z (up).
+Three families: a polygon whose corners may each be rounded by a circular arc tangent to
+both edges (rectangles, circles, D shapes and free polygons are all of this family), a
+chain of lines and arcs (``PieceOutline``: a hub with arms), and an axis-aligned
+ellipse. Each gives its area in closed form, its exact signed distance (negative inside,
+mm), its bounds, and its chord along one axis at a given value of the other. Frame: mm,
+first coordinate y (across), second z (up); a plate's outline: x, y.
 """
 
 from __future__ import annotations
@@ -156,8 +158,14 @@ def _rounded_crossing(poly: RoundedPolygon) -> np.ndarray | None:
     """A point where the rounded outline, traced as a polyline (arcs by their chords every
     TRACE_STEP_RAD), crosses itself, or None. The sharp polygon is known not to cross;
     a concave rounding can still bulge across another edge."""
+    return chain_crossing(poly.pieces())
+
+
+def chain_crossing(pieces: tuple[Piece2, ...]) -> np.ndarray | None:
+    """A point where a closed chain of pieces, traced as a polyline (arcs by their chords
+    every TRACE_STEP_RAD), crosses itself, or None."""
     pts: list[tuple[float, float]] = []
-    for p in poly.pieces():
+    for p in pieces:
         if isinstance(p, Line2):
             pts.append(p.start)
         else:
@@ -280,6 +288,80 @@ def _inside_polygon(q: np.ndarray, v: np.ndarray) -> np.ndarray:
     return inside
 
 
+def pieces_bounds(pieces: tuple[Piece2, ...]) -> tuple[tuple[float, float], tuple[float, float]]:
+    """((lo, lo), (hi, hi)) of a chain of pieces, mm, exact (arc extremes included)."""
+    pts: list[tuple[float, float]] = []
+    for p in pieces:
+        pts += [p.start, p.end]
+        if isinstance(p, Arc2):
+            for k in range(-5, 6):
+                ang = k * np.pi / 2.0
+                lo = min(p.start_rad, p.start_rad + p.sweep_rad)
+                hi = max(p.start_rad, p.start_rad + p.sweep_rad)
+                if lo <= ang <= hi:
+                    pts.append((p.center[0] + p.radius * float(np.cos(ang)),
+                                p.center[1] + p.radius * float(np.sin(ang))))
+    a = np.asarray(pts)
+    return ((float(a[:, 0].min()), float(a[:, 1].min())),
+            (float(a[:, 0].max()), float(a[:, 1].max())))
+
+
+def pieces_chords(pieces: tuple[Piece2, ...], v: int, t: np.ndarray
+                  ) -> tuple[np.ndarray, np.ndarray]:
+    """Extent (lo, hi) along coordinate ``v`` of the section of the closed chain by the
+    lines ``coord[1 - v] = t`` (arrays; nan where a line misses). Exact: the least and
+    greatest crossing of each line with the pieces."""
+    w = 1 - v
+    t = np.asarray(t, dtype=np.float64)
+    lo = np.full(t.shape, np.inf)
+    hi = np.full(t.shape, -np.inf)
+    for p in pieces:
+        if isinstance(p, Line2):
+            a, b = np.asarray(p.start), np.asarray(p.end)
+            if abs(b[w] - a[w]) < 1e-15:
+                hit = np.abs(t - a[w]) <= 1e-12
+                for val in (a[v], b[v]):
+                    lo = np.where(hit, np.minimum(lo, val), lo)
+                    hi = np.where(hit, np.maximum(hi, val), hi)
+                continue
+            f = (t - a[w]) / (b[w] - a[w])
+            hit = (f >= -1e-12) & (f <= 1 + 1e-12)
+            val = a[v] + np.clip(f, 0.0, 1.0) * (b[v] - a[v])
+            lo = np.where(hit, np.minimum(lo, val), lo)
+            hi = np.where(hit, np.maximum(hi, val), hi)
+            continue
+        c, r = p.center, p.radius
+        off = t - c[w]
+        h = np.sqrt(np.maximum(r * r - off * off, 0.0))
+        ok = np.abs(off) <= r * (1 + 1e-12)
+        for sgn in (-1.0, 1.0):
+            pv = c[v] + sgn * h
+            pt = np.stack([pv, t], axis=-1) if v == 0 else np.stack([t, pv], axis=-1)
+            ang = np.arctan2(pt[..., 1] - c[1], pt[..., 0] - c[0])
+            start = p.start_rad if p.sweep_rad > 0 else p.start_rad + p.sweep_rad
+            on = np.mod(ang - start + 1e-12, 2 * np.pi) <= abs(p.sweep_rad) + 2e-12
+            hit = ok & on
+            lo = np.where(hit, np.minimum(lo, pv), lo)
+            hi = np.where(hit, np.maximum(hi, pv), hi)
+    miss = ~np.isfinite(lo)
+    return np.where(miss, np.nan, lo), np.where(miss, np.nan, hi)
+
+
+def pieces_boundary(pieces: tuple[Piece2, ...], spacing_mm: float) -> np.ndarray:
+    """Points on the chain at most ``spacing_mm`` apart, (n, 2)."""
+    out = []
+    for p in pieces:
+        if isinstance(p, Line2):
+            a, b = np.asarray(p.start), np.asarray(p.end)
+            k = max(1, int(np.ceil(np.linalg.norm(b - a) / spacing_mm)))
+            f = np.arange(k) / k
+            out.append(a + f[:, None] * (b - a))
+        else:
+            k = max(2, int(np.ceil(abs(p.sweep_rad) * p.radius / spacing_mm)))
+            out.append(np.asarray([p.point(i / k) for i in range(k)]))
+    return np.concatenate(out)
+
+
 @dataclass(frozen=True)
 class RoundedPolygon:
     """A polygon through ``points`` (y, z), mm, in either order round it, each corner
@@ -351,73 +433,355 @@ class RoundedPolygon:
 
     def bounds(self) -> tuple[tuple[float, float], tuple[float, float]]:
         """((y_lo, z_lo), (y_hi, z_hi)), mm, exact (arc extremes included)."""
-        pts: list[tuple[float, float]] = []
-        for p in self.pieces():
-            pts += [p.start, p.end]
-            if isinstance(p, Arc2):
-                for k in range(-5, 6):
-                    ang = k * np.pi / 2.0
-                    lo = min(p.start_rad, p.start_rad + p.sweep_rad)
-                    hi = max(p.start_rad, p.start_rad + p.sweep_rad)
-                    if lo <= ang <= hi:
-                        pts.append((p.center[0] + p.radius * float(np.cos(ang)),
-                                    p.center[1] + p.radius * float(np.sin(ang))))
-        a = np.asarray(pts)
-        return ((float(a[:, 0].min()), float(a[:, 1].min())),
-                (float(a[:, 0].max()), float(a[:, 1].max())))
+        return pieces_bounds(self.pieces())
 
     def chords(self, v: int, t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """Extent (lo, hi) along coordinate ``v`` (0 = y, 1 = z) of the outline's section
         by the lines ``coord[1 - v] = t`` (arrays; nan where a line misses). Exact: the
         least and greatest crossing of each line with the pieces."""
-        w = 1 - v
-        t = np.asarray(t, dtype=np.float64)
-        lo = np.full(t.shape, np.inf)
-        hi = np.full(t.shape, -np.inf)
-        for p in self.pieces():
-            if isinstance(p, Line2):
-                a, b = np.asarray(p.start), np.asarray(p.end)
-                if abs(b[w] - a[w]) < 1e-15:
-                    hit = np.abs(t - a[w]) <= 1e-12
-                    for val in (a[v], b[v]):
-                        lo = np.where(hit, np.minimum(lo, val), lo)
-                        hi = np.where(hit, np.maximum(hi, val), hi)
-                    continue
-                f = (t - a[w]) / (b[w] - a[w])
-                hit = (f >= -1e-12) & (f <= 1 + 1e-12)
-                val = a[v] + np.clip(f, 0.0, 1.0) * (b[v] - a[v])
-                lo = np.where(hit, np.minimum(lo, val), lo)
-                hi = np.where(hit, np.maximum(hi, val), hi)
-                continue
-            c, r = p.center, p.radius
-            off = t - c[w]
-            h = np.sqrt(np.maximum(r * r - off * off, 0.0))
-            ok = np.abs(off) <= r * (1 + 1e-12)
-            for sgn in (-1.0, 1.0):
-                pv = c[v] + sgn * h
-                pt = np.stack([pv, t], axis=-1) if v == 0 else np.stack([t, pv], axis=-1)
-                ang = np.arctan2(pt[..., 1] - c[1], pt[..., 0] - c[0])
-                start = p.start_rad if p.sweep_rad > 0 else p.start_rad + p.sweep_rad
-                on = np.mod(ang - start + 1e-12, 2 * np.pi) <= abs(p.sweep_rad) + 2e-12
-                hit = ok & on
-                lo = np.where(hit, np.minimum(lo, pv), lo)
-                hi = np.where(hit, np.maximum(hi, pv), hi)
-        miss = ~np.isfinite(lo)
-        return np.where(miss, np.nan, lo), np.where(miss, np.nan, hi)
+        return pieces_chords(self.pieces(), v, t)
 
     def boundary(self, spacing_mm: float) -> np.ndarray:
         """Points on the outline at most ``spacing_mm`` apart, (n, 2)."""
-        out = []
-        for p in self.pieces():
+        return pieces_boundary(self.pieces(), spacing_mm)
+
+
+def arc_segment_mm2(arc: Arc2) -> float:
+    """Signed area (mm2) between an arc and its chord: r^2 (t - sin t) / 2 for the turn
+    t = |sweep| (the sector less the triangle centre-start-end), positive for a
+    counter-clockwise arc (it adds to a counter-clockwise outline)."""
+    t = abs(arc.sweep_rad)
+    return float(np.sign(arc.sweep_rad)) * arc.radius ** 2 * (t - float(np.sin(t))) / 2.0
+
+
+def _in_segment(q: np.ndarray, arc: Arc2) -> np.ndarray:
+    """Points inside the circular segment between ``arc`` and its chord: in the disc and
+    on the chord's side where the arc's middle lies (any sweep below a full turn)."""
+    c = np.asarray(arc.center)
+    a, b, m = np.asarray(arc.start), np.asarray(arc.end), np.asarray(arc.point(0.5))
+    e = b - a
+
+    def side(p: np.ndarray) -> np.ndarray:
+        return e[0] * (p[..., 1] - a[1]) - e[1] * (p[..., 0] - a[0])
+
+    in_disc = np.linalg.norm(q - c, axis=1) < arc.radius
+    return in_disc & (np.sign(side(q)) == np.sign(side(m)))
+
+
+@dataclass(frozen=True)
+class PieceOutline:
+    """A closed outline given as its ``chain`` of pieces (lines and arcs, mm), each
+    starting where the one before ends, the last ending where the first starts, either
+    way round; it must not cross itself (its maker checks). Same protocol as
+    :class:`RoundedPolygon`: exact area, signed distance, bounds, chords and boundary."""
+
+    chain: tuple[Piece2, ...]
+
+    def pieces(self) -> tuple[Piece2, ...]:
+        return self.chain
+
+    def area_mm2(self) -> float:
+        """Exact, by Green's theorem: (1/2) closed integral of (x dy - y dx). A line from a
+        to b gives (a_x b_y - b_x a_y) / 2; an arc of centre c, radius r from angle a0 to a1
+        gives (r^2 (a1 - a0) + r c_x (sin a1 - sin a0) - r c_y (cos a1 - cos a0)) / 2.
+        Positive whichever way round the pieces run."""
+        return abs(self._signed_area_mm2())
+
+    def _signed_area_mm2(self) -> float:
+        total = 0.0
+        for p in self.chain:
             if isinstance(p, Line2):
-                a, b = np.asarray(p.start), np.asarray(p.end)
-                k = max(1, int(np.ceil(np.linalg.norm(b - a) / spacing_mm)))
-                f = np.arange(k) / k
-                out.append(a + f[:, None] * (b - a))
+                (ax, ay), (bx, by) = p.start, p.end
+                total += ax * by - bx * ay
             else:
-                k = max(2, int(np.ceil(abs(p.sweep_rad) * p.radius / spacing_mm)))
-                out.append(np.asarray([p.point(i / k) for i in range(k)]))
-        return np.concatenate(out)
+                a0, a1 = p.start_rad, p.start_rad + p.sweep_rad
+                (cx, cy), r = p.center, p.radius
+                total += (r * r * p.sweep_rad + r * cx * (np.sin(a1) - np.sin(a0))
+                          - r * cy * (np.cos(a1) - np.cos(a0)))
+        return 0.5 * float(total)
+
+    def chord_polygon(self) -> np.ndarray:
+        """The corners of the polygon that joins every piece's start to its end (n, 2)."""
+        return np.asarray([p.start for p in self.chain], dtype=np.float64)
+
+    def sdf(self, q: np.ndarray) -> np.ndarray:
+        """Exact signed distance (mm), negative inside: the least distance to a piece.
+        Inside by the even-odd rule of the closed chain, which is the chord polygon's rule
+        toggled by every circular segment between an arc and its chord (the chain is the
+        chord polygon plus, for each arc, the closed loop arc + chord back)."""
+        q = np.asarray(q, dtype=np.float64).reshape(-1, 2)
+        d = np.full(len(q), np.inf)
+        for p in self.chain:
+            if isinstance(p, Line2):
+                e = _segment_distance(q, np.asarray(p.start), np.asarray(p.end))
+            else:
+                e = _arc_distance(q, p)
+            np.minimum(d, e, out=d)
+        inside = _inside_polygon(q, self.chord_polygon())
+        for p in self.chain:
+            if isinstance(p, Arc2):
+                inside ^= _in_segment(q, p)
+        return np.where(inside, -d, d)
+
+    def bounds(self) -> tuple[tuple[float, float], tuple[float, float]]:
+        """((x_lo, y_lo), (x_hi, y_hi)), mm, exact (arc extremes included)."""
+        return pieces_bounds(self.chain)
+
+    def chords(self, v: int, t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Extent (lo, hi) along coordinate ``v`` of the section by ``coord[1 - v] = t``."""
+        return pieces_chords(self.chain, v, t)
+
+    def boundary(self, spacing_mm: float) -> np.ndarray:
+        """Points on the outline at most ``spacing_mm`` apart, (n, 2)."""
+        return pieces_boundary(self.chain, spacing_mm)
+
+    def moved(self, dx: float, dy: float) -> PieceOutline:
+        """The same outline moved by (dx, dy) mm."""
+        out: list[Piece2] = []
+        for p in self.chain:
+            if isinstance(p, Line2):
+                out.append(Line2((p.start[0] + dx, p.start[1] + dy),
+                                 (p.end[0] + dx, p.end[1] + dy)))
+            else:
+                out.append(Arc2((p.center[0] + dx, p.center[1] + dy), p.radius, p.start_rad,
+                                p.sweep_rad))
+        return PieceOutline(tuple(out))
+
+
+def _piece_tangent(p: Piece2, at_end: bool) -> np.ndarray:
+    """Unit direction of travel of ``p`` at its start or end."""
+    if isinstance(p, Line2):
+        return _unit(np.asarray(p.end) - np.asarray(p.start))
+    a = p.start_rad + (p.sweep_rad if at_end else 0.0)
+    return float(np.sign(p.sweep_rad)) * np.array([-np.sin(a), np.cos(a)])
+
+
+def _reversed(p: Piece2) -> Piece2:
+    if isinstance(p, Line2):
+        return Line2(p.end, p.start)
+    return Arc2(p.center, p.radius, p.start_rad + p.sweep_rad, -p.sweep_rad)
+
+
+def _signed_turn(t1: np.ndarray, t2: np.ndarray) -> float:
+    return float(np.arctan2(t1[0] * t2[1] - t1[1] * t2[0], float(t1 @ t2)))
+
+
+def _meet(a: list, b: list, near: np.ndarray) -> np.ndarray | None:
+    """The point nearest ``near`` where the offset pieces ``a`` and ``b`` (each ["line",
+    p, q] or ["arc", centre, radius, a0, a1], taken as the whole line or circle) meet."""
+    def as_line(x: list) -> tuple[np.ndarray, np.ndarray]:
+        return x[1], _unit(x[2] - x[1])
+
+    found: list[np.ndarray] = []
+    if a[0] == "line" and b[0] == "line":
+        (p, u), (q, v) = as_line(a), as_line(b)
+        den = u[0] * v[1] - u[1] * v[0]
+        if abs(den) < 1e-15:
+            return None
+        t = ((q[0] - p[0]) * v[1] - (q[1] - p[1]) * v[0]) / den
+        return p + t * u
+    if a[0] == "arc" and b[0] == "arc":
+        c1, r1, c2, r2 = a[1], a[2], b[1], b[2]
+        e = c2 - c1
+        dist = float(np.linalg.norm(e))
+        if dist < 1e-15:
+            return None
+        x = (dist * dist + r1 * r1 - r2 * r2) / (2.0 * dist)
+        h2 = r1 * r1 - x * x
+        if h2 < -1e-12:
+            return None
+        h = float(np.sqrt(max(h2, 0.0)))
+        u = e / dist
+        n = np.array([-u[1], u[0]])
+        found = [c1 + x * u + h * n, c1 + x * u - h * n]
+    else:
+        line, arc = (a, b) if a[0] == "line" else (b, a)
+        p, u = as_line(line)
+        c, r = arc[1], arc[2]
+        f = p - c
+        bq = float(f @ u)
+        disc = bq * bq - (float(f @ f) - r * r)
+        if disc < -1e-12:
+            return None
+        root = float(np.sqrt(max(disc, 0.0)))
+        found = [p + (-bq + root) * u, p + (-bq - root) * u]
+    return min(found, key=lambda x: float(np.linalg.norm(x - near)))
+
+
+def _unwrap_near(a: float, ref: float) -> float:
+    return ref + float((a - ref + np.pi) % (2.0 * np.pi) - np.pi)
+
+
+def offset_outline(outline: RoundedPolygon | PieceOutline, d_mm: float
+                   ) -> PieceOutline | None:
+    """The outline's parallel curve ``d_mm`` inside it (outside when negative), exact: every
+    line moves along its normal, every arc keeps its centre and gains or loses ``d_mm`` of
+    radius, and at a corner the moved pieces are cut back to where they meet (the corner
+    turning away from the offset) or joined by an arc of radius |d| about the corner (a
+    corner turning towards it: a concave corner moved in, a convex one moved out). A
+    rounding that would shrink to nothing is first replaced by the sharp corner of its
+    tangents. None when the offset changes the outline's topology: an edge shrinks past
+    nothing, or the result crosses itself (the margin does not fit)."""
+    pieces = list(outline.pieces())
+    if PieceOutline(tuple(pieces))._signed_area_mm2() < 0.0:
+        pieces = [_reversed(p) for p in reversed(pieces)]
+    if d_mm == 0.0:
+        return PieceOutline(tuple(pieces))
+    # Arcs of one circle in a row are one rounding (a round tip drawn as two quarters).
+    pieces = list(_merge_arcs(pieces))
+    flat: list[Piece2] = []
+    n = len(pieces)
+    for i, p in enumerate(pieces):
+        if isinstance(p, Arc2) and p.sweep_rad * d_mm > 0.0 and \
+                p.radius <= abs(d_mm) + OUTLINE_EPS_MM:
+            prev, nxt = pieces[i - 1], pieces[(i + 1) % n]
+            smooth = (abs(_signed_turn(_piece_tangent(prev, True), _piece_tangent(p, False)))
+                      < 1e-9 and abs(_signed_turn(_piece_tangent(p, True),
+                                                  _piece_tangent(nxt, False))) < 1e-9)
+            if not smooth or abs(p.sweep_rad) >= np.pi - 1e-9:
+                return None  # not a rounding of a corner: the outline vanishes there
+            corner = _meet(["line", np.asarray(p.start),
+                            np.asarray(p.start) + _piece_tangent(p, False)],
+                           ["line", np.asarray(p.end),
+                            np.asarray(p.end) + _piece_tangent(p, True)], np.asarray(p.start))
+            if corner is None:
+                return None
+            flat += [Line2(p.start, (float(corner[0]), float(corner[1]))),
+                     Line2((float(corner[0]), float(corner[1])), p.end)]
+        else:
+            flat.append(p)
+    flat = _joined_lines(flat)
+    moved: list[list] = []
+    for p in flat:
+        if isinstance(p, Line2):
+            t = _piece_tangent(p, False)
+            shift = d_mm * np.array([-t[1], t[0]])  # the left normal: inside, counter-clockwise
+            moved.append(["line", np.asarray(p.start) + shift, np.asarray(p.end) + shift, p])
+        else:
+            r = p.radius - d_mm * float(np.sign(p.sweep_rad))
+            if r <= OUTLINE_EPS_MM:
+                return None
+            moved.append(["arc", np.asarray(p.center), r, p.start_rad,
+                          p.start_rad + p.sweep_rad, p])
+    out: list[list] = []
+    m = len(flat)
+    for i in range(m):
+        out.append(moved[i])
+        j = (i + 1) % m
+        corner = np.asarray(flat[i].end)
+        turn = _signed_turn(_piece_tangent(flat[i], True), _piece_tangent(flat[j], False))
+        if abs(turn) < 1e-9:
+            continue
+        if turn * d_mm > 0.0:  # the moved pieces overlap: cut both back to their meeting
+            x = _meet(moved[i], moved[j], corner)
+            if x is None:
+                return None
+            _set_end(moved[i], x, True)
+            _set_end(moved[j], x, False)
+        else:
+            a_end = _end_of(moved[i], True)
+            start = float(np.arctan2(a_end[1] - corner[1], a_end[0] - corner[0]))
+            out.append(["arc", corner, abs(d_mm), start, start + turn, None])
+    chain: list[Piece2] = []
+    for item in out:
+        if item[0] == "line":
+            a, b, orig = item[1], item[2], item[3]
+            length = float(np.linalg.norm(b - a))
+            if length < OUTLINE_EPS_MM:
+                continue
+            if float((b - a) @ (np.asarray(orig.end) - np.asarray(orig.start))) <= 0.0:
+                return None  # the edge turned round: shorter than the offset eats
+            chain.append(Line2((float(a[0]), float(a[1])), (float(b[0]), float(b[1]))))
+        else:
+            c, r, a0, a1, orig = item[1], item[2], item[3], item[4], item[5]
+            sweep = a1 - a0
+            if orig is not None and (np.sign(sweep) != np.sign(orig.sweep_rad)
+                                     or abs(sweep) > abs(orig.sweep_rad) + 1e-9):
+                return None
+            if abs(sweep) * r < OUTLINE_EPS_MM:
+                continue
+            chain.append(Arc2((float(c[0]), float(c[1])), float(r), _wrapped(a0), float(sweep)))
+    if len(chain) < 2 or chain_crossing(tuple(chain)) is not None:
+        return None
+    result = PieceOutline(tuple(chain))
+    # Squeezed flat (two edges meeting face to face) is no outline either.
+    return result if result._signed_area_mm2() > OUTLINE_EPS_MM else None
+
+
+def _joined_lines(pieces: list[Piece2]) -> list[Piece2]:
+    """Neighbouring lines that run straight on joined into one (a rounding replaced by its
+    sharp corner leaves its two tangent pieces in line with the edges)."""
+    out: list[Piece2] = []
+    for p in pieces:
+        last = out[-1] if out else None
+        if (isinstance(p, Line2) and isinstance(last, Line2) and
+                abs(_signed_turn(_piece_tangent(last, True), _piece_tangent(p, False))) < 1e-9):
+            out[-1] = Line2(last.start, p.end)
+        else:
+            out.append(p)
+    first, last = out[0], out[-1]
+    if (len(out) > 2 and isinstance(first, Line2) and isinstance(last, Line2) and
+            abs(_signed_turn(_piece_tangent(last, True), _piece_tangent(first, False))) < 1e-9):
+        out = [Line2(last.start, first.end), *out[1:-1]]
+    return out
+
+
+def _end_of(x: list, at_end: bool) -> np.ndarray:
+    if x[0] == "line":
+        return x[2] if at_end else x[1]
+    a = x[4] if at_end else x[3]
+    return x[1] + x[2] * np.array([np.cos(a), np.sin(a)])
+
+
+def _set_end(x: list, point: np.ndarray, at_end: bool) -> None:
+    """Move an end of the offset piece ``x`` to ``point`` (on its line or circle)."""
+    if x[0] == "line":
+        x[2 if at_end else 1] = point
+        return
+    k = 4 if at_end else 3
+    x[k] = _unwrap_near(float(np.arctan2(point[1] - x[1][1], point[0] - x[1][0])), x[k])
+
+
+def _wrapped(a: float) -> float:
+    """An angle (rad) brought into [-pi, pi)."""
+    return float((a + np.pi) % (2.0 * np.pi) - np.pi)
+
+
+def hub_pieces(center: tuple[float, float], radius_mm: float, angles_rad: tuple[float, ...],
+               length_mm: float, width_mm: float, tip_round_mm: float) -> tuple[Piece2, ...]:
+    """Counter-clockwise outline of a hub disc of ``radius_mm`` about ``center`` with
+    straight arms of ``width_mm`` pointing along ``angles_rad`` (ascending, each arm's
+    tip ``length_mm`` from the centre, its two tip corners rounded by ``tip_round_mm``,
+    half the width giving a round tip): hub arcs between the arms, each arm's sides from
+    the hub circle (where they meet it at sqrt(R^2 - (w/2)^2) along the arm) to the tip.
+    The caller has checked the arms clear each other and the hub (see the plate kind)."""
+    cx, cy = center
+    h, rho = width_mm / 2.0, tip_round_mm
+    reach = float(np.sqrt(radius_mm ** 2 - h * h))
+    half_gap = float(np.arcsin(h / radius_mm))
+    out: list[Piece2] = []
+
+    def at(u: np.ndarray, n: np.ndarray, s: float, o: float) -> tuple[float, float]:
+        return (cx + s * float(u[0]) + o * float(n[0]), cy + s * float(u[1]) + o * float(n[1]))
+
+    n_arms = len(angles_rad)
+    for i, th in enumerate(angles_rad):
+        u = np.array([np.cos(th), np.sin(th)])
+        n = np.array([-u[1], u[0]])
+        side_end = length_mm - rho
+        out.append(Line2(at(u, n, reach, -h), at(u, n, side_end, -h)))
+        if rho > 0.0:
+            out.append(Arc2(at(u, n, side_end, -(h - rho)), rho, _wrapped(th - np.pi / 2.0),
+                            np.pi / 2.0))
+        if h - rho > OUTLINE_EPS_MM:
+            out.append(Line2(at(u, n, length_mm, -(h - rho)), at(u, n, length_mm, h - rho)))
+        if rho > 0.0:
+            out.append(Arc2(at(u, n, side_end, h - rho), rho, _wrapped(th), np.pi / 2.0))
+        out.append(Line2(at(u, n, side_end, h), at(u, n, reach, h)))
+        nxt = angles_rad[(i + 1) % n_arms] + (2.0 * np.pi if i + 1 == n_arms else 0.0)
+        sweep = (nxt - half_gap) - (th + half_gap)
+        out.append(Arc2((cx, cy), radius_mm, _wrapped(th + half_gap), sweep))
+    return tuple(out)
 
 
 @dataclass(frozen=True)
@@ -496,3 +860,5 @@ class Ellipse:
 
 
 Outline = RoundedPolygon | Ellipse
+#: An outline with straight and circular pieces only (what a plate is drawn with).
+PlaneOutline = RoundedPolygon | PieceOutline
