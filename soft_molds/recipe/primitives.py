@@ -15,6 +15,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .meshsolid import MeshSolid
 from .outline import Outline
 
 AXES = {"x": 0, "y": 1, "z": 2}
@@ -812,7 +813,7 @@ class RoundedRing:
         return (c - half, c + half)
 
 
-Primitive = RoundedBox | RoundedRod | Revolved | Extruded | RoundedRing
+Primitive = RoundedBox | RoundedRod | Revolved | Extruded | RoundedRing | MeshSolid
 
 
 def union_sdf(prims: tuple[Primitive, ...], p: np.ndarray) -> np.ndarray:
