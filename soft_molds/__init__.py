@@ -10,7 +10,8 @@ Public API::
         build(variant).export("out")
 
 ``load_recipe`` and ``load_variants`` check the recipe and the rules of the mold it plans
-(parting plane, block features), every problem at once, before any CAD kernel is loaded;
+(parting plane, block features), every problem at once, before any CAD kernel is loaded
+(but for a body drawn in a STEP file, ``kind: file``, whose reading loads it);
 ``build``, ``MoldSet`` and ``Part`` load the mesh and CAD libraries on first use. A recipe
 with ``process: {kind: layered}`` or ``{kind: overmold}`` is built by ``build_steps`` (two
 pours; ``soft_molds.export.overmold.write_steps`` writes its files).
