@@ -150,3 +150,31 @@ def test_the_echo_carries_the_files_digest(tmp_path_factory):
 
 def test_the_parting_plane_defaults_to_the_chosen_one(tmp_path_factory):
     assert recipe(tmp_path_factory).parting.axis == "auto"
+
+
+KERNEL_FREE = """\
+import sys, pathlib
+from soft_molds.errors import RecipeError
+from soft_molds.recipe import load_recipe
+folder = pathlib.Path(sys.argv[1])
+(folder / "notes.step").write_text("a pad, drawn on paper")
+for name in ("missing.step", "notes.step"):
+    (folder / "r.yaml").write_text(
+        "body: {kind: file, path: " + name + "}\\n"
+        "voids: [{kind: bore, diameter_mm: 4, length_mm: 30}]\\n")
+    try:
+        load_recipe(folder / "r.yaml")
+    except RecipeError as exc:
+        print(exc.problems[0].path, exc.problems[0].message.split(" (")[0])
+print("cadquery" in sys.modules, "OCP" in sys.modules)
+"""
+
+
+def test_a_missing_or_foreign_file_is_refused_before_the_kernel_loads(tmp_path):
+    import subprocess
+    import sys
+
+    out = subprocess.run([sys.executable, "-c", KERNEL_FREE, str(tmp_path)],
+                         capture_output=True, text=True, timeout=120, check=True).stdout
+    assert out.splitlines() == ["body.path names no file",
+                                "body.path is not a STEP file", "False False"]
