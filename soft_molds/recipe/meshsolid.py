@@ -49,9 +49,8 @@ class MeshSolid:
         return self.body.volume_mm3
 
     def surface_samples(self, spacing_mm: float) -> np.ndarray:
-        """Points on the mesh, at most ``spacing_mm`` apart along each triangle's edges: a
-        barycentric grid of n x n cells on each triangle, n = ceil(longest edge /
-        spacing)."""
+        """Points on the mesh, rows across each triangle at most ``spacing_mm`` apart and
+        points along each row at most that apart (see :func:`_triangle_grids`)."""
         points, _ = _triangle_grids(self.body.mesh.triangles(), spacing_mm)
         return np.unique(np.round(points, 9), axis=0)
 
