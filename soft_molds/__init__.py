@@ -10,7 +10,8 @@ Public API::
         build(variant).export("out")
 
 ``load_recipe`` and ``load_variants`` check the recipe and the rules of the mold it plans
-(parting plane, block features), every problem at once, before any CAD kernel is loaded;
+(parting plane, block features), every problem at once, before any CAD kernel is loaded
+(but for a body drawn in a STEP file, ``kind: file``, whose reading loads it);
 ``build``, ``MoldSet`` and ``Part`` load the mesh and CAD libraries on first use. A recipe
 with ``process: {kind: layered}`` or ``{kind: overmold}`` is built by ``build_steps`` (two
 pours; ``soft_molds.export.overmold.write_steps`` writes its files).
@@ -21,6 +22,7 @@ from __future__ import annotations
 import os
 from collections.abc import Callable
 from dataclasses import replace
+from pathlib import Path
 from typing import Any
 
 from .errors import GeometryError, MeshIntegrityError, RecipeError, SoftMoldsError
@@ -28,6 +30,7 @@ from .plan import plan_problems
 from .recipe import Recipe, VariantSpec
 from .recipe import load_recipe as _load_recipe
 from .recipe import load_variants as _load_variants
+from .recipe.imported import BodyFileRefused, ImportedBody, Triple, use_body_reader
 from .recipe.variants import merge_problems, prefix_problems
 from .version import __version__
 
@@ -82,6 +85,20 @@ def load_variants(path: str | os.PathLike, progress: Callable[[int, int], None] 
         raise RecipeError([replace(p, path=p.path.removeprefix(every)) for p in merged],
                           pairs[0][1].source)
     return pairs
+
+
+def _read_body_file(path: Path, translate_mm: Triple, rotate_deg: Triple
+                    ) -> ImportedBody | BodyFileRefused:
+    """The geometry stage's STEP reader, loaded (with the CAD kernel) on the first body
+    file a recipe names: the recipe stage may not import it, the package may."""
+    from .geometry.stepbody import read_step_body
+
+    return read_step_body(path, translate_mm, rotate_deg)
+
+
+# Every way into the recipe stage imports this package first, so a ``file`` body always
+# finds its reader (recipe/imported.py).
+use_body_reader(_read_body_file)
 
 
 def __getattr__(name: str) -> Any:

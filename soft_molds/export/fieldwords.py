@@ -39,7 +39,8 @@ def _value_text(f: Field | None, value: object) -> str:
         text = f"{value['from']:g} to {value['to']:g}"
     else:
         text = str(value)
-    if f is not None and f.unit and f.kind in ("number", "pair", "points", "rounds", "graded"):
+    if f is not None and f.unit and f.kind in ("number", "pair", "triple", "points", "rounds",
+                                               "graded"):
         text += f" {f.unit}" if f.unit != "%" else " %"
     return text
 

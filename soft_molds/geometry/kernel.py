@@ -27,6 +27,7 @@ from ..recipe.outline import Arc2, Ellipse, Line2
 from ..recipe.primitives import (
     AXES,
     Extruded,
+    MeshSolid,
     Primitive,
     ProfileLine,
     Revolved,
@@ -386,6 +387,10 @@ def build_primitive(p: Primitive, part: str) -> cq.Shape:
         return _rounded_ring(p, part)
     if isinstance(p, Slab):
         return _slab(p, part)
+    if isinstance(p, MeshSolid):
+        from .stepbody import imported_solid  # it imports this module
+
+        return imported_solid(p, part)
     raise GeometryError("build primitive", f"unknown primitive {type(p).__name__}", part)
 
 

@@ -94,7 +94,9 @@ def check_kind(cls: type, what: str) -> None:
     if not isinstance(fields, tuple) or not all(isinstance(f, Field) for f in fields):
         raise TypeError(f"{what} kind {name}: FIELDS must be a tuple of fields.Field")
     declared = [f.name for f in fields]
-    attrs = [f.name for f in dataclasses.fields(cls)]
+    # A field marked ``derived`` is no recipe key: the reader fills it (a file body's
+    # imported solid, recipe/kinds/file.py).
+    attrs = [f.name for f in dataclasses.fields(cls) if not f.metadata.get("derived")]
     if declared != attrs:
         raise TypeError(f"{what} kind {name}: dataclass fields {attrs} differ from FIELDS "
                         f"{declared}")

@@ -41,7 +41,8 @@ class Field:
     """One recipe key.
 
     ``kind`` is ``"number"``, ``"integer"``, ``"choice"``, ``"text"``, ``"pair"`` (two
-    numbers), ``"points"``, ``"rounds"`` or ``"graded"`` (see their constructors).
+    numbers), ``"triple"`` (three), ``"points"``, ``"rounds"`` or ``"graded"`` (see their
+    constructors).
     ``lo``/``hi`` bound numbers (``lo_open`` makes the lower bound strict);
     ``gap_below`` > 0 with ``lo`` = 0 accepts 0 or at least ``gap_below``, nothing between.
     ``default`` is ``None`` when the key is optional with no value, or the module-level
@@ -83,17 +84,19 @@ class Field:
             parts.append(f"0 or {_fmt(self.gap_below)} <= ")
         elif self.lo is not None:
             parts.append(f"{_fmt(self.lo)} {'<' if self.lo_open else '<='} ")
-        parts.append("value" if self.kind != "pair" else "each value")
+        parts.append("each value" if self.kind in ("pair", "triple") else "value")
         if self.hi is not None:
             parts.append(f" <= {_fmt(self.hi)}")
         unit = f" {self.unit}" if self.unit else ""
         what = "a whole number" if self.kind == "integer" else "a number"
-        if self.kind == "pair":
-            what = "a list of two numbers"
+        if self.kind in ("pair", "triple"):
+            what = f"a list of {_COUNT_WORDS[2 if self.kind == 'pair' else 3]} numbers"
         return f"{what}, {''.join(parts)}{unit}"
 
 
 REQUIRED = _REQUIRED
+
+_COUNT_WORDS = {2: "two", 3: "three"}
 
 #: Most points a profile field takes: a bellows of 100 pleats needs about 200.
 MAX_POINTS = 400
@@ -149,6 +152,12 @@ def text(name: str, doc: str, default: object = REQUIRED) -> Field:
 def pair(name: str, doc: str, default: object = REQUIRED, *, unit: str = "mm",
          lo: float | None = -MAX_SIZE_MM, hi: float | None = MAX_SIZE_MM) -> Field:
     return Field(name, "pair", doc, default, unit, lo, hi, False)
+
+
+def triple(name: str, doc: str, default: object = REQUIRED, *, unit: str = "mm",
+           lo: float | None = -MAX_SIZE_MM, hi: float | None = MAX_SIZE_MM) -> Field:
+    """Three numbers (x, y, z), each within [lo, hi]."""
+    return Field(name, "triple", doc, default, unit, lo, hi, False)
 
 
 def points(name: str, doc: str, default: object = None, *,
@@ -271,17 +280,19 @@ class MapReader:
                 self.problem(path, "must be non-empty text", line, n.plain(), f.allowed())
                 return None
             return v.strip()
-        if f.kind == "pair":
+        if f.kind in ("pair", "triple"):
+            count = 2 if f.kind == "pair" else 3
             items = v if isinstance(v, list) else None
-            if items is None or len(items) != 2 or not all(_is_number(i.value) for i in items):
-                self.problem(path, "must be a list of two numbers", line, n.plain(), f.allowed())
+            if items is None or len(items) != count or \
+                    not all(_is_number(i.value) for i in items):
+                self.problem(path, f"must be a list of {_COUNT_WORDS[count]} numbers", line,
+                             n.plain(), f.allowed())
                 return None
-            out = []
-            for i in items:
-                out.append(self._check_number(f, path, line, i.value))
-            if out[0] is None or out[1] is None:
+            out = [self._check_number(f, path, line, i.value) for i in items]
+            numbers = [x for x in out if x is not None]
+            if len(numbers) != count:
                 return None
-            return (float(out[0]), float(out[1]))
+            return tuple(float(x) for x in numbers)
         if f.kind in ("points", "rounds", "graded"):
             return self._take_list(f, path, line, n)
         if not _is_number(v):

@@ -59,8 +59,9 @@ def _value(f: Field, pattern: re.Pattern[str] | None = None) -> Schema:
         if f.hi is not None:
             out["maximum"] = int(f.hi)
         return out
-    if f.kind == "pair":
-        return {"type": "array", "items": _bounded(f), "minItems": 2, "maxItems": 2}
+    if f.kind in ("pair", "triple"):
+        count = 2 if f.kind == "pair" else 3
+        return {"type": "array", "items": _bounded(f), "minItems": count, "maxItems": count}
     if f.kind == "points":
         point = {"type": "array", "items": _bounded(f), "minItems": 2, "maxItems": 2}
         return {"type": "array", "items": point, "minItems": 2, "maxItems": MAX_POINTS}

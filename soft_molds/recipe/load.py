@@ -318,6 +318,10 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
         r.finish()
     inlets_v = _read_inlets(top, blocks["inlet"], problems)
     top.finish()
+    if body is not None and hasattr(body, "read_file"):
+        # A body drawn elsewhere (``file``): read once its own fields are valid.
+        body, found = body.read_file(base_dir, blocks["printer"], "body", _lines(root))
+        problems.extend(found)
 
     if problems or body is None or any(v is None for v in voids):
         raise refused()
@@ -341,6 +345,10 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
                       default=0.0)
     voids = _after_socket(body, voids, start_depth + blocks["checks"]["min_wall_mm"])
     parting_v = blocks["parting"]
+    if parting_v["axis"] is None and parting_v["offset_mm"] is None:
+        # A kind may ask for the chosen plane by default (a drawn body has no field the
+        # plane could follow).
+        parting_v["axis"] = getattr(body, "DEFAULT_PARTING", None)
     if parting_v["axis"] is None:
         lo, hi = bounds_of(body.primitives())
         parting_v["axis"] = "y" if hi[1] - lo[1] < hi[2] - lo[2] else "z"

@@ -366,7 +366,11 @@ class Recipe:
     def params(self) -> dict[str, Any]:
         """Every value that shapes the output, as plain JSON-ready data."""
         def kind_dict(obj: BodyKind | VoidKind) -> dict[str, Any]:
-            values = asdict(obj)  # type: ignore[call-overload]
+            extra = getattr(obj, "echo_extra", None)
+            # A kind with read data (a file body's solid) echoes its fields and what
+            # ``echo_extra`` says of that data (the file's digest), not the data itself.
+            values = asdict(obj) if extra is None else {  # type: ignore[call-overload]
+                **{f.name: getattr(obj, f.name) for f in obj.FIELDS}, **extra()}
             # Fields added later are echoed only when set off their default.
             for f in obj.FIELDS:
                 if not f.echo_default and values[f.name] == f.default:

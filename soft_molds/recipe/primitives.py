@@ -15,6 +15,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .meshsolid import MeshSolid
 from .outline import Outline, PlaneOutline
 
 AXES = {"x": 0, "y": 1, "z": 2}
@@ -881,7 +882,7 @@ class Slab:
         return (float(a[0]), float(b[0]))
 
 
-Primitive = RoundedBox | RoundedRod | Revolved | Extruded | RoundedRing | Slab
+Primitive = RoundedBox | RoundedRod | Revolved | Extruded | RoundedRing | Slab | MeshSolid
 
 
 def union_sdf(prims: tuple[Primitive, ...], p: np.ndarray) -> np.ndarray:
