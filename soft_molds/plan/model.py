@@ -179,7 +179,9 @@ class Post:
     ``base_z_mm`` a rectangle of ``size_mm`` (x, y) centred on ``center_mm`` (x, y), each
     corner cut along the arc of radius ``corner_radius_mm`` by CORNER_FACETS facets; it
     stands ``height_mm`` into the body (+z) and every side leans in by ``draft_deg``. It
-    forms the void ``name`` (the recipe's path)."""
+    forms the void ``name`` (the recipe's path). ``angle_deg`` turns the rectangle about
+    its centre (counter-clockwise seen from +z): a post along a channel's segment. A corner
+    radius of half the smaller size makes the ends (or the whole post) round."""
 
     name: str
     center_mm: tuple[float, float]
@@ -188,6 +190,7 @@ class Post:
     base_z_mm: float
     height_mm: float
     draft_deg: float
+    angle_deg: float = 0.0
 
     def outline_mm(self) -> tuple[tuple[float, float], ...]:
         """The section at the bond face, counter-clockwise (x, y)."""
@@ -195,16 +198,31 @@ class Post:
         hx, hy = self.size_mm[0] / 2.0, self.size_mm[1] / 2.0
         r = self.corner_radius_mm
         if r <= 0.0:
-            return ((cx + hx, cy - hy), (cx + hx, cy + hy), (cx - hx, cy + hy),
-                    (cx - hx, cy - hy))
-        pts = []
+            square = ((cx + hx, cy - hy), (cx + hx, cy + hy), (cx - hx, cy + hy),
+                      (cx - hx, cy - hy))
+            return self._turned(square)
+        pts: list[tuple[float, float]] = []
         for k, (sx, sy) in enumerate(((1, -1), (1, 1), (-1, 1), (-1, -1))):
             ox, oy = cx + sx * (hx - r), cy + sy * (hy - r)
             a0 = -math.pi / 2.0 + k * math.pi / 2.0
             for j in range(CORNER_FACETS + 1):
                 a = a0 + j * (math.pi / 2.0) / CORNER_FACETS
-                pts.append((ox + r * math.cos(a), oy + r * math.sin(a)))
-        return tuple(pts)
+                p = (ox + r * math.cos(a), oy + r * math.sin(a))
+                # Where a side has no straight part (r = half the size) the last facet of
+                # one corner ends where the next begins: one point, not two.
+                if not pts or math.dist(p, pts[-1]) > 1e-9:
+                    pts.append(p)
+        if math.dist(pts[0], pts[-1]) <= 1e-9:
+            pts.pop()
+        return self._turned(tuple(pts))
+
+    def _turned(self, pts: tuple[tuple[float, float], ...]) -> tuple[tuple[float, float], ...]:
+        if self.angle_deg == 0.0:
+            return pts
+        cx, cy = self.center_mm
+        c, s = math.cos(math.radians(self.angle_deg)), math.sin(math.radians(self.angle_deg))
+        return tuple((cx + (x - cx) * c - (y - cy) * s, cy + (x - cx) * s + (y - cy) * c)
+                     for x, y in pts)
 
     def area_at_mm2(self, t_mm: float) -> float:
         """Section area at height ``t_mm`` above the bond face: the outline with every edge
