@@ -33,6 +33,7 @@ from ..recipe.primitives import (
     RoundedBox,
     RoundedRing,
     RoundedRod,
+    TurnedBar,
 )
 
 Shape = cq.Shape
@@ -349,7 +350,32 @@ def build_primitive(p: Primitive, part: str) -> cq.Shape:
         return _extruded(p, part)
     if isinstance(p, RoundedRing):
         return _rounded_ring(p, part)
+    if isinstance(p, TurnedBar):
+        return _turned_bar(p, part)
     raise GeometryError("build primitive", f"unknown primitive {type(p).__name__}", part)
+
+
+def _turned_bar(p: TurnedBar, part: str) -> cq.Shape:
+    """Built along +x at the origin (a filleted box, or the rounded rectangle section
+    swept along x), turned about z and moved; checked against the closed-form volume."""
+    lx, ly, lz, r = p.length_mm, p.width_mm, p.height_mm, p.radius_mm
+    made: object
+    if p.round_ends:
+        try:
+            made = _rounded_box_at_origin((lx, ly, lz), r)
+        except GeometryError as exc:
+            raise GeometryError(exc.step, exc.detail, part) from exc
+    else:
+        wp = cq.Workplane("YZ", origin=(-lx / 2.0, 0.0, 0.0))
+        if r > 0.0:
+            made = wp.sketch().rect(ly, lz).vertices().fillet(r).finalize().extrude(lx).val()
+        else:
+            made = wp.rect(ly, lz).extrude(lx).val()
+    if not isinstance(made, cq.Shape):
+        raise GeometryError("turned bar", "the kernel returned no solid", part)
+    made = made.rotate(cq.Vector(0, 0, 0), cq.Vector(0, 0, 1), p.angle_deg)
+    made = made.translate(cq.Vector(*p.center_mm))
+    return checked(made, part, "turned bar", volume_mm3=p.volume_mm3(), rel_tol=1e-6)
 
 
 def _rounded_ring(p: RoundedRing, part: str) -> cq.Shape:

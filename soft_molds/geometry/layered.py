@@ -121,7 +121,7 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
     # with the locating clearance on every side, so the bridge drops in wherever its skirt
     # lets it sit.
     notches = [post_solid(_grown(p, layer.clearance_mm)) for p in layer.posts
-               if p.center_mm[0] - p.size_mm[0] / 2.0 < 0.0]
+               if crosses_edge(p, layer.footprint)]
     tray = cut(_block(r, wall, bond, hi[2] + wall), [above, *notches], "tray",
                "chambered tray")
     lo, _ = r.body_bounds()
@@ -150,6 +150,13 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
     boxes = {name: _turned_box(lab.box) for name, lab in
              (("tray", tray_label), ("post-bridge", bridge_label)) if lab is not None}
     return LayerSolids(parts, cast, boxes)
+
+
+def crosses_edge(p: Post, f: Footprint) -> bool:
+    """Whether post ``p`` reaches beyond the footprint's edge at the bond face (a groove
+    opening on the outline): a corner of its outline outside the footprint's rectangle."""
+    (cx, cy), (lx, ly) = f.center_mm, f.size_mm
+    return any(abs(x - cx) > lx / 2.0 or abs(y - cy) > ly / 2.0 for x, y in p.outline_mm())
 
 
 def _grown(p: Post, by_mm: float) -> Post:
