@@ -33,6 +33,7 @@ from ..recipe.primitives import (
     RoundedBox,
     RoundedRing,
     RoundedRod,
+    Slab,
     TurnedBar,
 )
 
@@ -319,6 +320,34 @@ def _extruded(p: Extruded, part: str) -> cq.Shape:
     return checked(made, part, "sweep section", volume_mm3=p.volume_mm3(), rel_tol=1e-6)
 
 
+def _slab(p: Slab, part: str) -> cq.Shape:
+    """The outline's face at z0 (lines and three-point arcs, exact; a circle as two
+    halves) pushed up by the thickness; checked against the closed-form volume."""
+    z = p.z0_mm
+
+    def at(x: float, y: float) -> cq.Vector:
+        return cq.Vector(x, y, z)
+
+    pieces = p.outline.pieces()
+    edges = []
+    for piece in pieces:
+        if isinstance(piece, Line2):
+            edges.append(cq.Edge.makeLine(at(*piece.start), at(*piece.end)))
+        elif abs(piece.sweep_rad) > math.pi:  # three points of a long arc sit far apart
+            halves = ((0.0, 0.25, 0.5), (0.5, 0.75, 1.0))
+            edges += [cq.Edge.makeThreePointArc(*(at(*piece.point(f)) for f in h))
+                      for h in halves]
+        else:
+            edges.append(cq.Edge.makeThreePointArc(at(*piece.start), at(*piece.point(0.5)),
+                                                   at(*piece.end)))
+    try:
+        face = cq.Face.makeFromWires(cq.Wire.assembleEdges(edges))
+        made = cq.Solid.extrudeLinear(face, cq.Vector(0, 0, p.thickness_mm))
+    except Exception as exc:  # OCCT raises bare Standard_Failure subclasses
+        raise GeometryError("extrude plate", f"the kernel failed: {exc}", part) from exc
+    return checked(made, part, "extrude plate", volume_mm3=p.volume_mm3(), rel_tol=1e-6)
+
+
 def build_slit(c: SlitCut, part: str) -> cq.Shape:
     """The slit's tool: its xz section (lines and three-point arcs, exact) pushed along y
     over its span; checked against the closed-form volume of the whole tool."""
@@ -352,6 +381,8 @@ def build_primitive(p: Primitive, part: str) -> cq.Shape:
         return _rounded_ring(p, part)
     if isinstance(p, TurnedBar):
         return _turned_bar(p, part)
+    if isinstance(p, Slab):
+        return _slab(p, part)
     raise GeometryError("build primitive", f"unknown primitive {type(p).__name__}", part)
 
 

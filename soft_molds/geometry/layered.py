@@ -140,7 +140,7 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
     bridge = fuse([plate, *posts], "post-bridge", "bridge posts")
     # The bridge's label goes on the plate's outer face (the face the posts stand on the
     # other side of), centred over the posts so it clears the overflow hole.
-    far = max(p.center_mm[0] + p.size_mm[0] / 2.0 for p in layer.posts)
+    far = max(p.x_span_mm()[1] for p in layer.posts)
     side = wall + layer.clearance_mm + SKIRT_WALL_MM
     bridge, bridge_label = cut_label(
         r, bridge, "post-bridge", ((lo[0] + far) / 2.0, (lo[1] + hi[1]) / 2.0, bond - PLATE_MM),
@@ -169,7 +169,7 @@ def _overflow_hole(r: Recipe, posts: tuple[Post, ...], bond: float) -> cq.Shape 
     """A hole through the plate midway between the last post and the body's far end, where
     the excess silicone rises when the bridge is lowered (None: no room for it)."""
     _, hi = r.body_bounds()
-    far = max(p.center_mm[0] + p.size_mm[0] / 2.0 for p in posts)
+    far = max(p.x_span_mm()[1] for p in posts)
     d = r.mold.vent_diameter_mm
     if hi[0] - far < d + 2.0:
         return None

@@ -179,9 +179,10 @@ class Post:
     ``base_z_mm`` a rectangle of ``size_mm`` (x, y) centred on ``center_mm`` (x, y), each
     corner cut along the arc of radius ``corner_radius_mm`` by CORNER_FACETS facets; it
     stands ``height_mm`` into the body (+z) and every side leans in by ``draft_deg``. It
-    forms the void ``name`` (the recipe's path). ``angle_deg`` turns the rectangle about
-    its centre (counter-clockwise seen from +z): a post along a channel's segment. A corner
-    radius of half the smaller size makes the ends (or the whole post) round."""
+    forms the void ``name`` (the recipe's path). ``angle_deg`` turns the post about the
+    vertical line through its centre (counter-clockwise seen from +z; 0: its ``size_mm``
+    along x and y), for posts along an arm that does not run along x. A corner radius of
+    half the smaller size makes the ends (or the whole post) round."""
 
     name: str
     center_mm: tuple[float, float]
@@ -198,31 +199,36 @@ class Post:
         hx, hy = self.size_mm[0] / 2.0, self.size_mm[1] / 2.0
         r = self.corner_radius_mm
         if r <= 0.0:
-            square = ((cx + hx, cy - hy), (cx + hx, cy + hy), (cx - hx, cy + hy),
-                      (cx - hx, cy - hy))
-            return self._turned(square)
-        pts: list[tuple[float, float]] = []
-        for k, (sx, sy) in enumerate(((1, -1), (1, 1), (-1, 1), (-1, -1))):
-            ox, oy = cx + sx * (hx - r), cy + sy * (hy - r)
-            a0 = -math.pi / 2.0 + k * math.pi / 2.0
-            for j in range(CORNER_FACETS + 1):
-                a = a0 + j * (math.pi / 2.0) / CORNER_FACETS
-                p = (ox + r * math.cos(a), oy + r * math.sin(a))
-                # Where a side has no straight part (r = half the size) the last facet of
-                # one corner ends where the next begins: one point, not two.
-                if not pts or math.dist(p, pts[-1]) > 1e-9:
-                    pts.append(p)
-        if math.dist(pts[0], pts[-1]) <= 1e-9:
-            pts.pop()
-        return self._turned(tuple(pts))
-
-    def _turned(self, pts: tuple[tuple[float, float], ...]) -> tuple[tuple[float, float], ...]:
-        if self.angle_deg == 0.0:
-            return pts
-        cx, cy = self.center_mm
+            pts = [(cx + hx, cy - hy), (cx + hx, cy + hy), (cx - hx, cy + hy),
+                   (cx - hx, cy - hy)]
+        else:
+            pts = []
+            for k, (sx, sy) in enumerate(((1, -1), (1, 1), (-1, 1), (-1, -1))):
+                ox, oy = cx + sx * (hx - r), cy + sy * (hy - r)
+                a0 = -math.pi / 2.0 + k * math.pi / 2.0
+                for j in range(CORNER_FACETS + 1):
+                    a = a0 + j * (math.pi / 2.0) / CORNER_FACETS
+                    p = (ox + r * math.cos(a), oy + r * math.sin(a))
+                    # Where a side has no straight part (r = half the size) one corner's
+                    # last facet ends where the next one's begins: one point, not two.
+                    if not pts or math.dist(p, pts[-1]) > 1e-9:
+                        pts.append(p)
+            if math.dist(pts[0], pts[-1]) <= 1e-9:
+                pts.pop()
+        if self.angle_deg == 0.0:  # unturned: the same numbers as always
+            return tuple(pts)
         c, s = math.cos(math.radians(self.angle_deg)), math.sin(math.radians(self.angle_deg))
-        return tuple((cx + (x - cx) * c - (y - cy) * s, cy + (x - cx) * s + (y - cy) * c)
+        return tuple((cx + c * (x - cx) - s * (y - cy), cy + s * (x - cx) + c * (y - cy))
                      for x, y in pts)
+
+    def x_span_mm(self) -> tuple[float, float]:
+        """Least and greatest x (mm) of the section at the bond face (where the post is
+        widest)."""
+        if self.angle_deg == 0.0:
+            return (self.center_mm[0] - self.size_mm[0] / 2.0,
+                    self.center_mm[0] + self.size_mm[0] / 2.0)
+        xs = [x for x, _ in self.outline_mm()]
+        return (min(xs), max(xs))
 
     def area_at_mm2(self, t_mm: float) -> float:
         """Section area at height ``t_mm`` above the bond face: the outline with every edge

@@ -118,13 +118,15 @@ def _list_allowed(f: Field) -> str:
         top = _fmt(f.hi or MAX_SIZE_MM)
         each = (f"-{top} <= value <= {top} {f.unit}, 0 or at least {_fmt(f.gap_below)} "
                 f"{f.unit} from 0")
+    if f.gap_below == 0.0 and f.lo is not None:  # no floor: plain bounds (angles)
+        each = f"{_fmt(f.lo)} <= value <= {_fmt(f.hi or MAX_SIZE_MM)} {f.unit}"
     if f.kind == "points":
         return (f"a list of 2 to {MAX_POINTS} points [{', '.join(f.coords)}], each value "
                 f"{each}")
     if f.kind == "paths":
         return (f"a list of 1 to {MAX_PATHS} lists of 2 to {MAX_POINTS} points "
                 f"[{', '.join(f.coords)}], each value {each}")
-    return f"a number, or a list of numbers (one per point), each {each}"
+    return f"a number, or a list of numbers (one per {f.item or 'point'}), each {each}"
 
 
 def number(name: str, doc: str, default: object = REQUIRED, *, unit: str = "mm",

@@ -1,10 +1,12 @@
-"""Closed plane outlines in the body's (y, z) cross-section plane, with exact geometry.
+"""Closed plane outlines in the body's (y, z) cross-section plane (or a plate's x-y
+plane), with exact geometry.
 
-Two families: a polygon whose corners may each be rounded by a circular arc tangent to
-both edges (rectangles, circles, D shapes and free polygons are all of this family), and
-an axis-aligned ellipse. Each gives its area in closed form, its exact signed distance
-(negative inside, mm), its bounds, and its chord along one axis at a given value of the
-other. Frame: mm, first coordinate y (across), second z (up).
+Three families: a polygon whose corners may each be rounded by a circular arc tangent to
+both edges (rectangles, circles, D shapes and free polygons are all of this family), a
+chain of lines and arcs (``PieceOutline``: a hub with arms), and an axis-aligned
+ellipse. Each gives its area in closed form, its exact signed distance (negative inside,
+mm), its bounds, and its chord along one axis at a given value of the other. Frame: mm,
+first coordinate y (across), second z (up); a plate's outline: x, y.
 """
 
 from __future__ import annotations
@@ -280,6 +282,80 @@ def _inside_polygon(q: np.ndarray, v: np.ndarray) -> np.ndarray:
     return inside
 
 
+def pieces_bounds(pieces: tuple[Piece2, ...]) -> tuple[tuple[float, float], tuple[float, float]]:
+    """((lo, lo), (hi, hi)) of a chain of pieces, mm, exact (arc extremes included)."""
+    pts: list[tuple[float, float]] = []
+    for p in pieces:
+        pts += [p.start, p.end]
+        if isinstance(p, Arc2):
+            for k in range(-5, 6):
+                ang = k * np.pi / 2.0
+                lo = min(p.start_rad, p.start_rad + p.sweep_rad)
+                hi = max(p.start_rad, p.start_rad + p.sweep_rad)
+                if lo <= ang <= hi:
+                    pts.append((p.center[0] + p.radius * float(np.cos(ang)),
+                                p.center[1] + p.radius * float(np.sin(ang))))
+    a = np.asarray(pts)
+    return ((float(a[:, 0].min()), float(a[:, 1].min())),
+            (float(a[:, 0].max()), float(a[:, 1].max())))
+
+
+def pieces_chords(pieces: tuple[Piece2, ...], v: int, t: np.ndarray
+                  ) -> tuple[np.ndarray, np.ndarray]:
+    """Extent (lo, hi) along coordinate ``v`` of the section of the closed chain by the
+    lines ``coord[1 - v] = t`` (arrays; nan where a line misses). Exact: the least and
+    greatest crossing of each line with the pieces."""
+    w = 1 - v
+    t = np.asarray(t, dtype=np.float64)
+    lo = np.full(t.shape, np.inf)
+    hi = np.full(t.shape, -np.inf)
+    for p in pieces:
+        if isinstance(p, Line2):
+            a, b = np.asarray(p.start), np.asarray(p.end)
+            if abs(b[w] - a[w]) < 1e-15:
+                hit = np.abs(t - a[w]) <= 1e-12
+                for val in (a[v], b[v]):
+                    lo = np.where(hit, np.minimum(lo, val), lo)
+                    hi = np.where(hit, np.maximum(hi, val), hi)
+                continue
+            f = (t - a[w]) / (b[w] - a[w])
+            hit = (f >= -1e-12) & (f <= 1 + 1e-12)
+            val = a[v] + np.clip(f, 0.0, 1.0) * (b[v] - a[v])
+            lo = np.where(hit, np.minimum(lo, val), lo)
+            hi = np.where(hit, np.maximum(hi, val), hi)
+            continue
+        c, r = p.center, p.radius
+        off = t - c[w]
+        h = np.sqrt(np.maximum(r * r - off * off, 0.0))
+        ok = np.abs(off) <= r * (1 + 1e-12)
+        for sgn in (-1.0, 1.0):
+            pv = c[v] + sgn * h
+            pt = np.stack([pv, t], axis=-1) if v == 0 else np.stack([t, pv], axis=-1)
+            ang = np.arctan2(pt[..., 1] - c[1], pt[..., 0] - c[0])
+            start = p.start_rad if p.sweep_rad > 0 else p.start_rad + p.sweep_rad
+            on = np.mod(ang - start + 1e-12, 2 * np.pi) <= abs(p.sweep_rad) + 2e-12
+            hit = ok & on
+            lo = np.where(hit, np.minimum(lo, pv), lo)
+            hi = np.where(hit, np.maximum(hi, pv), hi)
+    miss = ~np.isfinite(lo)
+    return np.where(miss, np.nan, lo), np.where(miss, np.nan, hi)
+
+
+def pieces_boundary(pieces: tuple[Piece2, ...], spacing_mm: float) -> np.ndarray:
+    """Points on the chain at most ``spacing_mm`` apart, (n, 2)."""
+    out = []
+    for p in pieces:
+        if isinstance(p, Line2):
+            a, b = np.asarray(p.start), np.asarray(p.end)
+            k = max(1, int(np.ceil(np.linalg.norm(b - a) / spacing_mm)))
+            f = np.arange(k) / k
+            out.append(a + f[:, None] * (b - a))
+        else:
+            k = max(2, int(np.ceil(abs(p.sweep_rad) * p.radius / spacing_mm)))
+            out.append(np.asarray([p.point(i / k) for i in range(k)]))
+    return np.concatenate(out)
+
+
 @dataclass(frozen=True)
 class RoundedPolygon:
     """A polygon through ``points`` (y, z), mm, in either order round it, each corner
@@ -351,73 +427,161 @@ class RoundedPolygon:
 
     def bounds(self) -> tuple[tuple[float, float], tuple[float, float]]:
         """((y_lo, z_lo), (y_hi, z_hi)), mm, exact (arc extremes included)."""
-        pts: list[tuple[float, float]] = []
-        for p in self.pieces():
-            pts += [p.start, p.end]
-            if isinstance(p, Arc2):
-                for k in range(-5, 6):
-                    ang = k * np.pi / 2.0
-                    lo = min(p.start_rad, p.start_rad + p.sweep_rad)
-                    hi = max(p.start_rad, p.start_rad + p.sweep_rad)
-                    if lo <= ang <= hi:
-                        pts.append((p.center[0] + p.radius * float(np.cos(ang)),
-                                    p.center[1] + p.radius * float(np.sin(ang))))
-        a = np.asarray(pts)
-        return ((float(a[:, 0].min()), float(a[:, 1].min())),
-                (float(a[:, 0].max()), float(a[:, 1].max())))
+        return pieces_bounds(self.pieces())
 
     def chords(self, v: int, t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """Extent (lo, hi) along coordinate ``v`` (0 = y, 1 = z) of the outline's section
         by the lines ``coord[1 - v] = t`` (arrays; nan where a line misses). Exact: the
         least and greatest crossing of each line with the pieces."""
-        w = 1 - v
-        t = np.asarray(t, dtype=np.float64)
-        lo = np.full(t.shape, np.inf)
-        hi = np.full(t.shape, -np.inf)
-        for p in self.pieces():
-            if isinstance(p, Line2):
-                a, b = np.asarray(p.start), np.asarray(p.end)
-                if abs(b[w] - a[w]) < 1e-15:
-                    hit = np.abs(t - a[w]) <= 1e-12
-                    for val in (a[v], b[v]):
-                        lo = np.where(hit, np.minimum(lo, val), lo)
-                        hi = np.where(hit, np.maximum(hi, val), hi)
-                    continue
-                f = (t - a[w]) / (b[w] - a[w])
-                hit = (f >= -1e-12) & (f <= 1 + 1e-12)
-                val = a[v] + np.clip(f, 0.0, 1.0) * (b[v] - a[v])
-                lo = np.where(hit, np.minimum(lo, val), lo)
-                hi = np.where(hit, np.maximum(hi, val), hi)
-                continue
-            c, r = p.center, p.radius
-            off = t - c[w]
-            h = np.sqrt(np.maximum(r * r - off * off, 0.0))
-            ok = np.abs(off) <= r * (1 + 1e-12)
-            for sgn in (-1.0, 1.0):
-                pv = c[v] + sgn * h
-                pt = np.stack([pv, t], axis=-1) if v == 0 else np.stack([t, pv], axis=-1)
-                ang = np.arctan2(pt[..., 1] - c[1], pt[..., 0] - c[0])
-                start = p.start_rad if p.sweep_rad > 0 else p.start_rad + p.sweep_rad
-                on = np.mod(ang - start + 1e-12, 2 * np.pi) <= abs(p.sweep_rad) + 2e-12
-                hit = ok & on
-                lo = np.where(hit, np.minimum(lo, pv), lo)
-                hi = np.where(hit, np.maximum(hi, pv), hi)
-        miss = ~np.isfinite(lo)
-        return np.where(miss, np.nan, lo), np.where(miss, np.nan, hi)
+        return pieces_chords(self.pieces(), v, t)
 
     def boundary(self, spacing_mm: float) -> np.ndarray:
         """Points on the outline at most ``spacing_mm`` apart, (n, 2)."""
-        out = []
-        for p in self.pieces():
+        return pieces_boundary(self.pieces(), spacing_mm)
+
+
+def arc_segment_mm2(arc: Arc2) -> float:
+    """Signed area (mm2) between an arc and its chord: r^2 (t - sin t) / 2 for the turn
+    t = |sweep| (the sector less the triangle centre-start-end), positive for a
+    counter-clockwise arc (it adds to a counter-clockwise outline)."""
+    t = abs(arc.sweep_rad)
+    return float(np.sign(arc.sweep_rad)) * arc.radius ** 2 * (t - float(np.sin(t))) / 2.0
+
+
+def _in_segment(q: np.ndarray, arc: Arc2) -> np.ndarray:
+    """Points inside the circular segment between ``arc`` and its chord: in the disc and
+    on the chord's side where the arc's middle lies (any sweep below a full turn)."""
+    c = np.asarray(arc.center)
+    a, b, m = np.asarray(arc.start), np.asarray(arc.end), np.asarray(arc.point(0.5))
+    e = b - a
+
+    def side(p: np.ndarray) -> np.ndarray:
+        return e[0] * (p[..., 1] - a[1]) - e[1] * (p[..., 0] - a[0])
+
+    in_disc = np.linalg.norm(q - c, axis=1) < arc.radius
+    return in_disc & (np.sign(side(q)) == np.sign(side(m)))
+
+
+@dataclass(frozen=True)
+class PieceOutline:
+    """A closed outline given as its ``chain`` of pieces (lines and arcs, mm), each
+    starting where the one before ends, the last ending where the first starts, either
+    way round; it must not cross itself (its maker checks). Same protocol as
+    :class:`RoundedPolygon`: exact area, signed distance, bounds, chords and boundary."""
+
+    chain: tuple[Piece2, ...]
+
+    def pieces(self) -> tuple[Piece2, ...]:
+        return self.chain
+
+    def area_mm2(self) -> float:
+        """Exact, by Green's theorem: (1/2) closed integral of (x dy - y dx). A line from a
+        to b gives (a_x b_y - b_x a_y) / 2; an arc of centre c, radius r from angle a0 to a1
+        gives (r^2 (a1 - a0) + r c_x (sin a1 - sin a0) - r c_y (cos a1 - cos a0)) / 2.
+        Positive whichever way round the pieces run."""
+        return abs(self._signed_area_mm2())
+
+    def _signed_area_mm2(self) -> float:
+        total = 0.0
+        for p in self.chain:
             if isinstance(p, Line2):
-                a, b = np.asarray(p.start), np.asarray(p.end)
-                k = max(1, int(np.ceil(np.linalg.norm(b - a) / spacing_mm)))
-                f = np.arange(k) / k
-                out.append(a + f[:, None] * (b - a))
+                (ax, ay), (bx, by) = p.start, p.end
+                total += ax * by - bx * ay
             else:
-                k = max(2, int(np.ceil(abs(p.sweep_rad) * p.radius / spacing_mm)))
-                out.append(np.asarray([p.point(i / k) for i in range(k)]))
-        return np.concatenate(out)
+                a0, a1 = p.start_rad, p.start_rad + p.sweep_rad
+                (cx, cy), r = p.center, p.radius
+                total += (r * r * p.sweep_rad + r * cx * (np.sin(a1) - np.sin(a0))
+                          - r * cy * (np.cos(a1) - np.cos(a0)))
+        return 0.5 * float(total)
+
+    def chord_polygon(self) -> np.ndarray:
+        """The corners of the polygon that joins every piece's start to its end (n, 2)."""
+        return np.asarray([p.start for p in self.chain], dtype=np.float64)
+
+    def sdf(self, q: np.ndarray) -> np.ndarray:
+        """Exact signed distance (mm), negative inside: the least distance to a piece.
+        Inside by the even-odd rule of the closed chain, which is the chord polygon's rule
+        toggled by every circular segment between an arc and its chord (the chain is the
+        chord polygon plus, for each arc, the closed loop arc + chord back)."""
+        q = np.asarray(q, dtype=np.float64).reshape(-1, 2)
+        d = np.full(len(q), np.inf)
+        for p in self.chain:
+            if isinstance(p, Line2):
+                e = _segment_distance(q, np.asarray(p.start), np.asarray(p.end))
+            else:
+                e = _arc_distance(q, p)
+            np.minimum(d, e, out=d)
+        inside = _inside_polygon(q, self.chord_polygon())
+        for p in self.chain:
+            if isinstance(p, Arc2):
+                inside ^= _in_segment(q, p)
+        return np.where(inside, -d, d)
+
+    def bounds(self) -> tuple[tuple[float, float], tuple[float, float]]:
+        """((x_lo, y_lo), (x_hi, y_hi)), mm, exact (arc extremes included)."""
+        return pieces_bounds(self.chain)
+
+    def chords(self, v: int, t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Extent (lo, hi) along coordinate ``v`` of the section by ``coord[1 - v] = t``."""
+        return pieces_chords(self.chain, v, t)
+
+    def boundary(self, spacing_mm: float) -> np.ndarray:
+        """Points on the outline at most ``spacing_mm`` apart, (n, 2)."""
+        return pieces_boundary(self.chain, spacing_mm)
+
+    def moved(self, dx: float, dy: float) -> PieceOutline:
+        """The same outline moved by (dx, dy) mm."""
+        out: list[Piece2] = []
+        for p in self.chain:
+            if isinstance(p, Line2):
+                out.append(Line2((p.start[0] + dx, p.start[1] + dy),
+                                 (p.end[0] + dx, p.end[1] + dy)))
+            else:
+                out.append(Arc2((p.center[0] + dx, p.center[1] + dy), p.radius, p.start_rad,
+                                p.sweep_rad))
+        return PieceOutline(tuple(out))
+
+
+def _wrapped(a: float) -> float:
+    """An angle (rad) brought into [-pi, pi)."""
+    return float((a + np.pi) % (2.0 * np.pi) - np.pi)
+
+
+def hub_pieces(center: tuple[float, float], radius_mm: float, angles_rad: tuple[float, ...],
+               length_mm: float, width_mm: float, tip_round_mm: float) -> tuple[Piece2, ...]:
+    """Counter-clockwise outline of a hub disc of ``radius_mm`` about ``center`` with
+    straight arms of ``width_mm`` pointing along ``angles_rad`` (ascending, each arm's
+    tip ``length_mm`` from the centre, its two tip corners rounded by ``tip_round_mm``,
+    half the width giving a round tip): hub arcs between the arms, each arm's sides from
+    the hub circle (where they meet it at sqrt(R^2 - (w/2)^2) along the arm) to the tip.
+    The caller has checked the arms clear each other and the hub (see the plate kind)."""
+    cx, cy = center
+    h, rho = width_mm / 2.0, tip_round_mm
+    reach = float(np.sqrt(radius_mm ** 2 - h * h))
+    half_gap = float(np.arcsin(h / radius_mm))
+    out: list[Piece2] = []
+
+    def at(u: np.ndarray, n: np.ndarray, s: float, o: float) -> tuple[float, float]:
+        return (cx + s * float(u[0]) + o * float(n[0]), cy + s * float(u[1]) + o * float(n[1]))
+
+    n_arms = len(angles_rad)
+    for i, th in enumerate(angles_rad):
+        u = np.array([np.cos(th), np.sin(th)])
+        n = np.array([-u[1], u[0]])
+        side_end = length_mm - rho
+        out.append(Line2(at(u, n, reach, -h), at(u, n, side_end, -h)))
+        if rho > 0.0:
+            out.append(Arc2(at(u, n, side_end, -(h - rho)), rho, _wrapped(th - np.pi / 2.0),
+                            np.pi / 2.0))
+        if h - rho > OUTLINE_EPS_MM:
+            out.append(Line2(at(u, n, length_mm, -(h - rho)), at(u, n, length_mm, h - rho)))
+        if rho > 0.0:
+            out.append(Arc2(at(u, n, side_end, h - rho), rho, _wrapped(th), np.pi / 2.0))
+        out.append(Line2(at(u, n, side_end, h), at(u, n, reach, h)))
+        nxt = angles_rad[(i + 1) % n_arms] + (2.0 * np.pi if i + 1 == n_arms else 0.0)
+        sweep = (nxt - half_gap) - (th + half_gap)
+        out.append(Arc2((cx, cy), radius_mm, _wrapped(th + half_gap), sweep))
+    return tuple(out)
 
 
 @dataclass(frozen=True)
@@ -496,3 +660,5 @@ class Ellipse:
 
 
 Outline = RoundedPolygon | Ellipse
+#: An outline with straight and circular pieces only (what a plate is drawn with).
+PlaneOutline = RoundedPolygon | PieceOutline

@@ -15,7 +15,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .outline import Outline
+from .outline import Outline, PlaneOutline
 
 AXES = {"x": 0, "y": 1, "z": 2}
 
@@ -982,7 +982,76 @@ def _line_to_rect_distance(a0: float, b0: float, ka: float, kb: float, ha: float
     return min(abs((ca - a0) * kb - (cb - b0) * ka) for ca in (-ha, ha) for cb in (-hb, hb))
 
 
-Primitive = RoundedBox | RoundedRod | Revolved | Extruded | RoundedRing | TurnedBar
+# ---- Slab: a plane outline in (x, y) pushed along z ----------------------------------------
+
+
+@dataclass(frozen=True)
+class Slab:
+    """The ``outline`` (in the x-y plane, mm: its first coordinate x, its second y) pushed
+    along z from ``z0_mm`` to ``z0_mm + thickness_mm``: a straight prism with sharp edges
+    round both flat faces (a plate)."""
+
+    outline: PlaneOutline
+    z0_mm: float
+    thickness_mm: float
+
+    def sdf(self, p: np.ndarray) -> np.ndarray:
+        """Exact signed distance (mm): the outline's exact plane distance combined with
+        the two face planes' (the distance to an intersection of a prism and a slab of
+        space, as for a box)."""
+        p = np.asarray(p, dtype=np.float64).reshape(-1, 3)
+        lateral = self.outline.sdf(p[:, :2])
+        axial = np.abs(p[:, 2] - (self.z0_mm + self.thickness_mm / 2.0)) - self.thickness_mm / 2.0
+        w = np.stack([lateral, axial], axis=1)
+        outside = np.linalg.norm(np.maximum(w, 0.0), axis=1)
+        inside = np.minimum(w.max(axis=1), 0.0)
+        return outside + inside
+
+    def bounds(self) -> tuple[np.ndarray, np.ndarray]:
+        """Exact: the outline's bounds and the two faces."""
+        (x0, y0), (x1, y1) = self.outline.bounds()
+        return (np.array([x0, y0, self.z0_mm]),
+                np.array([x1, y1, self.z0_mm + self.thickness_mm]))
+
+    def volume_mm3(self) -> float:
+        """Closed form: the outline's exact area times the thickness."""
+        return self.outline.area_mm2() * self.thickness_mm
+
+    def surface_samples(self, spacing_mm: float) -> np.ndarray:
+        """Points on the surface: the outline at heights at most ``spacing_mm`` apart, and
+        both flat faces filled on a grid."""
+        ring = self.outline.boundary(spacing_mm)
+        k = max(1, int(np.ceil(self.thickness_mm / spacing_mm)))
+        zs = self.z0_mm + np.linspace(0.0, self.thickness_mm, k + 1)
+        out = [np.column_stack([ring, np.full(len(ring), z)]) for z in zs]
+        (x0, y0), (x1, y1) = self.outline.bounds()
+        gx = np.linspace(x0, x1, max(2, int(np.ceil((x1 - x0) / spacing_mm)) + 1))
+        gy = np.linspace(y0, y1, max(2, int(np.ceil((y1 - y0) / spacing_mm)) + 1))
+        grid = np.stack(np.meshgrid(gx, gy, indexing="ij"), axis=-1).reshape(-1, 2)
+        face = grid[self.outline.sdf(grid) < 0.0]
+        for z in (zs[0], zs[-1]):
+            out.append(np.column_stack([face, np.full(len(face), z)]))
+        return np.concatenate(out)
+
+    def section_extent(self, v: int, w: int, t: float) -> tuple[float, float] | None:
+        """Extent (lo, hi) along ``v`` of the section by ``coord[w] = t`` (None: the plane
+        misses). Exact: across z the outline's bounds; along z the thickness wherever the
+        outline meets the line; in-plane the outline's chord at t."""
+        z0, z1 = self.z0_mm, self.z0_mm + self.thickness_mm
+        lo2, hi2 = self.outline.bounds()
+        if w == 2:
+            if t < z0 or t > z1:
+                return None
+            return (lo2[v], hi2[v])
+        a, b = self.outline.chords(1 - w, np.array([t]))
+        if np.isnan(a[0]):
+            return None
+        if v == 2:
+            return (z0, z1)
+        return (float(a[0]), float(b[0]))
+
+
+Primitive = RoundedBox | RoundedRod | Revolved | Extruded | RoundedRing | Slab | TurnedBar
 
 
 def union_sdf(prims: tuple[Primitive, ...], p: np.ndarray) -> np.ndarray:
