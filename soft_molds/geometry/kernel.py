@@ -365,6 +365,9 @@ def build_slit(c: SlitCut, part: str) -> cq.Shape:
     except Exception as exc:  # OCCT raises bare Standard_Failure subclasses
         raise GeometryError("build slit", f"the kernel failed: {exc}", part) from exc
     whole = c.section_area_mm2(c.top_z_mm + OVERSHOOT_MM) * c.span_mm
+    if c.angle_deg != 0.0:  # a slit across a turned row: turned about its centre
+        made = made.rotate(cq.Vector(c.center_x_mm, c.center_y_mm, 0.0),
+                           cq.Vector(c.center_x_mm, c.center_y_mm, 1.0), c.angle_deg)
     return checked(made, part, "build slit", volume_mm3=whole, rel_tol=1e-6)
 
 

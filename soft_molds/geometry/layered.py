@@ -16,7 +16,7 @@ import cadquery as cq
 from ..plan.model import CastingStep, Footprint, LayerKind, Post
 from ..recipe.model import Recipe
 from ..recipe.primitives import RoundedBox
-from .kernel import box, build_primitive, checked, cut, fuse, split_at
+from .kernel import box, build_primitive, build_slit, checked, cut, fuse, split_at
 from .mold import Label, cut_label
 
 Box = tuple[tuple[float, float, float], tuple[float, float, float]]
@@ -115,7 +115,12 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
     _, hi = r.body_bounds()
     bond, wall = layer.bond_z_mm, layer.wall_mm
     posts = [post_solid(p) for p in layer.posts]
-    cast = cut(above, posts, "cast", "chambered layer")
+    # Slits between chambers are cut from the actuator's top, the tray's floor: the cast
+    # loses them and the tray keeps them as fins standing on its floor.
+    slits = [build_slit(c, "tray") for c in r.outer_cuts()]
+    cast = cut(above, posts + slits, "cast", "chambered layer")
+    if slits:
+        above = cut(above, slits, "tray", "slits from the top face")
     # The feed groove's post runs on through the tray's inlet wall (so the groove opens
     # cleanly on the inlet face): the wall takes a notch open to the rim, the post's shape
     # with the locating clearance on every side, so the bridge drops in wherever its skirt

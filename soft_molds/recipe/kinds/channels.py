@@ -177,7 +177,7 @@ class Channels:
         for j in range(len(self.rows)):
             row = self.row(j)
             for k, (s0, s1) in enumerate(row.spans_mm()):
-                c, ang = _point_along(self.paths[row.path], (s0 + s1) / 2.0)
+                c, ang = point_along(self.paths[row.path], (s0 + s1) / 2.0)
                 out.append((j, k, c, ang))
         return tuple(out)
 
@@ -447,7 +447,7 @@ def path_length_mm(pts: Sequence[Sequence[float]]) -> float:
     return sum(math.dist(pts[k], pts[k + 1]) for k in range(len(pts) - 1))
 
 
-def _point_along(pts: Sequence[tuple[float, float]], s_mm: float
+def point_along(pts: Sequence[tuple[float, float]], s_mm: float
                  ) -> tuple[tuple[float, float], float]:
     """The point ``s_mm`` along the polyline and its segment's direction (deg); past the
     end, on the last segment's line."""
