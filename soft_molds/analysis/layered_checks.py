@@ -43,6 +43,7 @@ from .findings import Finding, Severity, finding
 from .layered import LayerStep, is_chambered
 from .printability import Printer, PrintPlan, plan_print, print_findings
 from .result import Part
+from .section import section_segments
 from .trapped_air import trapped_air
 from .wording import point
 
@@ -173,10 +174,39 @@ def sheet_cover_mm(s: LayerStep, sheet: Footprint) -> float:
     lies above the bottom rounding, so there the section is the full footprint). At a
     rounded corner the gap is the same (the sheet's corner is the footprint's parallel
     curve), so the four sides give the least."""
+    if sheet.outline is not None:
+        return plate_sheet_cover_mm(s, sheet)
     lo, hi = s.part("cast").mesh.bbox_mm()
     (cx, cy), (lx, ly) = sheet.center_mm, sheet.size_mm
     return float(min(cx - lx / 2.0 - lo[0], hi[0] - (cx + lx / 2.0),
                      cy - ly / 2.0 - lo[1], hi[1] - (cy + ly / 2.0)))
+
+
+#: Spacing (mm) of the points on a plate's sheet edge measured against the cast's outline.
+SHEET_EDGE_SPACING_MM = 0.5
+
+
+def plate_sheet_cover_mm(s: LayerStep, sheet: Footprint) -> float:
+    """The least silicone beyond the edge of a plate's sheet (mm): the base cast's mesh cut
+    by the plane midway through its thickness (its sides are upright, so every section is
+    the outline), and the least distance from points on the sheet's edge to those cut
+    segments."""
+    assert sheet.outline is not None
+    mesh = s.part("cast").mesh
+    lo, hi = mesh.bbox_mm()
+    z = (lo[2] + hi[2]) / 2.0
+    segs, _ = section_segments(mesh, "z", z)
+    edge = sheet.outline.boundary(SHEET_EDGE_SPACING_MM)
+    a, b = segs[:, 0], segs[:, 1]
+    ab = b - a
+    out = np.inf
+    for chunk in np.array_split(edge, max(1, len(edge) // 256)):
+        q = chunk[:, None, :]
+        t = np.clip(np.sum((q - a) * ab, axis=2) / np.maximum(np.sum(ab * ab, axis=1), 1e-30),
+                    0.0, 1.0)
+        d = np.linalg.norm(q - (a + t[..., None] * ab), axis=2)
+        out = min(out, float(d.min()))
+    return out
 
 
 def sheet_cover_finding(cover_mm: float, min_wall_mm: float, part: str) -> Finding:

@@ -22,6 +22,7 @@ from ..analysis.overmold import OvermoldMoldSet, OvermoldStep
 from ..analysis.plates import PlateItem, posed_vertices
 from ..analysis.printability import PrintPlan
 from ..plan.model import Footprint
+from ..recipe.outline import Arc2, Line2
 from ..units import mm3_to_cm3
 from ..version import __version__
 from .card import CAUTIONS
@@ -55,7 +56,10 @@ SHEETS = {"paper": "paper (ordinary copy paper)", "fabric": "a thin woven fabric
 
 
 def sheet_outline(f: Footprint) -> list[tuple[float, float]]:
-    """The outline of ``f`` counter-clockwise (x, y in mm), corners as short chords."""
+    """The outline of ``f`` counter-clockwise (x, y in mm), corners as short chords (a
+    plate's arcs too, ARC_STEPS_PER_DEG a degree)."""
+    if f.outline is not None:
+        return outline_points(f.outline.pieces())
     cx, cy = f.center_mm
     hx, hy = f.size_mm[0] / 2.0, f.size_mm[1] / 2.0
     r = f.corner_radius_mm
@@ -68,6 +72,19 @@ def sheet_outline(f: Footprint) -> list[tuple[float, float]]:
         for j in range(n + 1):
             a = math.radians(-90.0 + 90.0 * k + 90.0 * j / n)
             pts.append((ox + r * math.cos(a), oy + r * math.sin(a)))
+    return pts
+
+
+def outline_points(pieces: Sequence[Line2 | Arc2]) -> list[tuple[float, float]]:
+    """A chain of lines and arcs as the corners of a polygon (each arc by chords,
+    ARC_STEPS_PER_DEG a degree)."""
+    pts: list[tuple[float, float]] = []
+    for p in pieces:
+        if isinstance(p, Line2):
+            pts.append(p.start)
+            continue
+        n = max(1, math.ceil(abs(math.degrees(p.sweep_rad)) * ARC_STEPS_PER_DEG))
+        pts += [p.point(j / n) for j in range(n)]
     return pts
 
 

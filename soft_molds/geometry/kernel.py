@@ -321,19 +321,25 @@ def _extruded(p: Extruded, part: str) -> cq.Shape:
 
 
 def _slab(p: Slab, part: str) -> cq.Shape:
-    """The outline's face at z0 (lines and three-point arcs, exact; a circle as two
-    halves) pushed up by the thickness; checked against the closed-form volume."""
-    z = p.z0_mm
+    """The outline's face at z0 pushed up by the thickness; checked against the
+    closed-form volume."""
+    return outline_prism(p.outline.pieces(), p.z0_mm, p.z0_mm + p.thickness_mm, part,
+                         "extrude plate", p.volume_mm3())
 
+
+def outline_prism(pieces: Sequence[Line2 | Arc2], z0: float, z1: float, part: str, step: str,
+                  volume_mm3: float) -> cq.Shape:
+    """A closed chain of lines and arcs in the x-y plane (mm) pushed from z0 to z1: lines
+    and three-point arcs (an arc over a half turn as two halves, whose three points then
+    stay well apart); checked against ``volume_mm3`` to 1e-6."""
     def at(x: float, y: float) -> cq.Vector:
-        return cq.Vector(x, y, z)
+        return cq.Vector(x, y, z0)
 
-    pieces = p.outline.pieces()
     edges = []
     for piece in pieces:
         if isinstance(piece, Line2):
             edges.append(cq.Edge.makeLine(at(*piece.start), at(*piece.end)))
-        elif abs(piece.sweep_rad) > math.pi:  # three points of a long arc sit far apart
+        elif abs(piece.sweep_rad) > math.pi:
             halves = ((0.0, 0.25, 0.5), (0.5, 0.75, 1.0))
             edges += [cq.Edge.makeThreePointArc(*(at(*piece.point(f)) for f in h))
                       for h in halves]
@@ -342,10 +348,10 @@ def _slab(p: Slab, part: str) -> cq.Shape:
                                                    at(*piece.end)))
     try:
         face = cq.Face.makeFromWires(cq.Wire.assembleEdges(edges))
-        made = cq.Solid.extrudeLinear(face, cq.Vector(0, 0, p.thickness_mm))
+        made = cq.Solid.extrudeLinear(face, cq.Vector(0, 0, z1 - z0))
     except Exception as exc:  # OCCT raises bare Standard_Failure subclasses
-        raise GeometryError("extrude plate", f"the kernel failed: {exc}", part) from exc
-    return checked(made, part, "extrude plate", volume_mm3=p.volume_mm3(), rel_tol=1e-6)
+        raise GeometryError(step, f"the kernel failed: {exc}", part) from exc
+    return checked(made, part, step, volume_mm3=volume_mm3, rel_tol=1e-6)
 
 
 def build_slit(c: SlitCut, part: str) -> cq.Shape:

@@ -12,11 +12,21 @@ from __future__ import annotations
 from dataclasses import dataclass, field, replace
 
 import cadquery as cq
+import numpy as np
 
 from ..plan.model import CastingStep, Footprint, LayerKind, Post
 from ..recipe.model import Recipe
-from ..recipe.primitives import RoundedBox
-from .kernel import box, build_primitive, build_slit, checked, cut, fuse, split_at
+from ..recipe.primitives import RoundedBox, Slab
+from .kernel import (
+    box,
+    build_primitive,
+    build_slit,
+    checked,
+    cut,
+    fuse,
+    outline_prism,
+    split_at,
+)
 from .mold import Label, cut_label
 
 Box = tuple[tuple[float, float, float], tuple[float, float, float]]
@@ -75,6 +85,9 @@ def post_solid(p: Post) -> cq.Shape:
 
 def footprint_prism(f: Footprint, z0: float, z1: float, part: str) -> cq.Shape:
     """The footprint extruded from z0 to z1 (mm)."""
+    if f.outline is not None:
+        return outline_prism(f.outline.pieces(), z0, z1, part, "footprint prism",
+                             f.area_mm2() * (z1 - z0))
     lx, ly = f.size_mm
     wp = cq.Workplane("XY", origin=(f.center_mm[0], f.center_mm[1], z0))
     if f.corner_radius_mm > 0.0:
@@ -93,7 +106,7 @@ def _block(r: Recipe, grow_mm: float, z0: float, z1: float) -> cq.Shape:
 def build_layers(r: Recipe, steps: tuple[CastingStep, ...]) -> dict[str, LayerSolids]:
     """Every layered step's solids by step name."""
     body_p = r.body_primitives()[0]
-    assert isinstance(body_p, RoundedBox)
+    assert isinstance(body_p, RoundedBox | Slab)
     body = build_primitive(body_p, "body")
     layer0 = steps[0].layer
     assert layer0 is not None
@@ -138,7 +151,8 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
                    bond + SKIRT_DROP_MM)
     pocket = _block(r, wall + layer.clearance_mm, bond, bond + SKIRT_DROP_MM + 1.0)
     cutters = [pocket]
-    hole = _overflow_hole(r, layer.posts, bond)
+    hole = (_overflow_hole(r, layer.posts, bond) if layer.footprint.outline is None
+            else _hole_at(layer.overflow_xy_mm, r, bond))
     if hole is not None:
         cutters.append(hole)
     plate = cut(plate, cutters, "post-bridge", "bridge plate")
@@ -159,9 +173,13 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
 
 def crosses_edge(p: Post, f: Footprint) -> bool:
     """Whether post ``p`` reaches beyond the footprint's edge at the bond face (a groove
-    opening on the outline): a corner of its outline outside the footprint's rectangle."""
+    opening on the outline): a corner of its outline outside the footprint (a plate's
+    outline by its exact distance; a bar's rectangle)."""
+    pts = np.asarray(p.outline_mm(), dtype=float)
+    if f.outline is not None:
+        return bool((f.outline.sdf(pts) > 0.0).any())
     (cx, cy), (lx, ly) = f.center_mm, f.size_mm
-    return any(abs(x - cx) > lx / 2.0 or abs(y - cy) > ly / 2.0 for x, y in p.outline_mm())
+    return bool(((np.abs(pts[:, 0] - cx) > lx / 2.0) | (np.abs(pts[:, 1] - cy) > ly / 2.0)).any())
 
 
 def _grown(p: Post, by_mm: float) -> Post:
@@ -180,6 +198,15 @@ def _overflow_hole(r: Recipe, posts: tuple[Post, ...], bond: float) -> cq.Shape 
         return None
     return cq.Solid.makeCylinder(d / 2.0, PLATE_MM + 2.0,
                                  cq.Vector((far + hi[0]) / 2.0, 0.0, bond - PLATE_MM - 1.0),
+                                 cq.Vector(0, 0, 1))
+
+
+def _hole_at(xy: tuple[float, float] | None, r: Recipe, bond: float) -> cq.Shape | None:
+    """The overflow hole through the plate at ``xy`` (None: no room for one)."""
+    if xy is None:
+        return None
+    return cq.Solid.makeCylinder(r.mold.vent_diameter_mm / 2.0, PLATE_MM + 2.0,
+                                 cq.Vector(xy[0], xy[1], bond - PLATE_MM - 1.0),
                                  cq.Vector(0, 0, 1))
 
 

@@ -15,6 +15,7 @@ from dataclasses import dataclass, replace
 from enum import StrEnum
 
 from ..recipe.model import InletFace, Recipe
+from ..recipe.outline import PieceOutline, offset_outline
 from .layout import Layout
 
 Vec3 = tuple[float, float, float]
@@ -270,20 +271,44 @@ class LayerKind(StrEnum):
 @dataclass(frozen=True)
 class Footprint:
     """The body's section at the bond face (mm, x-y): a rectangle of ``size_mm`` centred
-    on ``center_mm`` with corners rounded ``corner_radius_mm``."""
+    on ``center_mm`` with corners rounded ``corner_radius_mm`` (a bar); or, for a plate,
+    ``outline`` (its lines and arcs), with ``center_mm`` and ``size_mm`` its bounding box
+    and no corner radius."""
 
     center_mm: tuple[float, float]
     size_mm: tuple[float, float]
     corner_radius_mm: float
+    outline: PieceOutline | None = None
+
+    @staticmethod
+    def of_outline(o: PieceOutline) -> Footprint:
+        """The footprint of a plate's outline (its bounds give centre and size)."""
+        (x0, y0), (x1, y1) = o.bounds()
+        return Footprint(((x0 + x1) / 2.0, (y0 + y1) / 2.0), (x1 - x0, y1 - y0), 0.0, o)
 
     def inset(self, d_mm: float) -> Footprint:
         """Moved in by ``d_mm`` (out when negative): the parallel curve of a rounded
-        rectangle is a rounded rectangle whose corner radius changes by the same amount."""
+        rectangle is a rounded rectangle whose corner radius changes by the same amount;
+        an outline's is :func:`soft_molds.recipe.outline.offset_outline` (ValueError where
+        the offset does not fit: the layered plan refuses that first)."""
+        if self.outline is not None:
+            moved = offset_outline(self.outline, d_mm)
+            if moved is None:
+                raise ValueError(f"an offset of {d_mm:g} mm does not fit the outline")
+            return Footprint.of_outline(moved)
         lx, ly = self.size_mm
         return Footprint(self.center_mm, (lx - 2 * d_mm, ly - 2 * d_mm),
                          max(self.corner_radius_mm - d_mm, 0.0))
 
+    def fits_offset(self, d_mm: float) -> bool:
+        """Whether :meth:`inset` by ``d_mm`` keeps the outline's shape."""
+        if self.outline is not None:
+            return offset_outline(self.outline, d_mm) is not None
+        return min(self.size_mm) > 2.0 * d_mm
+
     def area_mm2(self) -> float:
+        if self.outline is not None:
+            return self.outline.area_mm2()
         lx, ly = self.size_mm
         return lx * ly - (4.0 - math.pi) * self.corner_radius_mm ** 2
 
@@ -302,6 +327,9 @@ class Layer:
     clearance_mm: float
     wall_mm: float
     sheet_inset_mm: float | None = None
+    #: Where the post bridge's overflow hole goes (x, y) for a plate's outline (None: a
+    #: bar's, beyond the last post, or no room).
+    overflow_xy_mm: tuple[float, float] | None = None
 
     @property
     def turned_over(self) -> bool:

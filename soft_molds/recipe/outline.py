@@ -158,8 +158,14 @@ def _rounded_crossing(poly: RoundedPolygon) -> np.ndarray | None:
     """A point where the rounded outline, traced as a polyline (arcs by their chords every
     TRACE_STEP_RAD), crosses itself, or None. The sharp polygon is known not to cross;
     a concave rounding can still bulge across another edge."""
+    return chain_crossing(poly.pieces())
+
+
+def chain_crossing(pieces: tuple[Piece2, ...]) -> np.ndarray | None:
+    """A point where a closed chain of pieces, traced as a polyline (arcs by their chords
+    every TRACE_STEP_RAD), crosses itself, or None."""
     pts: list[tuple[float, float]] = []
-    for p in poly.pieces():
+    for p in pieces:
         if isinstance(p, Line2):
             pts.append(p.start)
         else:
@@ -540,6 +546,200 @@ class PieceOutline:
                 out.append(Arc2((p.center[0] + dx, p.center[1] + dy), p.radius, p.start_rad,
                                 p.sweep_rad))
         return PieceOutline(tuple(out))
+
+
+def _piece_tangent(p: Piece2, at_end: bool) -> np.ndarray:
+    """Unit direction of travel of ``p`` at its start or end."""
+    if isinstance(p, Line2):
+        return _unit(np.asarray(p.end) - np.asarray(p.start))
+    a = p.start_rad + (p.sweep_rad if at_end else 0.0)
+    return float(np.sign(p.sweep_rad)) * np.array([-np.sin(a), np.cos(a)])
+
+
+def _reversed(p: Piece2) -> Piece2:
+    if isinstance(p, Line2):
+        return Line2(p.end, p.start)
+    return Arc2(p.center, p.radius, p.start_rad + p.sweep_rad, -p.sweep_rad)
+
+
+def _signed_turn(t1: np.ndarray, t2: np.ndarray) -> float:
+    return float(np.arctan2(t1[0] * t2[1] - t1[1] * t2[0], float(t1 @ t2)))
+
+
+def _meet(a: list, b: list, near: np.ndarray) -> np.ndarray | None:
+    """The point nearest ``near`` where the offset pieces ``a`` and ``b`` (each ["line",
+    p, q] or ["arc", centre, radius, a0, a1], taken as the whole line or circle) meet."""
+    def as_line(x: list) -> tuple[np.ndarray, np.ndarray]:
+        return x[1], _unit(x[2] - x[1])
+
+    found: list[np.ndarray] = []
+    if a[0] == "line" and b[0] == "line":
+        (p, u), (q, v) = as_line(a), as_line(b)
+        den = u[0] * v[1] - u[1] * v[0]
+        if abs(den) < 1e-15:
+            return None
+        t = ((q[0] - p[0]) * v[1] - (q[1] - p[1]) * v[0]) / den
+        return p + t * u
+    if a[0] == "arc" and b[0] == "arc":
+        c1, r1, c2, r2 = a[1], a[2], b[1], b[2]
+        e = c2 - c1
+        dist = float(np.linalg.norm(e))
+        if dist < 1e-15:
+            return None
+        x = (dist * dist + r1 * r1 - r2 * r2) / (2.0 * dist)
+        h2 = r1 * r1 - x * x
+        if h2 < -1e-12:
+            return None
+        h = float(np.sqrt(max(h2, 0.0)))
+        u = e / dist
+        n = np.array([-u[1], u[0]])
+        found = [c1 + x * u + h * n, c1 + x * u - h * n]
+    else:
+        line, arc = (a, b) if a[0] == "line" else (b, a)
+        p, u = as_line(line)
+        c, r = arc[1], arc[2]
+        f = p - c
+        bq = float(f @ u)
+        disc = bq * bq - (float(f @ f) - r * r)
+        if disc < -1e-12:
+            return None
+        root = float(np.sqrt(max(disc, 0.0)))
+        found = [p + (-bq + root) * u, p + (-bq - root) * u]
+    return min(found, key=lambda x: float(np.linalg.norm(x - near)))
+
+
+def _unwrap_near(a: float, ref: float) -> float:
+    return ref + float((a - ref + np.pi) % (2.0 * np.pi) - np.pi)
+
+
+def offset_outline(outline: RoundedPolygon | PieceOutline, d_mm: float
+                   ) -> PieceOutline | None:
+    """The outline's parallel curve ``d_mm`` inside it (outside when negative), exact: every
+    line moves along its normal, every arc keeps its centre and gains or loses ``d_mm`` of
+    radius, and at a corner the moved pieces are cut back to where they meet (the corner
+    turning away from the offset) or joined by an arc of radius |d| about the corner (a
+    corner turning towards it: a concave corner moved in, a convex one moved out). A
+    rounding that would shrink to nothing is first replaced by the sharp corner of its
+    tangents. None when the offset changes the outline's topology: an edge shrinks past
+    nothing, or the result crosses itself (the margin does not fit)."""
+    pieces = list(outline.pieces())
+    if PieceOutline(tuple(pieces))._signed_area_mm2() < 0.0:
+        pieces = [_reversed(p) for p in reversed(pieces)]
+    if d_mm == 0.0:
+        return PieceOutline(tuple(pieces))
+    # Arcs of one circle in a row are one rounding (a round tip drawn as two quarters).
+    pieces = list(_merge_arcs(pieces))
+    flat: list[Piece2] = []
+    n = len(pieces)
+    for i, p in enumerate(pieces):
+        if isinstance(p, Arc2) and p.sweep_rad * d_mm > 0.0 and \
+                p.radius <= abs(d_mm) + OUTLINE_EPS_MM:
+            prev, nxt = pieces[i - 1], pieces[(i + 1) % n]
+            smooth = (abs(_signed_turn(_piece_tangent(prev, True), _piece_tangent(p, False)))
+                      < 1e-9 and abs(_signed_turn(_piece_tangent(p, True),
+                                                  _piece_tangent(nxt, False))) < 1e-9)
+            if not smooth or abs(p.sweep_rad) >= np.pi - 1e-9:
+                return None  # not a rounding of a corner: the outline vanishes there
+            corner = _meet(["line", np.asarray(p.start),
+                            np.asarray(p.start) + _piece_tangent(p, False)],
+                           ["line", np.asarray(p.end),
+                            np.asarray(p.end) + _piece_tangent(p, True)], np.asarray(p.start))
+            if corner is None:
+                return None
+            flat += [Line2(p.start, (float(corner[0]), float(corner[1]))),
+                     Line2((float(corner[0]), float(corner[1])), p.end)]
+        else:
+            flat.append(p)
+    flat = _joined_lines(flat)
+    moved: list[list] = []
+    for p in flat:
+        if isinstance(p, Line2):
+            t = _piece_tangent(p, False)
+            shift = d_mm * np.array([-t[1], t[0]])  # the left normal: inside, counter-clockwise
+            moved.append(["line", np.asarray(p.start) + shift, np.asarray(p.end) + shift, p])
+        else:
+            r = p.radius - d_mm * float(np.sign(p.sweep_rad))
+            if r <= OUTLINE_EPS_MM:
+                return None
+            moved.append(["arc", np.asarray(p.center), r, p.start_rad,
+                          p.start_rad + p.sweep_rad, p])
+    out: list[list] = []
+    m = len(flat)
+    for i in range(m):
+        out.append(moved[i])
+        j = (i + 1) % m
+        corner = np.asarray(flat[i].end)
+        turn = _signed_turn(_piece_tangent(flat[i], True), _piece_tangent(flat[j], False))
+        if abs(turn) < 1e-9:
+            continue
+        if turn * d_mm > 0.0:  # the moved pieces overlap: cut both back to their meeting
+            x = _meet(moved[i], moved[j], corner)
+            if x is None:
+                return None
+            _set_end(moved[i], x, True)
+            _set_end(moved[j], x, False)
+        else:
+            a_end = _end_of(moved[i], True)
+            start = float(np.arctan2(a_end[1] - corner[1], a_end[0] - corner[0]))
+            out.append(["arc", corner, abs(d_mm), start, start + turn, None])
+    chain: list[Piece2] = []
+    for item in out:
+        if item[0] == "line":
+            a, b, orig = item[1], item[2], item[3]
+            length = float(np.linalg.norm(b - a))
+            if length < OUTLINE_EPS_MM:
+                continue
+            if float((b - a) @ (np.asarray(orig.end) - np.asarray(orig.start))) <= 0.0:
+                return None  # the edge turned round: shorter than the offset eats
+            chain.append(Line2((float(a[0]), float(a[1])), (float(b[0]), float(b[1]))))
+        else:
+            c, r, a0, a1, orig = item[1], item[2], item[3], item[4], item[5]
+            sweep = a1 - a0
+            if orig is not None and (np.sign(sweep) != np.sign(orig.sweep_rad)
+                                     or abs(sweep) > abs(orig.sweep_rad) + 1e-9):
+                return None
+            if abs(sweep) * r < OUTLINE_EPS_MM:
+                continue
+            chain.append(Arc2((float(c[0]), float(c[1])), float(r), _wrapped(a0), float(sweep)))
+    if len(chain) < 2 or chain_crossing(tuple(chain)) is not None:
+        return None
+    result = PieceOutline(tuple(chain))
+    # Squeezed flat (two edges meeting face to face) is no outline either.
+    return result if result._signed_area_mm2() > OUTLINE_EPS_MM else None
+
+
+def _joined_lines(pieces: list[Piece2]) -> list[Piece2]:
+    """Neighbouring lines that run straight on joined into one (a rounding replaced by its
+    sharp corner leaves its two tangent pieces in line with the edges)."""
+    out: list[Piece2] = []
+    for p in pieces:
+        last = out[-1] if out else None
+        if (isinstance(p, Line2) and isinstance(last, Line2) and
+                abs(_signed_turn(_piece_tangent(last, True), _piece_tangent(p, False))) < 1e-9):
+            out[-1] = Line2(last.start, p.end)
+        else:
+            out.append(p)
+    first, last = out[0], out[-1]
+    if (len(out) > 2 and isinstance(first, Line2) and isinstance(last, Line2) and
+            abs(_signed_turn(_piece_tangent(last, True), _piece_tangent(first, False))) < 1e-9):
+        out = [Line2(last.start, first.end), *out[1:-1]]
+    return out
+
+
+def _end_of(x: list, at_end: bool) -> np.ndarray:
+    if x[0] == "line":
+        return x[2] if at_end else x[1]
+    a = x[4] if at_end else x[3]
+    return x[1] + x[2] * np.array([np.cos(a), np.sin(a)])
+
+
+def _set_end(x: list, point: np.ndarray, at_end: bool) -> None:
+    """Move an end of the offset piece ``x`` to ``point`` (on its line or circle)."""
+    if x[0] == "line":
+        x[2 if at_end else 1] = point
+        return
+    k = 4 if at_end else 3
+    x[k] = _unwrap_near(float(np.arctan2(point[1] - x[1][1], point[0] - x[1][0])), x[k])
 
 
 def _wrapped(a: float) -> float:

@@ -155,3 +155,54 @@ def test_plate_polygon_moves_to_the_inlet_plane():
     assert np.allclose(lo, [0.0, -5.0, -2.5], atol=1e-12)
     assert np.allclose(hi, [20.0, 5.0, 2.5], atol=1e-12)
     assert abs(p.solid().volume_mm3() - 5.0 * (200.0 - (4.0 - PI) * 4.0)) < 1e-9
+
+
+def test_offset_of_a_rounded_rectangle_is_the_rounded_rectangle_of_changed_radius():
+    from soft_molds.recipe.outline import RoundedPolygon, offset_outline
+
+    # The parallel curve of a rounded rectangle w x h (radius r) at distance d inside is
+    # the rounded rectangle (w - 2d) x (h - 2d) of radius max(r - d, 0) (elementary plane
+    # geometry): area (w - 2d)(h - 2d) - (4 - pi) max(r - d, 0)^2.
+    rect = RoundedPolygon(((0.0, 0.0), (40.0, 0.0), (40.0, 20.0), (0.0, 20.0)), (3.0,) * 4)
+    for d in (1.0, 3.0, 5.0, -2.0):
+        got = offset_outline(rect, d)
+        assert got is not None
+        rr = max(3.0 - d, 0.0)
+        want = (40.0 - 2 * d) * (20.0 - 2 * d) - (4.0 - PI) * rr * rr
+        assert abs(got.area_mm2() - want) < 1e-9
+
+
+def test_offset_is_the_set_at_that_distance_from_the_outline():
+    from soft_molds.recipe.outline import RoundedPolygon, offset_outline
+
+    rng = np.random.default_rng(11)
+    notched = RoundedPolygon(((0.0, 0.0), (30.0, 0.0), (30.0, 20.0), (15.0, 8.0),
+                              (0.0, 20.0)), (2.0, 2.0, 2.0, 3.0, 0.0))
+    hub = PieceOutline(hub_pieces((0.0, 0.0), 15.0, (0.0, PI / 2, PI, 3 * PI / 2), 40.0,
+                                  12.0, 2.0))
+    for outline, d in ((notched, 1.0), (notched, 2.5), (notched, -1.5), (hub, 3.0),
+                       (hub, -2.0)):
+        moved = offset_outline(outline, d)
+        assert moved is not None
+        # Its edge lies d inside (outside) the outline everywhere (the exact distance,
+        # itself checked against brute force above).
+        assert np.allclose(outline.sdf(moved.boundary(0.2)), -d, atol=1e-9)
+        # And inside it is exactly where the outline's distance is beyond d: the inner
+        # (outer) parallel set, tested at random points away from its edge.
+        (x0, y0), (x1, y1) = outline.bounds()
+        q = rng.uniform((x0 - 4, y0 - 4), (x1 + 4, y1 + 4), size=(3000, 2))
+        s = outline.sdf(q) + d
+        q, s = q[np.abs(s) > 0.01], s[np.abs(s) > 0.01]
+        inside = Path(moved.boundary(0.02)).contains_points(q)
+        assert np.array_equal(inside, s < 0.0)
+
+
+def test_an_offset_that_does_not_fit_is_none():
+    from soft_molds.recipe.outline import RoundedPolygon, offset_outline
+
+    rect = RoundedPolygon(((0.0, 0.0), (40.0, 0.0), (40.0, 20.0), (0.0, 20.0)), (3.0,) * 4)
+    assert offset_outline(rect, 10.0) is None     # the short sides vanish
+    assert offset_outline(rect, 9.9) is not None
+    hub = PieceOutline(hub_pieces((0.0, 0.0), 15.0, (0.0, PI / 2, PI, 3 * PI / 2), 40.0,
+                                  12.0, 6.0))
+    assert offset_outline(hub, 6.0) is None       # the round tips shrink to nothing

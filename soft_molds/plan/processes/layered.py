@@ -9,18 +9,26 @@
    sheet laid on it, and the cured chambered part pressed face down onto the liquid base.
 
 Actuator frame as everywhere (mm): the body from the inlet face x = 0, z up; the bond face
-is z = body bottom + ``process.base_mm``. Only a bar with one row of chambers is layered:
-the plan refuses anything else, naming the field (exit 2), before any kernel call.
+is z = body bottom + ``process.base_mm``. Only a bar or a plate with one row of chambers is
+layered: the plan refuses anything else, naming the field (exit 2), before any kernel call.
+A plate's footprint is its outline (lines and arcs): the base tray's guide is that outline
+moved out by the clearance and the sheet that outline moved in by the cover margin (exact
+parallel curves, ``recipe/outline.offset_outline``); the trays and the bridge stay
+rectangular blocks round the body's bounds.
 """
 
 from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from ...errors import Problem
+from ...recipe.fields import MIN_SIZE_MM
 from ...recipe.kinds.channels import Channels
 from ...recipe.model import Recipe
-from ...recipe.primitives import RoundedBox
+from ...recipe.outline import PieceOutline, RoundedPolygon
+from ...recipe.primitives import RoundedBox, Slab
 from ..lines import LineOf
 from ..model import CastingStep, Footprint, Layer, LayerKind, Post
 from . import casting_process
@@ -44,8 +52,10 @@ def steps(r: Recipe) -> tuple[CastingStep, ...]:
     bond = bond_z_mm(r)
     foot = footprint(r)
     posts = all_posts(r)
+    hole = (None if foot.outline is None
+            else overflow_xy_mm(foot, posts, r.mold.vent_diameter_mm))
     chambered = Layer(LayerKind.CHAMBERED, bond, foot, posts, r.mold.clearance_mm,
-                      r.mold.wall_mm)
+                      r.mold.wall_mm, overflow_xy_mm=hole)
     inset = None if r.process.sheet == "none" else r.process.cover_margin_mm
     base = Layer(LayerKind.BASE, bond, foot, (), r.mold.clearance_mm, r.mold.wall_mm, inset)
     return (CastingStep(CHAMBERED, (), (), None, None, layer=chambered),
@@ -80,13 +90,64 @@ def bond_z_mm(r: Recipe) -> float:
     return lo[2] + r.process.base_mm
 
 
+def body_slab(r: Recipe) -> Slab | None:
+    prims = r.body_primitives()
+    if len(prims) == 1 and isinstance(prims[0], Slab):
+        return prims[0]
+    return None
+
+
 def footprint(r: Recipe) -> Footprint:
-    """The bar's section at the bond face: its full rectangle with the vertical edges'
-    rounding (the bond face lies above the bottom rounding; see :func:`layered_problems`)."""
+    """The body's section at the bond face. A bar's: its full rectangle with the vertical
+    edges' rounding (the bond face lies above the bottom rounding; see
+    :func:`layered_problems`). A plate's: its outline (its sides are upright)."""
     b = body_box(r)
-    assert b is not None
-    return Footprint((b.center_mm[0], b.center_mm[1]), (b.size_mm[0], b.size_mm[1]),
-                     b.radius_mm)
+    if b is not None:
+        return Footprint((b.center_mm[0], b.center_mm[1]), (b.size_mm[0], b.size_mm[1]),
+                         b.radius_mm)
+    slab = body_slab(r)
+    assert slab is not None
+    return Footprint.of_outline(PieceOutline(slab.outline.pieces()))
+
+
+#: Grid step (mm) on which a plate's overflow hole is placed.
+HOLE_GRID_MM = 1.0
+#: Plastic (mm) the overflow hole keeps from the footprint's edge and from every post.
+HOLE_CLEAR_MM = 1.0
+
+
+def overflow_xy_mm(foot: Footprint, posts: tuple[Post, ...], diameter_mm: float
+                   ) -> tuple[float, float] | None:
+    """Where a plate's overflow hole goes (x, y), or None: no room. A point of a grid
+    over the footprint at least radius + HOLE_CLEAR_MM inside its edge and from every
+    post (the excess rises into the hole, not round a post); among them, as a bar's hole
+    lies beyond the last post, those past every post along x if any, and of those the one
+    farthest from the nearest post (when tied, the one nearest the footprint's middle
+    line along x)."""
+    assert foot.outline is not None
+    (x0, y0), (x1, y1) = foot.outline.bounds()
+    gx = np.arange(math.ceil(x0 / HOLE_GRID_MM), math.floor(x1 / HOLE_GRID_MM) + 1)
+    gy = np.arange(math.ceil(y0 / HOLE_GRID_MM), math.floor(y1 / HOLE_GRID_MM) + 1)
+    grid = HOLE_GRID_MM * np.stack(np.meshgrid(gx, gy, indexing="ij"), axis=-1).reshape(-1, 2)
+    keep = diameter_mm / 2.0 + HOLE_CLEAR_MM
+    grid = grid[foot.outline.sdf(grid) <= -keep]
+    if not len(grid):
+        return None
+    near = np.full(len(grid), np.inf)
+    for p in posts:
+        sharp = RoundedPolygon(p.outline_mm(), (0.0,) * len(p.outline_mm()))
+        np.minimum(near, sharp.sdf(grid), out=near)
+    ok = near >= keep
+    if not ok.any():
+        return None
+    far = max(p.x_span_mm()[1] for p in posts)
+    beyond = ok & (grid[:, 0] >= far + keep)
+    pick = beyond if beyond.any() else ok
+    # Ties (to 0.01 mm) go to the point nearest the footprint's middle line along x.
+    score = np.where(pick, np.round(near, 2), -np.inf)
+    best = np.flatnonzero(score == score.max())
+    i = int(best[np.argmin(np.abs(grid[best, 1] - foot.center_mm[1]))])
+    return (float(grid[i, 0]) + 0.0, float(grid[i, 1]) + 0.0)
 
 
 def chamber_posts(r: Recipe) -> tuple[Post, ...]:
@@ -114,15 +175,17 @@ def feed_post(r: Recipe) -> Post:
 
 
 def layered_problems(r: Recipe, line: LineOf) -> list[Problem]:
-    """What keeps ``r`` from the layered process: a bar body, one inlet on the start face,
-    one row of chambers whose
-    every chamber stands on the bond face, a bond face above the bar's bottom rounding and
-    corners round enough for the draft."""
+    """What keeps ``r`` from the layered process: a bar or plate body, one inlet on the
+    start face, one row of chambers whose every chamber stands on the bond face, a bond
+    face above the bar's bottom rounding (inside the plate's thickness) and corners round
+    enough for the draft."""
     out: list[Problem] = []
     box = body_box(r)
+    if box is None and body_slab(r) is not None:
+        return plate_problems(r, line)
     if box is None:
         return [Problem("body.kind", "cannot be cast layered", line("body.kind"),
-                        getattr(r.body, "KIND", "?"), "bar")]
+                        getattr(r.body, "KIND", "?"), "bar, plate")]
     lo, hi = r.body_bounds()
     bond = bond_z_mm(r)
     if r.process.base_mm < box.radius_mm or bond > hi[2] - box.radius_mm:
@@ -130,6 +193,38 @@ def layered_problems(r: Recipe, line: LineOf) -> list[Problem]:
                            line("process.base_mm"), r.process.base_mm,
                            f"{box.radius_mm:g} to {hi[2] - lo[2] - box.radius_mm:g} mm"))
         return out
+    return out + row_problems(r, line)
+
+
+def plate_problems(r: Recipe, line: LineOf) -> list[Problem]:
+    """A plate's own: the bond face inside its thickness, the sheet's margin and the
+    mold's clearance both fitting its outline; then the row's (:func:`row_problems`)."""
+    lo, hi = r.body_bounds()
+    thick = hi[2] - lo[2]
+    if r.process.base_mm > thick - MIN_SIZE_MM:
+        return [Problem("process.base_mm", "puts the bond face at or above the plate's top",
+                        line("process.base_mm"), r.process.base_mm,
+                        f"less than body.thickness_mm ({thick:g} mm)")]
+    foot = footprint(r)
+    if r.process.sheet != "none" and not foot.fits_offset(r.process.cover_margin_mm):
+        return [Problem("process.cover_margin_mm", "does not fit the plate's outline: the "
+                        "sheet's edge moved in by it leaves no sheet, or breaks it apart",
+                        line("process.cover_margin_mm"), r.process.cover_margin_mm,
+                        "a margin below half the outline's narrowest width")]
+    if not foot.fits_offset(-r.mold.clearance_mm):
+        return [Problem("mold.clearance_mm", "does not fit the plate's outline: the base "
+                        "tray's guide, the outline moved out by it, closes a notch of it",
+                        line("mold.clearance_mm"), r.mold.clearance_mm,
+                        "a clearance below half the outline's narrowest notch")]
+    return row_problems(r, line)
+
+
+def row_problems(r: Recipe, line: LineOf) -> list[Problem]:
+    """One inlet on the start face and one row of chambers standing on the bond face, with
+    corners round enough for the draft and a feed groove lower than the chambers."""
+    out: list[Problem] = []
+    lo, _ = r.body_bounds()
+    bond = bond_z_mm(r)
     if len(r.inlets) != 1 or r.inlet.at_end:
         # The feed groove runs from the x = 0 face to the one row: one socket, there.
         path = "inlets" if "inlets" in r.lines else "inlet.face"

@@ -17,6 +17,7 @@ which the inlet check refuses as off the flat face; give the arm a flat tip
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from collections.abc import Mapping
 from dataclasses import dataclass
@@ -82,11 +83,14 @@ class Plate:
     @classmethod
     def cross_check(cls, v: Mapping[str, Any], path: str, line: int | None) -> list[Problem]:
         if v["outline_mm"] is not None:
-            out = [Problem(f"{path}.{k}", "is not used with outline_mm", line, _plain(v[k]),
-                           "only one way of giving the outline: outline_mm with "
-                           "corner_radius_mm, or the hub fields")
-                   for k in HUB_FIELDS if v[k] is not None]
-            return out or _polygon_problems(v["outline_mm"], v["corner_radius_mm"], path, line)
+            # One line for every hub field given: the first, naming the others.
+            given = [k for k in HUB_FIELDS if v[k] is not None]
+            if given:
+                more = f" (nor are {', '.join(given[1:])})" if given[1:] else ""
+                return [Problem(f"{path}.{given[0]}", f"is not used with outline_mm{more}",
+                                line, _plain(v[given[0]]), "only one way of giving the "
+                                "outline: outline_mm with corner_radius_mm, or the hub fields")]
+            return _polygon_problems(v["outline_mm"], v["corner_radius_mm"], path, line)
         if v["hub_diameter_mm"] is None:
             return [Problem(f"{path}.outline_mm", "is required (or the hub fields)", line,
                             None, "outline_mm: corners [x, y]; or hub_diameter_mm with "
@@ -102,6 +106,8 @@ class Plate:
     def outline(self) -> PlaneOutline:
         """The outline in the body's frame (x, y, mm): leftmost point on x = 0. ValueError
         for fields that failed the cross-check."""
+        if self.cross_check(dataclasses.asdict(self), "body", None):
+            raise ValueError("the plate's outline fields are not valid (see cross_check)")
         if self.outline_mm is not None:
             rr = per_point(self.outline_mm, self.corner_radius_mm)
             shape = RoundedPolygon(self.outline_mm, rr)
