@@ -131,9 +131,9 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
     # Slits between chambers are cut from the actuator's top, the tray's floor: the cast
     # loses them and the tray keeps them as fins standing on its floor.
     slits = [build_slit(c, "tray") for c in r.outer_cuts()]
-    cast = cut(above, posts + slits, "cast", "chambered layer")
     if slits:
         above = cut(above, slits, "tray", "slits from the top face")
+    cast = cut(above, posts, "cast", "chambered layer")
     # The feed groove's post runs on through the tray's inlet wall (so the groove opens
     # cleanly on the inlet face): the wall takes a notch open to the rim, the post's shape
     # with the locating clearance on every side, so the bridge drops in wherever its skirt
