@@ -115,3 +115,49 @@ def test_a_network_the_process_cannot_cast_exits_2_with_one_located_line(
                     if change[1].strip() else change[1])
     assert line.startswith(f"{path}:{where}: {field}"), line
     assert words in line, line
+
+
+#: The pad with slits between the chambers of each row, 6 mm across its path (so a row's
+#: slits keep clear of the other row's chambers), 3 mm deep from the top face z = 6.
+SLITS = edit(TEXT, "inlet:\n", """\
+  - kind: slits
+    depth_mm: 3
+    width_mm: 1
+    round_mm: 0.3
+    span_mm: 6
+inlet:
+""")
+
+SLIT_CASES = [
+    # A gap of 8 - 5 = 3 mm between chambers holds at most 3 - 2 x 1 mm of slit.
+    ("slit-wider-than-the-gap-allows", ("width_mm: 1\n", "width_mm: 1.5\n"),
+     "voids[1].width_mm", "to the chambers of rows[0]", None),
+    # The channels' top is z = 0: a slit from z = 6 may reach down to z = 1.
+    ("slit-down-to-the-channels", ("depth_mm: 3\n", "depth_mm: 5.5\n"),
+     "voids[1].depth_mm", "above the channels", None),
+    # Through the whole pad, the first row's slits cross the branch's chambers.
+    ("slit-across-another-row", ("    span_mm: 6\n", ""), "voids[1].depth_mm",
+     "to the channel network", "depth_mm: 3"),
+    ("slits-in-a-network-cast-in-one-shot", ("kind: layered", "kind: one-shot"),
+     "process.kind", "does not cut slits between the chambers of a channel network", None),
+]
+
+
+@pytest.mark.parametrize(("name", "change", "field", "words", "at"), SLIT_CASES,
+                         ids=[c[0] for c in SLIT_CASES])
+def test_slits_a_network_cannot_take_exit_2_with_one_located_line(
+        name, change, field, words, at, tmp_path, capsys, no_cad_work):
+    text = edit(SLITS, *change)
+    path, line = refused_once(text, tmp_path, capsys)
+    where = line_of(text, at if at is not None else change[1].strip())
+    assert line.startswith(f"{path}:{where}: {field}"), line
+    assert words in line, line
+
+
+def test_the_pad_with_slits_is_accepted_before_any_cad_work(no_cad_work):
+    # The cases above are refused for their change alone: the pad itself passes every
+    # rule of the recipe and the plan.
+    from recipe_text import planned_from_text
+
+    r = planned_from_text(SLITS)
+    assert len(r.outer_cuts()) == 3 + 2
