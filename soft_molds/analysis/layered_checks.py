@@ -39,6 +39,7 @@ from ..recipe.kinds.slits import THROUGH_MM
 from ..recipe.model import Recipe
 from .checks.fin_draft import PICK_TOL_MM, fin_draft_findings, fin_drafts
 from .checks.fin_print import fin_print_findings
+from .checks.motion_scope import network_motion_notes
 from .findings import Finding, Severity, finding
 from .layered import LayerStep, is_chambered
 from .printability import Printer, PrintPlan, plan_print, print_findings
@@ -245,6 +246,7 @@ def layered_findings(r: Recipe, steps: Sequence[LayerStep],
                 out.append(sheet_cover_finding(cover, r.checks.min_wall_mm, cast))
         elif r.outer_cuts():
             out.extend(fin_findings(r, s, printer))
+    out.extend(network_motion_notes(r))
     return tuple(out)
 
 

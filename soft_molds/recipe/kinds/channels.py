@@ -103,6 +103,10 @@ class Channels:
     from ``start_mm``, every ``pitch_mm``, each ``length_mm`` along the path, ``width_mm``
     across it and ``height_mm`` up from ``z_mm``. Cast by the layered process only."""
 
+    #: Its chambers turn with their paths: no beam along x models the network (the
+    #: motion models leave it out).
+    LONG_AXIS: ClassVar[bool] = False
+
     FIELDS: ClassVar[tuple[Field, ...]] = (
         number("width_mm", "channel width across its path"),
         number("height_mm", "channel height along z, up from z_mm"),
