@@ -26,8 +26,12 @@ def hub_area(radius: float, n: int, length: float, width: float, tip: float) -> 
 @pytest.mark.parametrize("plate, area", [
     (Plate(6.0, None, None, 30.0, 4, 45.0, 14.0, 3.0, None), hub_area(15.0, 4, 45.0, 14.0, 3.0)),
     # A round tip (half the width) and three arms at uneven angles.
-    (Plate(6.0, None, None, 24.0, 3, 40.0, 10.0, None, (180.0, 60.0, 280.0)),
+    (Plate(6.0, None, None, 24.0, 3, 40.0, 10.0, 5.0, (180.0, 60.0, 280.0)),
      hub_area(12.0, 3, 40.0, 10.0, 5.0)),
+    # The default tip rounding: a quarter of the width.
+    (Plate(6.0, None, None, 24.0, 2, 40.0, 10.0, None, None), hub_area(12.0, 2, 40.0, 10.0, 2.5)),
+    # One arm: the hub arc turns by more than half a turn (built as two halves).
+    (Plate(5.0, None, None, 20.0, 1, 30.0, 8.0, 1.0, None), hub_area(10.0, 1, 30.0, 8.0, 1.0)),
     (Plate(4.0, ((0.0, 0.0), (30.0, 0.0), (30.0, 20.0), (0.0, 20.0)), 3.0, None, None, None,
            None, None, None), 600.0 - (4.0 - PI) * 9.0),
 ])

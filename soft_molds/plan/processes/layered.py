@@ -118,29 +118,37 @@ HOLE_CLEAR_MM = 1.0
 
 def overflow_xy_mm(foot: Footprint, posts: tuple[Post, ...], diameter_mm: float
                    ) -> tuple[float, float] | None:
-    """Where a plate's overflow hole goes (x, y), or None: no room. A point of a grid
-    over the footprint at least radius + HOLE_CLEAR_MM inside its edge and from every
-    post (the excess rises into the hole, not round a post); among them, as a bar's hole
-    lies beyond the last post, those past every post along x if any, and of those the one
-    farthest from the nearest post (when tied, the one nearest the footprint's middle
-    line along x)."""
+    """Where a plate's overflow hole goes (x, y), or None: no room. As a bar's, midway
+    between the last post and the outline's far end along the footprint's middle line
+    (y of its bounds' centre), when that point lies at least radius + HOLE_CLEAR_MM inside
+    the edge and from every post (the excess rises into the hole, not round a post).
+    Else a point of a grid over the footprint that keeps those distances; among them
+    those past every post along x if any, and of those the one farthest from the nearest
+    post (when tied, the one nearest the middle line)."""
     assert foot.outline is not None
+    keep = diameter_mm / 2.0 + HOLE_CLEAR_MM
+    sharp = [RoundedPolygon(p.outline_mm(), (0.0,) * len(p.outline_mm())) for p in posts]
+    far = max(p.x_span_mm()[1] for p in posts)
+    # As a bar's: midway between the last post and the far end, on the middle line.
+    cy = foot.center_mm[1]
+    _, x_end = foot.outline.chords(0, np.array([cy]))
+    if not np.isnan(x_end[0]):
+        mid = np.array([[(far + float(x_end[0])) / 2.0, cy]])
+        if foot.outline.sdf(mid)[0] <= -keep and all(q.sdf(mid)[0] >= keep for q in sharp):
+            return (float(mid[0, 0]) + 0.0, float(mid[0, 1]) + 0.0)
     (x0, y0), (x1, y1) = foot.outline.bounds()
     gx = np.arange(math.ceil(x0 / HOLE_GRID_MM), math.floor(x1 / HOLE_GRID_MM) + 1)
     gy = np.arange(math.ceil(y0 / HOLE_GRID_MM), math.floor(y1 / HOLE_GRID_MM) + 1)
     grid = HOLE_GRID_MM * np.stack(np.meshgrid(gx, gy, indexing="ij"), axis=-1).reshape(-1, 2)
-    keep = diameter_mm / 2.0 + HOLE_CLEAR_MM
     grid = grid[foot.outline.sdf(grid) <= -keep]
     if not len(grid):
         return None
     near = np.full(len(grid), np.inf)
-    for p in posts:
-        sharp = RoundedPolygon(p.outline_mm(), (0.0,) * len(p.outline_mm()))
-        np.minimum(near, sharp.sdf(grid), out=near)
+    for q in sharp:
+        np.minimum(near, q.sdf(grid), out=near)
     ok = near >= keep
     if not ok.any():
         return None
-    far = max(p.x_span_mm()[1] for p in posts)
     beyond = ok & (grid[:, 0] >= far + keep)
     pick = beyond if beyond.any() else ok
     # Ties (to 0.01 mm) go to the point nearest the footprint's middle line along x.

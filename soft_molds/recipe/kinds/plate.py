@@ -12,7 +12,8 @@ lies on y = 0; the thickness is centred on z = 0, as a bar's height is, so z run
 point along +x: a polygon's left edge, or the tip of the arm pointing along -x (by default
 the first arm points that way). A round tip or a rounded corner there is a curved face,
 which the inlet check refuses as off the flat face; give the arm a flat tip
-(``tip_round_mm`` below half the width) or the polygon a straight left edge.
+(``tip_round_mm`` below half the width, as the default a quarter of it) or the polygon a
+straight left edge.
 """
 
 from __future__ import annotations
@@ -36,6 +37,9 @@ MAX_ARMS = 12
 HUB_FIELDS = ("hub_diameter_mm", "arm_count", "arm_length_mm", "arm_width_mm",
               "tip_round_mm", "arm_angles_deg")
 HUB_REQUIRED = ("arm_count", "arm_length_mm", "arm_width_mm")
+#: The arms' tip rounding by default, as a share of their width: the tip keeps a flat
+#: middle half as wide as the arm, where a socket can enter (a round tip gives it none).
+TIP_ROUND_SHARE = 0.25
 #: The angle (deg) of the first arm by default: pointing along -x, at the inlet face.
 FIRST_ARM_DEG = 180.0
 
@@ -48,8 +52,9 @@ class Plate:
     polygon [x, y] with ``corner_radius_mm`` roundings; ``hub_diameter_mm`` instead gives a
     hub centred on y = 0 with ``arm_count`` straight arms of ``arm_width_mm``, each tip
     ``arm_length_mm`` from the hub's centre, its tip corners rounded by ``tip_round_mm``
-    (half the width: a round tip), pointing along ``arm_angles_deg`` (counter-clockwise
-    from +x; by default evenly spaced, the first along -x, towards the inlet face)."""
+    (half the width: a round tip; default a quarter), pointing along ``arm_angles_deg``
+    (counter-clockwise from +x; by default evenly spaced, the first along -x, towards the
+    inlet face)."""
 
     FIELDS: ClassVar[tuple[Field, ...]] = (
         number("thickness_mm", "extent along z (the bottom face is the strain-limiting side)"),
@@ -64,7 +69,8 @@ class Plate:
                "tip", None),
         number("arm_width_mm", "hub outline: width of each arm", None),
         number("tip_round_mm", "hub outline: rounding of each arm's two tip corners (half "
-               "the width: a round tip; default half the width)", None, lo=0.0,
+               "the width: a round tip; default a quarter of the width, leaving a flat half "
+               "for a socket)", None, lo=0.0,
                lo_open=False),
         Field("arm_angles_deg", "rounds", "hub outline: direction of each arm, counter-"
               "clockwise from +x, one per arm (default evenly spaced, the first along -x)",
@@ -131,10 +137,11 @@ class Plate:
         return arm_angles(self.arm_count or 0, self.arm_angles_deg)
 
     def tip_round(self) -> float:
-        """The arms' tip rounding (mm): as given, or half the width (a round tip)."""
+        """The arms' tip rounding (mm): as given, or TIP_ROUND_SHARE of the width (the tip
+        keeps a flat middle a socket can enter)."""
         if self.tip_round_mm is not None:
             return self.tip_round_mm
-        return (self.arm_width_mm or 0.0) / 2.0
+        return TIP_ROUND_SHARE * (self.arm_width_mm or 0.0)
 
     def hub_center_mm(self) -> tuple[float, float] | None:
         """Where the hub's centre lies in the body's frame (x, y), or None for a polygon."""
@@ -195,7 +202,7 @@ def _hub_problems(v: Mapping[str, Any], path: str, line: int | None) -> list[Pro
     if width > 2.0 * radius - 2.0 * MIN_SIZE_MM:
         return [Problem(f"{path}.arm_width_mm", "is not narrower than the hub", line, width,
                         f"less than hub_diameter_mm ({2.0 * radius:g} mm)")]
-    tip = width / 2.0 if v["tip_round_mm"] is None else v["tip_round_mm"]
+    tip = TIP_ROUND_SHARE * width if v["tip_round_mm"] is None else v["tip_round_mm"]
     if tip > width / 2.0:
         return [Problem(f"{path}.tip_round_mm", "is more than half the arm's width", line, tip,
                         f"at most arm_width_mm / 2 ({width / 2.0:g} mm)")]
