@@ -66,6 +66,16 @@ def test_a_square_branch_off_a_straight_groove_takes_a_2h_by_h_rectangle_off():
     assert net.channel_volume_mm3() == pytest.approx(want, rel=1e-9)
 
 
+def test_a_cross_of_four_grooves_takes_four_h_by_h_squares_off():
+    # The hub gripper's joint: a feed ending at the hub's centre and three branches leaving
+    # it square to each other; neighbouring half strips overlap in an h by h square, the
+    # opposite ones only along a line, and together they cover the round post.
+    net = network([[[0, 0], [45, 0]], [[45, 0], [45, -42]], [[45, 0], [87, 0]],
+                   [[45, 0], [45, 42]]])
+    want = section_area() * 171.0 - 4.0 * k_by_hand()
+    assert net.channel_volume_mm3() == pytest.approx(want, rel=1e-9)
+
+
 def test_a_straight_run_through_a_joint_is_one_sweep():
     net = network([[[0, 0], [10, 0], [25, 0]]])
     assert net.channel_volume_mm3() == pytest.approx(section_area() * 25.0, rel=1e-12)
