@@ -98,6 +98,8 @@ CASES = [
      "voids[0].rows[1]", "which do not join", "- path: 1"),
     ("inlet-inside-the-body", ("[[0, 0], [20, 0]", "[[2, 0], [20, 0]"),
      "voids[0].paths[0][0]", "inside the body", None),
+    ("inlet-outside-the-body", ("[[0, 0], [20, 0]", "[[-2, 0], [20, 0]"),
+     "voids[0].paths[0][0]", "outside the body", None),
     ("floor-off-the-bond-face", ("z_mm: -2", "z_mm: -1.5"), "voids[0].z_mm",
      "off the bond face", None),
     ("one-shot-cannot-cast-a-network", ("kind: layered", "kind: one-shot"),

@@ -97,8 +97,8 @@ class Piece:
 class Channels:
     """Grooves of a ``width_mm`` by ``height_mm`` section (edges rounded
     ``corner_radius_mm``) on the plane z = ``z_mm``, along the polylines ``paths`` ([[x, y],
-    ...], mm): the first starts at the inlet, on or beyond the body's outline, and every
-    later one starts on a point of an earlier one (a branch). A round joint closes every
+    ...], mm): the first starts at the inlet, on the body's outline, and every later one
+    starts on a point of an earlier one (a branch). A round joint closes every
     bend and branch point. Each of ``rows`` places ``count`` chambers along its ``path``
     from ``start_mm``, every ``pitch_mm``, each ``length_mm`` along the path, ``width_mm``
     across it and ``height_mm`` up from ``z_mm``. Cast by the layered process only."""
@@ -301,14 +301,16 @@ class Channels:
     def wall_problems(self, body: tuple[Primitive, ...], sockets: tuple[Primitive, ...],
                       min_wall_mm: float, path: str) -> list[Problem]:
         """The network inside the body with ``min_wall_mm`` of silicone to its surface (the
-        inlet's mouth, inside a socket, left out), the inlet on or beyond the outline, and
+        inlet's mouth, inside a socket, left out), the inlet on the outline, and
         pieces that do not join keeping ``min_wall_mm`` apart: one located line each."""
         out: list[Problem] = []
         x0, y0 = self.paths[0][0]
-        if union_sdf(body, np.array([[x0, y0, self._z_mid]]))[0] < -ON_PATH_MM:
-            out.append(Problem(f"{path}.paths[0][0]", "puts the inlet inside the body",
-                               None, [x0, y0], "a point on or beyond the body's outline "
-                               "(the groove opens there)"))
+        off = union_sdf(body, np.array([[x0, y0, self._z_mid]]))[0]
+        if abs(off) > ON_PATH_MM:
+            where = "inside" if off < 0.0 else "outside"
+            out.append(Problem(f"{path}.paths[0][0]", f"puts the inlet {where} the body",
+                               None, [x0, y0], "a point on the body's outline (the groove "
+                               "opens there, where the tube is sealed in)"))
             return out
         pieces = self.pieces()
         samples = [p.prim.surface_samples(SAMPLE_MM) for p in pieces]
