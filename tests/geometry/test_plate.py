@@ -45,3 +45,18 @@ def test_the_plate_solid_holds_its_closed_form_volume(plate, area):
     lo, hi = plate.solid().bounds()
     assert abs(bb.xmin - lo[0]) < 1e-3 and abs(bb.xmax - hi[0]) < 1e-3
     assert abs(bb.zmin + plate.thickness_mm / 2.0) < 1e-6
+
+
+def test_a_turned_post_is_built_turned_with_its_closed_form_volume():
+    # The post's volume: Simpson's rule on its drafted sections (plan/model.Post, checked
+    # in tests/plan/test_post_angle.py); turned by 90 deg its x extent is its y size.
+    from soft_molds.geometry.kernel import volume
+    from soft_molds.geometry.layered import post_solid
+    from soft_molds.plan.model import Post
+
+    p = Post("p", (20.0, 5.0), (10.0, 4.0), 1.0, -3.0, 6.0, 1.0, 90.0)
+    solid = post_solid(p)
+    assert abs(volume(solid) - p.volume_mm3()) <= 1e-6 * p.volume_mm3()
+    bb = solid.BoundingBox()
+    assert (bb.xmin, bb.xmax) == pytest.approx((18.0, 22.0), abs=1e-6)
+    assert (bb.ymin, bb.ymax) == pytest.approx((0.0, 10.0), abs=1e-6)
