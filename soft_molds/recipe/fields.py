@@ -195,6 +195,11 @@ class Record(dict[str, Any]):
     def __hash__(self) -> int:  # type: ignore[override]
         return hash(tuple(sorted(self.items())))
 
+    def __reduce__(self) -> tuple[type[Record], tuple[dict[str, Any]]]:
+        # Pickled and copied whole (a sweep sends recipes to its workers): the default
+        # would rebuild it key by key through the refused __setitem__.
+        return (Record, (dict(self),))
+
     def _read_only(self, *args: object, **kwargs: object) -> None:
         raise TypeError("a Record is read-only")
 
