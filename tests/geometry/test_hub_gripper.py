@@ -195,7 +195,9 @@ def test_the_two_pours_are_the_body_less_the_posts_and_the_slits(hub):
     slits = sum(c.removed_mm3(span_mm=arm) for c in r.outer_cuts())
     want = body.volume_mm3() - grooves - slits
     got = sum(s.part("cast").brep_volume_mm3 for s in hub.steps)
-    assert got == pytest.approx(want, rel=2e-3)
+    # Every face is a plane or an exact arc, in the kernel as in the references: they
+    # agree to float noise (measured 3e-16), held here to a millionth.
+    assert got == pytest.approx(want, rel=1e-6)
     assert len(r.outer_cuts()) == 12
 
 
