@@ -163,3 +163,11 @@ def test_the_pad_with_slits_is_accepted_before_any_cad_work(no_cad_work):
 
     r = planned_from_text(SLITS)
     assert len(r.outer_cuts()) == 3 + 2
+
+
+def test_slits_with_no_row_of_two_chambers_exit_2_on_their_kind(tmp_path, capsys,
+                                                                  no_cad_work):
+    text = edit(edit(SLITS, "count: 4\n", "count: 1\n"), "count: 3\n", "count: 1\n")
+    path, line = refused_once(text, tmp_path, capsys)
+    assert line.startswith(f"{path}:{line_of(text, 'kind: slits')}: voids[1].kind"), line
+    assert "needs a chamber row to sit between" in line, line

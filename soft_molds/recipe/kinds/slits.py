@@ -247,6 +247,10 @@ class Slits:
                             "channel network (the layered tray's floor carries their fins)",
                             None, process_kind, "layered")]
         out: list[Problem] = []
+        if all(net.row(j).count < 2 for j in range(len(net.rows))):
+            return [Problem(f"{path}.kind", "needs a chamber row to sit between", None,
+                            "rows of 1 chamber", "a row of the channel network with count "
+                            "2 or more")]
         for j in range(len(net.rows)):
             row = net.row(j)
             if row.count < 2:
