@@ -129,8 +129,11 @@ def _build_one_shot(plan: MoldPlan, progress: Callable[[str], None] | None = Non
     with _stage(timings, "shell", label):
         shells = mold.build_shells(recipe, step, cs)
 
+    with _stage(timings, "labels", label):
+        plates, plate_labels = mold.label_plates(recipe, step, mold.build_plates(step))
     solids = {"shell-lower": shells.lower, "shell-upper": shells.upper,
               **{sup.part: c for c, sup in zip(cs.cores, step.core_supports)},
+              **{g.part: c for c, g in zip(plates, step.plates)},
               "cast": cs.cast}
     parts = []
     say("tessellate and check")
@@ -145,7 +148,8 @@ def _build_one_shot(plan: MoldPlan, progress: Callable[[str], None] | None = Non
         parts.append(Part(spec.name, str(spec.role), solid, mesh, vol, spec.pull_dir, report))
     say("manufacturability checks")
     with _stage(timings, "analysis", label):
-        labels = tuple(x for x in (*shells.labels, *core_labels) if x is not None)
+        labels = tuple(x for x in (*shells.labels, *core_labels, *plate_labels)
+                       if x is not None)
         rev = run_checks(CheckContext.for_step(
             plan, cast_mesh, {p.name: (p.mesh, p.pull_dir) for p in parts if p.role != "cast"},
             {lab.part: [lab.box] for lab in labels}))

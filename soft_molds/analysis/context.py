@@ -82,6 +82,9 @@ def void_facets(r: Recipe, cast: Surface, voids: Sequence[int] | None = None,
     prims = (tuple(p for i in (range(len(groups)) if voids is None else voids)
                    for p in groups[i])
              + tuple(sockets[j] for j in (range(len(sockets)) if inlets is None else inlets)))
+    if voids is None and inlets is None:
+        # An open groove cut from the outside is formed by its plates, not the shells.
+        prims += r.outer_primitives()
     tol = min(0.1, r.checks.min_wall_mm / 3.0)
     return np.abs(union_sdf(prims, cast.centroids)) <= tol
 
@@ -146,6 +149,11 @@ class CheckContext:
         return ~self.void_facets
 
     @property
+    def has_core(self) -> bool:
+        """Whether a core forms the voids (an open groove's plates are no core)."""
+        return bool(self.cores)
+
+    @property
     def core(self) -> PreparedPart:
         """The core, or every core as one part (``core_contact`` indexes its facets)."""
         return self.all_cores if self.all_cores is not None else self.parts["core"]
@@ -155,6 +163,8 @@ class CheckContext:
         """The printed parts present, shells first, then the cores in plan order."""
         names = [n for n in RIGID_PARTS if n in self.parts]
         names += [c.part.name for c in self.cores if c.part.name not in names]
+        # Then any other printed part (an open groove's plates), in the plan's order.
+        names += [n for n in self.parts if n not in names]
         return tuple(names)
 
     @classmethod
@@ -178,7 +188,8 @@ class CheckContext:
             for name, (mesh, pull) in parts.items()
         }
         cast_s = Surface(cast)
-        supports = tuple(supports) or _one_core(r)
+        # No inlet (an open groove, formed by plates): no core at all.
+        supports = tuple(supports) or (_one_core(r) if r.inlets else ())
         inlets = [PlanInlet(i.center_mm, i.socket_diameter_mm, i.socket_depth_mm, i.face)
                   for i in r.inlets]
         sockets = r.sockets()
@@ -192,9 +203,10 @@ class CheckContext:
         if len(views) > 1:
             all_cores = PreparedPart("core", Surface(combine([v.part.surface.mesh
                                                               for v in views])), None)
-        core = (all_cores or prepared["core"]).surface
+        core = None if not views else (all_cores or prepared["core"]).surface
         names = [n for n in RIGID_PARTS if n in prepared]
         names += [v.part.name for v in views if v.part.name not in names]
+        names += [n for n in prepared if n not in names]
         rigid = [prepared[n].surface.mesh for n in names]
         pr = r.printer
         printer = Printer(bed_mm=(float(pr.bed_mm[0]), float(pr.bed_mm[1])),
@@ -210,9 +222,10 @@ class CheckContext:
             openings=tuple(openings),
             label_boxes=MappingProxyType({k: tuple(v) for k, v in (label_boxes or {}).items()}),
             void_facets=_frozen(void_facets(r, cast_s)),
-            core_contact=_frozen(core_print_facets(
-                core, block_lo_x, r.body_length_mm if any(i.at_end for i in r.inlets)
-                else None)),
+            core_contact=_frozen(np.zeros(0, dtype=bool) if core is None else
+                                 core_print_facets(core, block_lo_x, r.body_length_mm
+                                                   if any(i.at_end for i in r.inlets)
+                                                   else None)),
             mold=RayCaster(combine(rigid)),
             printer=printer,
             cores=tuple(views),

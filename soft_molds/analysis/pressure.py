@@ -99,7 +99,9 @@ def wall_pressures(r: Recipe) -> tuple[float | None, tuple[WallPressure, ...]]:
     body = r.body_primitives()
     length = r.body_length_mm
     worst: dict[str, WallPressure] = {}
-    for v in r.voids:
+    # An outside cut that inflates (an open groove, closed by its collar) loads its walls
+    # too; a slit row has no membranes.
+    for v in (*r.voids, *r.outer):
         for m in v.membranes(length):
             h = float(thickness_along(body, np.asarray([m.at_mm]), np.asarray([m.normal]))[0])
             if h <= 0.0:

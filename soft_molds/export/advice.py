@@ -31,6 +31,11 @@ ADVICE: dict[str, str] = {
     "core-draft": (
         "A note only: the void faces that face against the core's pull are released by "
         "stretching the silicone; `core-extraction` says whether it can stretch that far."),
+    "plate-release": (
+        "Only for a ring's open groove: a plate that cannot slide out of the groove along "
+        "its pull (+y or -y) would tear the lips or the bore wall. The plates are flat and "
+        "split through the ring's axis, so this means the groove is not the one the plates "
+        "were made for: rebuild the set from the recipe."),
     "core-extraction": (
         "Pulling the core out through the inlet would stretch the silicone past its "
         "elongation at break: the inlet would tear. Make the tube socket wider "

@@ -74,7 +74,51 @@ DISSOLVE_STEP = (
     "flush through the tube socket until it runs clear, then dry the cast. Cut the core "
     "print off flush at the socket first.")
 
+#: The steps of an open groove (``annulus`` with ``opens_to: outside``) in place of the
+#: core's: its two plates are seated, slid out and the collar fitted.
+GROOVE_SEAT_STEP = (
+    "Lay the two groove plates (plate-1, plate-2) in the lower shell's pocket, their flat "
+    "ends meeting at the ring's middle and their grips standing out of the +y and -y faces; "
+    "close the upper shell on the keys (they fit one way only) and bolt the halves with the "
+    "clamp screws listed above, a washer under each head and each nut, tightened evenly in "
+    "a cross pattern.")
+GROOVE_DEMOLD_STEP = (
+    "Demold: remove the bolts, slide plate-1 out along +y and plate-2 along -y by their "
+    "grips (straight, without twisting), pry the halves apart at the notches, lift the "
+    "upper shell straight up and the cast off the lower shell.")
+GROOVE_COLLAR_STEP = (
+    "Trim the sprue and vent stubs flush. Seat the ring in its rigid collar (listed above) "
+    "so that the collar covers the whole groove, and put the tube on the collar's port.")
+
+#: The cautions a pressurised cuff adds.
+CUFF_CAUTIONS = (
+    "A pressurised cuff stores energy: if the collar cracks, slips or lets a lip out, or "
+    "the bore wall bursts, the ring can whip off with the air. Inflate it only on the part "
+    "it grips, behind a guard, first at low pressure, and check collar and lips each time.",
+    "Do not put the cuff on a person (a finger, a wrist, a limb) without licensed practice: "
+    "a cuff squeezes evenly all round and can cut off blood flow; defer to local codes and "
+    "the silicone's and the collar material's data sheets.",
+)
+
 Block = tuple[Any, ...]
+
+
+def _collar_line(man: Manifest) -> str | None:
+    """The rigid collar that closes an open groove, and what the groove pushes."""
+    c = man.collar
+    if c is None:
+        return None
+    return (f"Collar: a rigid ring (printed, or an inextensible band wrapped round) with a "
+            f"bore of {c.inner_diameter_mm:g} mm, the ring's outer diameter: print it "
+            "line-to-line, or up to 0.5 mm under it on the diameter so the lips seal by "
+            "compression (from memory; test one), with a port for the tube through its wall "
+            f"at the groove's mid-height. The air enters there (no tube socket in the "
+            f"silicone), fills the {c.groove_height_mm:g} mm high groove and pushes its "
+            f"bottom ({c.groove_bottom_diameter_mm:g} mm across, {c.groove_area_mm2:.0f} mm2) "
+            f"inward: each half of the bore wall is pressed towards the other with about "
+            f"{c.squeeze_n_per_kpa:.3g} N per kPa (the pressure times the groove bottom's "
+            f"area seen across a diameter, {c.projected_area_mm2:.0f} mm2), less what the "
+            "bore wall's own stiffness takes.")
 
 
 def _socket_words(rec: InletRecord, n: int) -> str:
@@ -87,6 +131,13 @@ def steps_for(family: Sequence[Manifest]) -> list[str]:
     """The casting steps: :data:`STEPS` for one core; with several, the seating, removal
     and tube steps name each core and the socket it leaves through (core-n through
     socket n, as the first variant with several inlets places them)."""
+    if any(man.collar is not None for man in family):
+        out = list(STEPS)
+        out[1] = ("Coat the cavity and the groove plates with a thin release agent suited "
+                  "to silicone; let it dry.")
+        out[2], out[7], out[9] = GROOVE_SEAT_STEP, GROOVE_DEMOLD_STEP, GROOVE_COLLAR_STEP
+        del out[8]  # no core: the plates came out with the demold
+        return out
     many = next((man for man in family if len(man.params.inlets) > 1), None)
     if many is None:
         out = list(STEPS)
@@ -143,7 +194,9 @@ def card_blocks(family: Sequence[Manifest], title: str,
     blocks += _print_blocks(cast)
     blocks.append(("h2", "Cautions"))
     magnets = any(man.params.core_magnets_mm is not None for man, _ in cast)
-    blocks.append(("ul", [*CAUTIONS, *((MAGNET_CAUTION,) if magnets else ())]))
+    cuff = any(man.collar is not None for man, _ in cast)
+    blocks.append(("ul", [*CAUTIONS, *((MAGNET_CAUTION,) if magnets else ()),
+                          *(CUFF_CAUTIONS if cuff else ())]))
     return blocks
 
 
@@ -388,6 +441,8 @@ def _tube_line(man: Manifest) -> str | None:
 def _tubes_line(man: Manifest) -> str | None:
     """One tube per socket of a recipe with an ``inlets`` list."""
     inlets = man.params.inlets
+    if not inlets:  # an open groove: the tube goes on the collar (see _collar_line)
+        return None
     parts = [f"{rec.socket_diameter_mm:g} mm outer diameter for {_socket_words(rec, n)}, "
              f"pushed {rec.socket_depth_mm:g} mm in" for n, rec in enumerate(inlets, 1)]
     return (f"Tubes ({len(inlets)}, one per socket; the silicone grips each): "
@@ -419,7 +474,7 @@ def _magnet_line(man: Manifest) -> str | None:
 
 def _hardware_blocks(family: Sequence[Manifest]) -> list[Block]:
     items = (_grouped(family, _screw_line) + _grouped(family, _tube_line)
-             + _grouped(family, _magnet_line))
+             + _grouped(family, _collar_line) + _grouped(family, _magnet_line))
     return [("h2", "Have at hand"), ("ul", items)] if items else []
 
 

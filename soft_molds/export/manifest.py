@@ -40,6 +40,7 @@ if TYPE_CHECKING:
     from ..analysis.printability import PrintPlan
     from ..analysis.result import BuiltMoldSet, Part
     from ..plan.model import PlaneScore
+    from ..recipe.model import Recipe
 
 MANIFEST_NAME = "manifest.json"
 UNITS = "mm"
@@ -339,20 +340,24 @@ class RecipeEcho:
     def from_json_value(cls, data: JsonValue, where: str) -> RecipeEcho:
         if not isinstance(data, dict):
             raise ShapeError(where, "expected an object")
-        _inlet_center(data, where)
+        _inlets(data, where)
         return cls(data)
 
 
 def _inlet_center(data: Mapping[str, JsonValue], where: str) -> Vec2:
-    return _inlets(data, where)[0].center_mm
+    """The first socket's centre; with no socket (an open groove, fed through its collar)
+    the body's middle, y = z = 0, where a ring's axis plane lies."""
+    inlets = _inlets(data, where)
+    return inlets[0].center_mm if inlets else (0.0, 0.0)
 
 
 def _inlets(data: Mapping[str, JsonValue], where: str) -> tuple[InletRecord, ...]:
     """The echo's inlets: its ``inlet`` object, or each item of its ``inlets`` list."""
     if "inlets" in data and "inlet" not in data:
         items = data.get("inlets")
-        if not isinstance(items, list) or not items:
-            raise ShapeError(f"{where}.inlets", "missing or not a non-empty list")
+        # An open groove has no socket: an empty list (the collar feeds it).
+        if not isinstance(items, list):
+            raise ShapeError(f"{where}.inlets", "missing or not a list")
         named = [(f"{where}.inlets[{i}]", item) for i, item in enumerate(items)]
     else:
         named = [(f"{where}.inlet", data.get("inlet"))]
@@ -371,6 +376,22 @@ def _inlets(data: Mapping[str, JsonValue], where: str) -> tuple[InletRecord, ...
             typing.cast(float, convert(float, item.get("socket_depth_mm"),
                                        f"{path}.socket_depth_mm"))))
     return tuple(out)
+
+
+@dataclass(frozen=True)
+class CollarRecord:
+    """What the rigid collar closing a ring's open groove must be, and what the groove
+    does (mm, mm2, N): the collar's bore is the ring's outer diameter; the groove bottom's
+    diameter, height and area (2 pi r h); its area seen across a diameter (2 r h) and the
+    force with which each half of the bore wall is pushed towards the other per kPa of
+    gauge pressure (p x that projected area)."""
+
+    inner_diameter_mm: float
+    groove_bottom_diameter_mm: float
+    groove_height_mm: float
+    groove_area_mm2: float
+    projected_area_mm2: float
+    squeeze_n_per_kpa: float
 
 
 @dataclass(frozen=True)
@@ -400,6 +421,8 @@ class Manifest:
     pressure: PressureRecord
     motion: MotionRecord | None
     params: RecipeEcho
+    #: Set for a ring with an open groove (closed by a collar after the cure).
+    collar: CollarRecord | None = field(default=None, metadata={"optional": True})
     files: Mapping[str, str] = field(default_factory=dict)
 
     @property
@@ -540,7 +563,17 @@ def manifest_of(molds: BuiltMoldSet) -> Manifest:
             tuple(_wall(w, r.inflate.working_pressure_kpa) for w in molds.pressures)),
         motion=None if molds.motion is None else motion_record(molds.motion),
         params=RecipeEcho(json.loads(json_bytes(r.params()))),
+        collar=_collar(r),
     )
+
+
+def _collar(r: Recipe) -> CollarRecord | None:
+    g = r.groove()
+    if g is None:
+        return None
+    return CollarRecord(round(2.0 * g.outer_radius_mm, 4), round(2.0 * g.bottom_radius_mm, 4),
+                        round(g.height_mm, 4), round(g.bottom_area_mm2(), 3),
+                        round(g.projected_area_mm2(), 3), round(g.squeeze_n_per_kpa(), 5))
 
 
 # ``+ 0.0`` below turns a rounded -0.0 into 0.0 (only where the file has always done so:

@@ -60,7 +60,10 @@ def to_json(value: object) -> JsonValue:
     if isinstance(value, JsonConvertible):
         return value.json_value()
     if dataclasses.is_dataclass(value) and not isinstance(value, type):
-        return {json_key(f): to_json(getattr(value, f.name)) for f in dataclasses.fields(value)}
+        # A field marked ``optional`` is left out while it is None (so records that gained
+        # it later keep their bytes) and read back as None when missing.
+        return {json_key(f): to_json(getattr(value, f.name)) for f in dataclasses.fields(value)
+                if not (f.metadata.get("optional") and getattr(value, f.name) is None)}
     if isinstance(value, Enum):
         return to_json(value.value)
     if isinstance(value, tuple | list):
@@ -151,9 +154,12 @@ def _dataclass(cls: type, data: object, where: str) -> object:
     if not isinstance(data, dict):
         raise ShapeError(where, f"expected an object, got {_kind(data)}")
     hints = _hints(cls)
-    values = {}
+    values: dict[str, object] = {}
     for f in dataclasses.fields(cls):
         key = json_key(f)
+        if key not in data and f.metadata.get("optional"):
+            values[f.name] = None
+            continue
         if key not in data:
             raise ShapeError(_at(where, key), "missing")
         values[f.name] = convert(hints[f.name], data[key], _at(where, key))

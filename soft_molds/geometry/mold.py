@@ -118,6 +118,12 @@ def shell_label_tool(r: Recipe, lay: Layout, part: str, lower: bool
     f = lay.frame
     wa, va = f.w_axis, f.v_axis
     w0, w1 = ((lay.block_lo[wa], lay.parting_w) if lower else (lay.parting_w, lay.block_hi[wa]))
+    groove = r.groove()
+    if groove is not None:
+        # The groove plates leave through that face across the parting plane: the label
+        # stays on the shell's face beside them.
+        half = groove.height_mm / 2.0
+        w0, w1 = (w0, lay.parting_w - half) if lower else (lay.parting_w + half, w1)
     up = _axis(wa)
     normal = _axis(va, -1.0)
     right = np.cross(up, normal)  # so that right x up = the outward normal
@@ -178,6 +184,31 @@ def cut_core_magnet_pocket(r: Recipe, step: CastingStep, core: k.Shape,
     return k.cut(core, [tool], support.part, "cut the magnet pocket", volume_mm3=vol)
 
 
+def label_plates(r: Recipe, step: CastingStep, plates: Sequence[k.Shape]
+                 ) -> tuple[tuple[k.Shape, ...], tuple[Label, ...]]:
+    """The recipe's label cut into the top face (+z) of each plate's grip, beyond the
+    block's face, read outward along the plate's pull (none where the grip is too short
+    for the least glyph, or the plate thinner than three label depths)."""
+    lay = step.settled_layout
+    out, labs = [], []
+    for shape, g in zip(plates, step.plates):
+        (x0, y0, _), (x1, y1, z1) = g.box
+        sign = g.pull_dir[1]
+        face = lay.block_hi[1] if sign > 0 else lay.block_lo[1]
+        tip = y1 if sign > 0 else y0
+        if z1 * 2.0 < 3.0 * r.label_settings.depth_mm:
+            out.append(shape)
+            continue
+        centre = ((x0 + x1) / 2.0, (face + tip) / 2.0, z1)
+        up = (0.0, sign, 0.0)
+        right = (sign, 0.0, 0.0)  # right x up = +z, the face's outward normal
+        shape, lab = cut_label(r, shape, g.part, centre, right, up, abs(tip - face))
+        out.append(shape)
+        if lab is not None:
+            labs.append(lab)
+    return tuple(out), tuple(labs)
+
+
 @dataclass(frozen=True)
 class ShellSolids:
     lower: k.Shape
@@ -211,10 +242,31 @@ def build_body(r: Recipe) -> k.Shape:
     the cast has open gaps there and the shell beside them fills them with fins."""
     body = k.fuse([k.build_primitive(p, "body") for p in r.body_primitives()], "body",
                   "build body")
+    groove = r.groove()
+    if groove is not None:
+        # An open groove reaches past the outer face: it removes its revolved rectangle
+        # up to that face (Pappus), the rest of the tool is outside the body.
+        ring = k.volume(body)
+        return k.cut(body, [k.build_primitive(p, "body") for p in r.outer_primitives()],
+                     "body", "cut the open groove", volume_mm3=ring - groove.volume_mm3(),
+                     rel_tol=1e-4)
     cuts = r.outer_cuts()
     if not cuts:
         return body
     return k.cut(body, [k.build_slit(c, "body") for c in cuts], "body", "cut the slits")
+
+
+def build_plates(step: CastingStep) -> tuple[k.Shape, ...]:
+    """The plates of an open groove, in the step's order: each box less the groove
+    bottom's cylinder (a half cylinder of it lies in the box)."""
+    out = []
+    for g in step.plates:
+        lo, hi = g.box
+        cx, cy = g.hole_center_mm
+        hole = k.cylinder(2, (cx, cy, lo[2] - 1.0), hi[2] - lo[2] + 2.0, g.hole_radius_mm)
+        out.append(k.cut(k.box(lo, hi), [hole], g.part, "cut the groove bottom",
+                         volume_mm3=g.volume_mm3()))
+    return tuple(out)
 
 
 def build_cast(r: Recipe, step: CastingStep, body: k.Shape | None = None) -> CastSolids:
@@ -222,6 +274,11 @@ def build_cast(r: Recipe, step: CastingStep, body: k.Shape | None = None) -> Cas
     core support of the step, formed by its group of voids and held by its print."""
     if body is None:
         body = build_body(r)
+    if not step.core_supports:
+        # No core (an open groove cut from the body, formed by plates): the body is the
+        # cast.
+        vol = k.volume(body)
+        return CastSolids(body, (), body, {"body": vol, "void_set": 0.0, "cast": vol})
     sockets = r.sockets()
     all_voids = r.void_primitives()
     vols = {"body": k.volume(body), "void_set": 0.0}
@@ -285,7 +342,7 @@ def build_shells(r: Recipe, step: CastingStep, cs: CastSolids) -> ShellSolids:
     pockets = [k.box(tuple(a - c for a in klo), tuple(b + c for b in khi))
                for klo, khi in (sup.key_box for sup in step.core_supports)]
     w_lo, w_hi = lay.block_lo[wa], lay.block_hi[wa]
-    tools = [cs.body, *cs.cores, *pockets]
+    tools = [cs.body, *cs.cores, *pockets, *build_plates(step)]
     # The seat's magnet pockets lie wholly below the parting plane: the lower shell's.
     for sup in step.core_supports:
         mp = magnet_pockets(r, sup, step.settled_parting)

@@ -10,6 +10,7 @@ from dataclasses import replace
 
 from ..errors import Problem, RecipeError
 from ..recipe.model import Recipe
+from .groove import groove_problems
 from .layout import Layout, plan_layout
 from .lines import LineOf, line_finder
 from .magnets import magnet_kind_problems, magnet_problems
@@ -48,7 +49,7 @@ def plan_problems(r: Recipe) -> list[Problem]:
     """Every rule of the mold the recipe breaks (empty when it can be planned)."""
     line = line_finder(r.lines)
     out = (process_problems(r, line) + frame_problems(r, line) + lost_core_problems(r, line)
-           + magnet_kind_problems(r, line))
+           + magnet_kind_problems(r, line) + groove_problems(r, line))
     if out:
         return out
     if r.core.melted:

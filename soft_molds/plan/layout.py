@@ -109,8 +109,15 @@ def plan_layout(r: Recipe, axis: str, offset_mm: float, bounds: Bounds | None = 
     far = (hi[0], (v0 + v1) / 2, 2 * NOTCH_DEPTH_MM, NOTCH_LENGTH_MM)  # centred
     end_socket = bounds is None and any(i.at_end for i in r.inlets)
     notches = (side,) if end_socket else (far, side)
-    return Layout(frame, offset_mm, (lo[0], lo[1], lo[2]), (hi[0], hi[1], hi[2]), body_lo,
-                  body_hi, bolts, keys, notches)
+    lay = Layout(frame, offset_mm, (lo[0], lo[1], lo[2]), (hi[0], hi[1], hi[2]), body_lo,
+                 body_hi, bolts, keys, notches)
+    if bounds is None and r.groove() is not None:
+        from .groove import groove_layout
+
+        # An open groove's plates cross the block along y: keys, bolts and notches go to
+        # its x ends.
+        return groove_layout(r, lay)
+    return lay
 
 
 def key_symmetry_clashes(keys_uv: tuple[tuple[float, float], ...],

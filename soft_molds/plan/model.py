@@ -137,6 +137,29 @@ class CoreSupport:
 
 
 @dataclass(frozen=True)
+class GroovePlate:
+    """One of the two flat plates that form a ring's open groove (world, mm): the box
+    ``box`` (lo, hi) in the parting plane, z in [-t/2, t/2] with t the groove's height,
+    from the ring's axis plane y = 0 out past the block's +-y face (its print, clamped
+    between the shells, and a grip beyond), less the cylinder of ``hole_radius_mm`` (the
+    groove bottom) about the ring's axis through ``hole_center_mm`` (x, y). It pulls along
+    ``pull_dir`` (+-y): every point of its half of the groove bottom moves outward or
+    along the wall."""
+
+    part: str
+    box: Box
+    hole_center_mm: tuple[float, float]
+    hole_radius_mm: float
+    pull_dir: Vec3
+
+    def volume_mm3(self) -> float:
+        """Closed form: the box less the half cylinder of the hole."""
+        (x0, y0, z0), (x1, y1, z1) = self.box
+        half = math.pi * self.hole_radius_mm ** 2 / 2.0
+        return (x1 - x0) * ((y1 - y0) * (z1 - z0)) - half * (z1 - z0)
+
+
+@dataclass(frozen=True)
 class Opening:
     """A sprue (pour inlet) or vent where it meets the cavity (mm, world frame).
 
@@ -547,6 +570,8 @@ class CastingStep:
     overmold: Overmold | None = None
     #: Set for the core mold of a melted core (two shells, no core, the core as the cast).
     core_mold: CoreMold | None = None
+    #: The two plates forming a ring's open groove (no core then), in part order.
+    plates: tuple[GroovePlate, ...] = ()
 
     @property
     def parts(self) -> tuple[PartPlan, ...]:
@@ -568,6 +593,11 @@ class CastingStep:
             # The core stays in the bladder from the first step: nothing new to print.
             return (PartPlan("shell-lower", Role.SHELL, p.down),
                     PartPlan("shell-upper", Role.SHELL, p.up),
+                    PartPlan("cast", Role.CAST, None))
+        if self.plates:
+            return (PartPlan("shell-lower", Role.SHELL, p.down),
+                    PartPlan("shell-upper", Role.SHELL, p.up),
+                    *(PartPlan(g.part, Role.CORE, g.pull_dir) for g in self.plates),
                     PartPlan("cast", Role.CAST, None))
         return (PartPlan("shell-lower", Role.SHELL, p.down),
                 PartPlan("shell-upper", Role.SHELL, p.up),

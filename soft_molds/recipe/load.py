@@ -334,7 +334,13 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
     if problems:
         raise refused()
 
-    if inlets_v[0]["center_mm"] is None:
+    if not voids:
+        # No cavity void: the outside cut inflates (an open groove); there is no socket.
+        problems.extend(_no_socket_problems(top, outer))
+        if problems:
+            raise refused()
+        inlets_v = [dict(inlets_v[0], center_mm=(0.0, 0.0))]
+    elif inlets_v[0]["center_mm"] is None:
         inlets_v[0]["center_mm"] = voids[0].entry()[0]
     inlet_v = inlets_v[0]
     # Default placements keep clear of the start face's sockets (the only face a void's
@@ -394,7 +400,8 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
     recipe = Recipe(
         name=name, label=label, description=vals["description"] or "", body=body,
         voids=tuple(voids),
-        inlets=tuple(Inlet(**dict(v, face=InletFace(v["face"]))) for v in inlets_v),
+        inlets=tuple(Inlet(**dict(v, face=InletFace(v["face"]))) for v in inlets_v
+                     if voids),
         parting=Parting(**parting_v),
         mold=MoldSettings(**blocks["mold"]), checks=Checks(**blocks["checks"]),
         mesh=MeshSettings(**blocks["mesh"]),
@@ -484,11 +491,26 @@ def _split_outer(voids: list, problems: list[Problem], lines: dict[str, int]
                                     "listed after every cavity void", lines.get(path),
                                     v.KIND, f"move it after voids[{last}]"))
             break
-    if not inner:
+    # An outside cut that inflates (an open groove, closed by a collar after the cure) is
+    # the cavity itself.
+    if not inner and not any(getattr(v, "INFLATES", False) for v in outer):
         problems.append(Problem("voids", "has no cavity to inflate", lines.get("voids"),
                                 [v.KIND for v in voids],
                                 "at least one void that is not cut from the outside"))
     return inner, outer
+
+
+def _no_socket_problems(top: MapReader, outer: list) -> list[Problem]:
+    """An open groove is fed through the collar that closes it: the silicone has no tube
+    socket, so an ``inlet`` or ``inlets`` block is refused (one line)."""
+    for key in ("inlet", "inlets"):
+        node = top.node(key)
+        if node is not None:
+            return [Problem(key, "is given, but the open groove has no tube socket: air "
+                            "enters through the collar that closes the groove", node.key_line
+                            or node.line, node.plain(), "leave out the inlet block (put "
+                            "the tube's port in the collar, at the groove's mid-height)")]
+    return []
 
 
 def _fit_outer(body: BodyKind, voids: list, outer: list, blocks: dict, parting_v: dict,

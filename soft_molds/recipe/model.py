@@ -13,12 +13,15 @@ import json
 from collections.abc import Mapping
 from dataclasses import asdict, dataclass, field
 from enum import Enum
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from .contracts import BodyKind, VoidKind, bounds_of
 from .cuts import SlitCut
 from .materials import Blend, Grade
 from .primitives import Primitive, RoundedRod
+
+if TYPE_CHECKING:
+    from .kinds.annulus import Groove
 
 #: ISO 273 clearance holes, medium series (mm): the fit for a bolt through both shells.
 ISO273_MEDIUM_MM = {"M3": 3.4, "M4": 4.5, "M5": 5.5}
@@ -340,6 +343,22 @@ class Recipe:
         length = self.body_length_mm
         return tuple(v.primitives(length) for v in self.voids)
 
+    def groove(self) -> Groove | None:
+        """The open groove of a ring cuff (an ``annulus`` with ``opens_to: outside``), or
+        None: its figures (mm)."""
+        for v in self.outer:
+            groove = getattr(v, "groove", None)
+            if groove is not None:
+                found: Groove = groove()
+                return found
+        return None
+
+    def outer_primitives(self) -> tuple[Primitive, ...]:
+        """The solids cut from the body by outside voids that are not slit rows (an open
+        groove), in recipe order (mm, world)."""
+        length = self.body_length_mm
+        return tuple(p for v in self.outer for p in v.primitives(length))
+
     def outer_cuts(self) -> tuple[SlitCut, ...]:
         """Every cut of the ``outer`` voids, in recipe order (mm, world)."""
         return tuple(c for v in self.outer for c in v.cuts(self.body, self.voids))  # type: ignore[attr-defined]
@@ -361,6 +380,7 @@ class Recipe:
             "voids": [kind_dict(v) for v in (*self.voids, *self.outer)],
             # One inlet on the start face echoes as the ``inlet`` block always did (so the
             # hash and manifest of such a recipe do not change); several as ``inlets``.
+            # An open groove has no socket (the collar feeds it): an empty ``inlets``.
             **({"inlet": self.inlets[0].echo()}
                if len(self.inlets) == 1 and not self.inlets[0].at_end
                else {"inlets": [i.echo() for i in self.inlets]}),

@@ -34,7 +34,9 @@ _round_big = edit(CUFF, "edge_round_mm: 1.5", "edge_round_mm: 6")
 _deep = edit(CUFF, "depth_mm: 3\n", "depth_mm: 10\n")
 _tall = edit(CUFF, "    height_mm: 10\n", "    height_mm: 14\n")
 _wide_socket = edit(CUFF, "socket_diameter_mm: 4", "socket_diameter_mm: 12")
-_outside = edit(CUFF, "opens_to: none ", "opens_to: outside ")
+# An open groove through the outer face: (44 - 20) / 2 - 2 = 10 mm deep, square corners.
+_outside = edit(edit(CUFF, "opens_to: none ", "opens_to: outside\n    corner_round_mm: 0 "),
+                "depth_mm: 3\n", "depth_mm: 10\n")
 _inside = edit(CUFF, "opens_to: none ", "opens_to: inside ")
 _sideways = edit(CUFF, "opens_to: none ", "opens_to: up ")
 _pulled = edit(CUFF, "kind: dissolved ", "kind: pulled ")
@@ -71,9 +73,10 @@ CASES = [
         _e("inlet.center_mm", line_of(_wide_socket, "inlet:"),
            "puts the socket off the curved outer face touching x = 0"),
         _e("inlet", line_of(_wide_socket, "inlet:"), "leaves a silicone wall of 1.00 mm"),)),
-    Case("opens-to-outside-not-built", _outside, (
-        _e("voids[0].opens_to", line_of(_outside, "opens_to"), "is outside: that channel "
-           "needs a mold parted through the ring's axis", "'outside'", "none"),)),
+    # The closed cuff's socket stays: an open groove is fed through its collar instead.
+    Case("open-groove-with-an-inlet", _outside, (
+        _e("inlet", line_of(_outside, "inlet:"), "is given, but the open groove has no tube "
+           "socket: air enters through the collar", None, "leave out the inlet block"),)),
     Case("opens-to-inside-not-built", _inside, (
         _e("voids[0].opens_to", line_of(_inside, "opens_to"), "is inside: that channel "
            "needs a collapsible core", "'inside'", "none"),)),

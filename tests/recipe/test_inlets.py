@@ -21,7 +21,9 @@ from soft_molds.recipe.model import Inlet, InletFace
 
 ROOT = Path(__file__).resolve().parents[2]
 RECIPES = ROOT / "recipes"
-ONE_SOCKET = sorted(p for p in RECIPES.glob("*.yaml") if "inlets:" not in p.read_text())
+# An open groove has no socket at all (its collar feeds it): not a one-socket recipe.
+ONE_SOCKET = sorted(p for p in RECIPES.glob("*.yaml")
+                    if "inlets:" not in p.read_text() and "opens_to: outside" not in p.read_text())
 INLET_BLOCK = "inlet:\n  socket_diameter_mm: 4\n  socket_depth_mm: 6\n"
 
 

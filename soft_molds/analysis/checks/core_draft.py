@@ -46,4 +46,6 @@ def core_draft(ctx: CheckContext) -> CheckOutput:
             value=rep.locked_area_mm2, limit=None,
             where=rep.locked_where_mm))
         reports.append(rep)
+    if not reports:  # no core (an open groove's plates: see plate-release)
+        return CheckOutput(())
     return CheckOutput(tuple(out), CoreDraft(reports[0], tuple(reports[1:])))

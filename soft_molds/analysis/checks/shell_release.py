@@ -32,8 +32,11 @@ def shell_release(ctx: CheckContext) -> CheckOutput:
     r = ctx.recipe
     if r.parting.offset_mm is None:
         raise ValueError("the review needs the parting plane chosen (parting.offset_mm)")
+    # No core (an open groove's plates): the shells meet only the cast.
     _, pulls = score_plane(ctx.cast, ctx.outer_facets, r.parting.axis,
-                           float(r.parting.offset_mm), ctx.core.surface, ctx.core_contact,
+                           float(r.parting.offset_mm),
+                           ctx.core.surface if ctx.has_core else None,
+                           ctx.core_contact if ctx.has_core else None,
                            r.checks.min_draft_deg, ctx.openings)
     out: list[Finding] = []
     for rep in pulls:

@@ -31,7 +31,7 @@ from ..wording import point
 def silicone_wall(ctx: CheckContext) -> CheckOutput:
     r = ctx.recipe
     limit = r.checks.min_wall_mm
-    curved = bool(getattr(type(r.body), "CURVED_INLET_FACE", False))
+    curved = bool(getattr(type(r.body), "CURVED_INLET_FACE", False)) and bool(r.inlets)
     walls = wall_map(ctx.cast, ctx.void_facets, limit,
                      skip=partial(_in_curved_mouth, r) if curved else None)
     left_out = ("; the socket's mouth on the curved inlet face (a feather edge, checked "

@@ -7,6 +7,7 @@ from __future__ import annotations
 from ...errors import Problem
 from ...recipe.feeds import core_groups
 from ...recipe.model import InletFace, Recipe
+from ..groove import groove_plates
 from ..layout import MIN_LAND_MM, block_band_mm, plan_layout
 from ..lines import LineOf
 from ..model import CastingStep, CoreSupport, Inlet, PartingPlane
@@ -32,7 +33,9 @@ def steps(r: Recipe) -> tuple[CastingStep, ...]:
     parting = None if r.parting.auto else PartingPlane(r.parting.axis,
                                                        float(r.parting.offset_mm or 0.0))
     layout = None if parting is None else plan_layout(r, parting.axis, parting.offset_mm)
-    return (CastingStep(STEP, inlets, supports, parting, layout),)
+    # An open groove (no inlet, no core) is formed by two plates; its parting is fixed.
+    plates = () if layout is None else groove_plates(r, layout)
+    return (CastingStep(STEP, inlets, supports, parting, layout, plates=plates),)
 
 
 def core_support(r: Recipe, inlet: Inlet, part: str = "core",
