@@ -15,7 +15,12 @@ the chambered step, a post bridge) instead, so its checks are these:
 - ``base-layer``: the base pour's thickness measured on its cast against
   ``process.base_mm``, and against ``checks.min_wall_mm`` (it is the wall under the sheet);
 - ``sheet-cover``: the silicone beyond the strain-limiting sheet's edge on every side
-  (the base cast's outline less the sheet's), against ``checks.min_wall_mm``.
+  (the base cast's outline less the sheet's), against ``checks.min_wall_mm``;
+- ``fin-print`` and ``fin-draft``: slits between chambers are formed by fins standing on
+  the chambered tray's floor; the one-shot checks' measures (:mod:`.checks.fin_print`,
+  :mod:`.checks.fin_draft`) on that tray, its mesh turned back into the actuator frame,
+  where it leaves the cast along +z as the one-shot upper shell does (a layered tray has
+  no sprue or vent, so ``fin-opening`` has nothing to find).
 
 Frames: pour orientation per step, as the parts are stored; mm, degrees.
 """
@@ -23,12 +28,18 @@ Frames: pour orientation per step, as the parts are stored; mm, degrees.
 from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
+from dataclasses import replace
 from typing import Protocol
 
 import numpy as np
 
+from ..meshdata import TriMesh
 from ..plan.model import Footprint
+from ..recipe.kinds.slits import THROUGH_MM
 from ..recipe.model import Recipe
+from .checks.fin_draft import PICK_TOL_MM, fin_draft_findings, fin_drafts
+from .checks.fin_print import fin_print_findings
+from .checks.motion_scope import network_motion_notes
 from .findings import Finding, Severity, finding
 from .layered import LayerStep, is_chambered
 from .printability import Printer, PrintPlan, plan_print, print_findings
@@ -233,5 +244,22 @@ def layered_findings(r: Recipe, steps: Sequence[LayerStep],
             if inset is not None:
                 cover = sheet_cover_mm(s, s.layer.footprint.inset(inset))
                 out.append(sheet_cover_finding(cover, r.checks.min_wall_mm, cast))
+        elif r.outer_cuts():
+            out.extend(fin_findings(r, s, printer))
+    out.extend(network_motion_notes(r))
     return tuple(out)
+
+
+def fin_findings(r: Recipe, s: LayerStep, printer: Printer) -> list[Finding]:
+    """The slits' fins on the chambered tray: printable, and drafted along its pull."""
+    cuts = r.outer_cuts()
+    tray = part_name(s, "tray")
+    mesh = s.part("tray").mesh
+    # The tray is stored turned over (a half turn about x); turned back, its fins hang
+    # from the actuator's top face and leave the cast along +z.
+    back = TriMesh(mesh.vertices * np.array([1.0, -1.0, -1.0]), mesh.faces)
+    least, where = fin_drafts(back, cuts, (0.0, 0.0, 1.0), None, THROUGH_MM + PICK_TOL_MM)
+    found = (fin_print_findings(cuts, printer)
+             + fin_draft_findings(least, where, r.checks.min_draft_deg))
+    return [replace(f, part=tray) for f in found]
 

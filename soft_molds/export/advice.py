@@ -45,7 +45,8 @@ ADVICE: dict[str, str] = {
         "in a water-soluble filament and dissolve it out (`core.kind: dissolved`)."),
     "motion": (
         "No bend or stretch is predicted for this body: the motion estimates take the cast "
-        "for a beam along its length, and a ring has none. Measure the squeeze on a cast "
+        "for a beam along its length, and a ring has none, nor does a channel network whose "
+        "arms turn away from it. Measure the squeeze on a cast "
         "part, raising the pressure slowly up to the working pressure only."),
     "drain": (
         "A dissolved core's solution cannot leave that pocket when the part stands "
@@ -82,7 +83,8 @@ ADVICE: dict[str, str] = {
         "leak or crack. Raise `mold.wall_mm`, or print with more perimeters if your "
         "slicer allows."),
     "fin-print": (
-        "The upper shell's fins, which form the slits, are thinner than the printed wall or "
+        "The fins that form the slits (on the upper shell, or on a layered chambered tray's "
+        "floor) are thinner than the printed wall or "
         "too tall for their thickness: they print weak, wobble under the nozzle or are "
         "dropped by the slicer. Widen the slits (`width_mm` of the slits void, within the "
         "gap between chambers less twice `checks.min_wall_mm`), make them shallower "
@@ -95,7 +97,8 @@ ADVICE: dict[str, str] = {
         "slits through both side faces instead, so each stretch of top face is vented on "
         "its own."),
     "fin-draft": (
-        "The fins must leave the slits along the upper shell's pull. With no draft they "
+        "The fins must leave the slits along their part's pull (the upper shell's, or a "
+        "layered chambered tray's as the cast is lifted out). With no draft they "
         "drag on the silicone walls beside each slit; wider at the tip than at the root they "
         "tear them. Give the slits `draft_deg` (common practice 0.5-2 deg)."),
     "overhang": (

@@ -35,6 +35,7 @@ from ..recipe.primitives import (
     RoundedRing,
     RoundedRod,
     Slab,
+    TurnedBar,
 )
 
 Shape = cq.Shape
@@ -371,6 +372,9 @@ def build_slit(c: SlitCut, part: str) -> cq.Shape:
     except Exception as exc:  # OCCT raises bare Standard_Failure subclasses
         raise GeometryError("build slit", f"the kernel failed: {exc}", part) from exc
     whole = c.section_area_mm2(c.top_z_mm + OVERSHOOT_MM) * c.span_mm
+    if c.angle_deg != 0.0:  # a slit across a turned row: turned about its centre
+        made = made.rotate(cq.Vector(c.center_x_mm, c.center_y_mm, 0.0),
+                           cq.Vector(c.center_x_mm, c.center_y_mm, 1.0), c.angle_deg)
     return checked(made, part, "build slit", volume_mm3=whole, rel_tol=1e-6)
 
 
@@ -385,6 +389,8 @@ def build_primitive(p: Primitive, part: str) -> cq.Shape:
         return _extruded(p, part)
     if isinstance(p, RoundedRing):
         return _rounded_ring(p, part)
+    if isinstance(p, TurnedBar):
+        return _turned_bar(p, part)
     if isinstance(p, Slab):
         return _slab(p, part)
     if isinstance(p, MeshSolid):
@@ -392,6 +398,29 @@ def build_primitive(p: Primitive, part: str) -> cq.Shape:
 
         return imported_solid(p, part)
     raise GeometryError("build primitive", f"unknown primitive {type(p).__name__}", part)
+
+
+def _turned_bar(p: TurnedBar, part: str) -> cq.Shape:
+    """Built along +x at the origin (a filleted box, or the rounded rectangle section
+    swept along x), turned about z and moved; checked against the closed-form volume."""
+    lx, ly, lz, r = p.length_mm, p.width_mm, p.height_mm, p.radius_mm
+    made: object
+    if p.round_ends:
+        try:
+            made = _rounded_box_at_origin((lx, ly, lz), r)
+        except GeometryError as exc:
+            raise GeometryError(exc.step, exc.detail, part) from exc
+    else:
+        wp = cq.Workplane("YZ", origin=(-lx / 2.0, 0.0, 0.0))
+        if r > 0.0:
+            made = wp.sketch().rect(ly, lz).vertices().fillet(r).finalize().extrude(lx).val()
+        else:
+            made = wp.rect(ly, lz).extrude(lx).val()
+    if not isinstance(made, cq.Shape):
+        raise GeometryError("turned bar", "the kernel returned no solid", part)
+    made = made.rotate(cq.Vector(0, 0, 0), cq.Vector(0, 0, 1), p.angle_deg)
+    made = made.translate(cq.Vector(*p.center_mm))
+    return checked(made, part, "turned bar", volume_mm3=p.volume_mm3(), rel_tol=1e-6)
 
 
 def _rounded_ring(p: RoundedRing, part: str) -> cq.Shape:

@@ -12,11 +12,21 @@ from __future__ import annotations
 from dataclasses import dataclass, field, replace
 
 import cadquery as cq
+import numpy as np
 
 from ..plan.model import CastingStep, Footprint, LayerKind, Post
 from ..recipe.model import Recipe
 from ..recipe.primitives import RoundedBox, Slab
-from .kernel import box, build_primitive, checked, cut, fuse, outline_prism, split_at
+from .kernel import (
+    box,
+    build_primitive,
+    build_slit,
+    checked,
+    cut,
+    fuse,
+    outline_prism,
+    split_at,
+)
 from .mold import Label, cut_label
 
 Box = tuple[tuple[float, float, float], tuple[float, float, float]]
@@ -118,13 +128,18 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
     _, hi = r.body_bounds()
     bond, wall = layer.bond_z_mm, layer.wall_mm
     posts = [post_solid(p) for p in layer.posts]
+    # Slits between chambers are cut from the actuator's top, the tray's floor: the cast
+    # loses them and the tray keeps them as fins standing on its floor.
+    slits = [build_slit(c, "tray") for c in r.outer_cuts()]
+    if slits:
+        above = cut(above, slits, "tray", "slits from the top face")
     cast = cut(above, posts, "cast", "chambered layer")
     # The feed groove's post runs on through the tray's inlet wall (so the groove opens
     # cleanly on the inlet face): the wall takes a notch open to the rim, the post's shape
     # with the locating clearance on every side, so the bridge drops in wherever its skirt
     # lets it sit.
     notches = [post_solid(_grown(p, layer.clearance_mm)) for p in layer.posts
-               if p.x_span_mm()[0] < 0.0]
+               if crosses_edge(p, layer.footprint)]
     tray = cut(_block(r, wall, bond, hi[2] + wall), [above, *notches], "tray",
                "chambered tray")
     lo, _ = r.body_bounds()
@@ -154,6 +169,17 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
     boxes = {name: _turned_box(lab.box) for name, lab in
              (("tray", tray_label), ("post-bridge", bridge_label)) if lab is not None}
     return LayerSolids(parts, cast, boxes)
+
+
+def crosses_edge(p: Post, f: Footprint) -> bool:
+    """Whether post ``p`` reaches beyond the footprint's edge at the bond face (a groove
+    opening on the outline): a corner of its outline outside the footprint (a plate's
+    outline by its exact distance; a bar's rectangle)."""
+    pts = np.asarray(p.outline_mm(), dtype=float)
+    if f.outline is not None:
+        return bool((f.outline.sdf(pts) > 0.0).any())
+    (cx, cy), (lx, ly) = f.center_mm, f.size_mm
+    return bool(((np.abs(pts[:, 0] - cx) > lx / 2.0) | (np.abs(pts[:, 1] - cy) > ly / 2.0)).any())
 
 
 def _grown(p: Post, by_mm: float) -> Post:

@@ -34,6 +34,7 @@ from .rules import (
     lost_core_problems,
     parting_problems,
     printer_problems,
+    process_problems,
 )
 
 __all__ = ["CastingStep", "ChosenBy", "CoreSupport", "Inlet", "Layout", "MoldPlan", "Opening",
@@ -47,7 +48,7 @@ DEFAULT_PROCESS = "one-shot"
 def plan_problems(r: Recipe) -> list[Problem]:
     """Every rule of the mold the recipe breaks (empty when it can be planned)."""
     line = line_finder(r.lines)
-    out = (frame_problems(r, line) + lost_core_problems(r, line)
+    out = (process_problems(r, line) + frame_problems(r, line) + lost_core_problems(r, line)
            + magnet_kind_problems(r, line) + groove_problems(r, line))
     if out:
         return out

@@ -205,7 +205,8 @@ class Post:
     stands ``height_mm`` into the body (+z) and every side leans in by ``draft_deg``. It
     forms the void ``name`` (the recipe's path). ``angle_deg`` turns the post about the
     vertical line through its centre (counter-clockwise seen from +z; 0: its ``size_mm``
-    along x and y), for posts along an arm that does not run along x."""
+    along x and y), for posts along an arm that does not run along x. A corner radius of
+    half the smaller size makes the ends (or the whole post) round."""
 
     name: str
     center_mm: tuple[float, float]
@@ -231,7 +232,13 @@ class Post:
                 a0 = -math.pi / 2.0 + k * math.pi / 2.0
                 for j in range(CORNER_FACETS + 1):
                     a = a0 + j * (math.pi / 2.0) / CORNER_FACETS
-                    pts.append((ox + r * math.cos(a), oy + r * math.sin(a)))
+                    p = (ox + r * math.cos(a), oy + r * math.sin(a))
+                    # Where a side has no straight part (r = half the size) one corner's
+                    # last facet ends where the next one's begins: one point, not two.
+                    if not pts or math.dist(p, pts[-1]) > 1e-9:
+                        pts.append(p)
+            if math.dist(pts[0], pts[-1]) <= 1e-9:
+                pts.pop()
         if self.angle_deg == 0.0:  # unturned: the same numbers as always
             return tuple(pts)
         c, s = math.cos(math.radians(self.angle_deg)), math.sin(math.radians(self.angle_deg))

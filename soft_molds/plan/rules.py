@@ -47,6 +47,20 @@ def lost_core_problems(r: Recipe, line: LineOf) -> list[Problem]:
     return out
 
 
+def process_problems(r: Recipe, line: LineOf) -> list[Problem]:
+    """A void that only some casting processes can make (a branched channel network: a
+    void kind's ``process_reason(kind)`` says why not) in another process."""
+    out = []
+    for i, v in enumerate(r.voids):
+        why = getattr(v, "process_reason", lambda kind: None)(r.process.kind)
+        if why is not None:
+            out.append(Problem(f"voids[{i}].kind", f"{why}; it cannot be cast by the "
+                               f"{r.process.kind} process", line("process.kind")
+                               or line(f"voids[{i}].kind"), r.process.kind,
+                               "process.kind: layered"))
+    return out
+
+
 def parting_problems(r: Recipe, axis: str, offset_mm: float, line: LineOf) -> list[Problem]:
     """The plane normal to ``axis`` at ``offset_mm``: through the socket axis and the widest
     section, and the mold-block rules of the layout it gives."""

@@ -5,7 +5,10 @@ A ``SlitCut`` is a prism along y whose section in the xz plane is a drafted slot
 upward (+z): ``width_top_mm`` wide along x at the body's top face ``top_z_mm``, its two
 side walls leaning in by ``draft_deg`` each towards the bottom at ``top_z_mm - depth_mm``,
 its two bottom corners rounded with ``round_mm``. The prism runs ``span_mm`` along y
-centred on ``center_y_mm``. Above the top face the section goes on, with the same draft,
+centred on ``center_y_mm``. ``angle_deg`` turns the whole slit about the vertical line
+through (``center_x_mm``, ``center_y_mm``), counter-clockwise seen from +z: a slit across a
+row of chambers along a path that does not run along x (its "x" is then along the path,
+its span across it). Above the top face the section goes on, with the same draft,
 for ``OVERSHOOT_MM``, so the cut opens cleanly through the face (that part lies outside the
 body and removes nothing).
 
@@ -37,6 +40,27 @@ class SlitCut:
     width_top_mm: float
     round_mm: float
     draft_deg: float
+    angle_deg: float = 0.0
+
+    def to_world(self, local: np.ndarray) -> np.ndarray:
+        """Points (n, 3) given in the unturned slit's frame, in the world's (mm)."""
+        if self.angle_deg == 0.0:
+            return local
+        t = math.radians(self.angle_deg)
+        c, s = math.cos(t), math.sin(t)
+        dx, dy = local[:, 0] - self.center_x_mm, local[:, 1] - self.center_y_mm
+        return np.stack([self.center_x_mm + c * dx - s * dy, self.center_y_mm + s * dx + c * dy,
+                         local[:, 2]], axis=1)
+
+    def to_local(self, world: np.ndarray) -> np.ndarray:
+        """Points (n, 3) in the world, in the unturned slit's frame (mm)."""
+        if self.angle_deg == 0.0:
+            return world
+        t = math.radians(self.angle_deg)
+        c, s = math.cos(t), math.sin(t)
+        dx, dy = world[:, 0] - self.center_x_mm, world[:, 1] - self.center_y_mm
+        return np.stack([self.center_x_mm + c * dx + s * dy, self.center_y_mm - s * dx + c * dy,
+                         world[:, 2]], axis=1)
 
     @property
     def bottom_z_mm(self) -> float:
@@ -128,15 +152,21 @@ class SlitCut:
     def bounds(self) -> tuple[tuple[float, float, float], tuple[float, float, float]]:
         """Axis-aligned bounds of the whole tool, overshoot included (mm)."""
         ht = self.half_width_at(self.top_z_mm + OVERSHOOT_MM)
-        return ((self.center_x_mm - ht, self.center_y_mm - self.span_mm / 2.0,
-                 self.bottom_z_mm),
-                (self.center_x_mm + ht, self.center_y_mm + self.span_mm / 2.0,
-                 self.top_z_mm + OVERSHOOT_MM))
+        lo = (self.center_x_mm - ht, self.center_y_mm - self.span_mm / 2.0, self.bottom_z_mm)
+        hi = (self.center_x_mm + ht, self.center_y_mm + self.span_mm / 2.0,
+              self.top_z_mm + OVERSHOOT_MM)
+        if self.angle_deg == 0.0:
+            return lo, hi
+        corners = self.to_world(np.array([[x, y, z] for x in (lo[0], hi[0])
+                                          for y in (lo[1], hi[1]) for z in (lo[2], hi[2])]))
+        a, b = corners.min(axis=0), corners.max(axis=0)
+        return ((float(a[0]), float(a[1]), float(a[2])), (float(b[0]), float(b[1]), float(b[2])))
 
     def surface_samples(self, spacing_mm: float, top_z_mm: float | None = None,
                         y_range_mm: tuple[float, float] | None = None) -> np.ndarray:
         """(n, 3) points on the slit's two walls and bottom below ``top_z_mm`` (default the
-        body's top face), within ``y_range_mm`` (default its span), at most about
+        body's top face), within ``y_range_mm`` (default its span; in the slit's own frame,
+        along its span), at most about
         ``spacing_mm`` apart; the rounded corners are sampled on their straight walls'
         extension, which lies outside the slit by at most ``round_mm`` (mm)."""
         top = self.top_z_mm if top_z_mm is None else top_z_mm
@@ -153,5 +183,5 @@ class SlitCut:
                 h = self.half_width_at(float(z))
                 pts += [(self.center_x_mm - h, y, z), (self.center_x_mm + h, y, z)]
             pts += [(self.center_x_mm + x, y, self.bottom_z_mm) for x in xs]
-        return np.array(pts, dtype=np.float64)
+        return self.to_world(np.array(pts, dtype=np.float64))
 

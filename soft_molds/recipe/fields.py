@@ -41,7 +41,8 @@ class Field:
     """One recipe key.
 
     ``kind`` is ``"number"``, ``"integer"``, ``"choice"``, ``"text"``, ``"pair"`` (two
-    numbers), ``"triple"`` (three), ``"points"``, ``"rounds"`` or ``"graded"`` (see their
+    numbers), ``"triple"`` (three), ``"points"``, ``"rounds"``, ``"graded"``, ``"paths"``
+    (a list of point lists) or ``"records"`` (a list of mappings of ``fields``; see their
     constructors).
     ``lo``/``hi`` bound numbers (``lo_open`` makes the lower bound strict);
     ``gap_below`` > 0 with ``lo`` = 0 accepts 0 or at least ``gap_below``, nothing between.
@@ -66,6 +67,8 @@ class Field:
     #: out of the recipe's echo (``Recipe.params``), so a recipe that does not use it keeps
     #: its hash and its manifest.
     echo_default: bool = True
+    #: The keys of each mapping of a ``records`` field.
+    fields: tuple[Field, ...] = ()
 
     @property
     def required(self) -> bool:
@@ -77,8 +80,11 @@ class Field:
             return "one of " + ", ".join(self.choices)
         if self.kind == "text":
             return "text"
-        if self.kind in ("points", "rounds", "graded"):
+        if self.kind in ("points", "rounds", "graded", "paths"):
             return _list_allowed(self)
+        if self.kind == "records":
+            return (f"a list of 1 to {MAX_RECORDS} mappings, each with the keys "
+                    + ", ".join(f.name for f in self.fields))
         parts = []
         if self.gap_below > 0.0:
             parts.append(f"0 or {_fmt(self.gap_below)} <= ")
@@ -100,6 +106,9 @@ _COUNT_WORDS = {2: "two", 3: "three"}
 
 #: Most points a profile field takes: a bellows of 100 pleats needs about 200.
 MAX_POINTS = 400
+#: Most point lists a ``paths`` field and mappings a ``records`` field take.
+MAX_PATHS = 32
+MAX_RECORDS = 32
 
 
 def _list_allowed(f: Field) -> str:
@@ -117,6 +126,9 @@ def _list_allowed(f: Field) -> str:
     if f.kind == "points":
         return (f"a list of 2 to {MAX_POINTS} points [{', '.join(f.coords)}], each value "
                 f"{each}")
+    if f.kind == "paths":
+        return (f"a list of 1 to {MAX_PATHS} lists of 2 to {MAX_POINTS} points "
+                f"[{', '.join(f.coords)}], each value {each}")
     return f"a number, or a list of numbers (one per {f.item or 'point'}), each {each}"
 
 
@@ -167,6 +179,40 @@ def points(name: str, doc: str, default: object = None, *,
     shape of the points are the kind's to check)."""
     return Field(name, "points", doc, default, "mm", -MAX_SIZE_MM if signed else 0.0,
                  MAX_SIZE_MM, False, gap_below=MIN_SIZE_MM, coords=coords)
+
+
+def paths(name: str, doc: str, default: object = REQUIRED, *,
+          coords: tuple[str, str] = ("x", "y")) -> Field:
+    """A list of polylines, each a list of at least two signed points in mm (``coords``
+    names their two numbers); their shape is the kind's to check."""
+    return Field(name, "paths", doc, default, "mm", -MAX_SIZE_MM, MAX_SIZE_MM, False,
+                 gap_below=MIN_SIZE_MM, coords=coords)
+
+
+def records(name: str, doc: str, fields: tuple[Field, ...], default: object = REQUIRED
+            ) -> Field:
+    """A list of mappings, each read against ``fields`` (every bad key on its own line,
+    located ``name[i].key``); each comes back as a :class:`Record`."""
+    return Field(name, "records", doc, default, fields=fields)
+
+
+class Record(dict[str, Any]):
+    """One mapping of a ``records`` field: its keys' validated values. Read-only and
+    hashable, so a kind holding records stays a frozen value; a dict, so the recipe's echo
+    writes it as a mapping."""
+
+    def __hash__(self) -> int:  # type: ignore[override]
+        return hash(tuple(sorted(self.items())))
+
+    def __reduce__(self) -> tuple[type[Record], tuple[dict[str, Any]]]:
+        # Pickled and copied whole (a sweep sends recipes to its workers): the default
+        # would rebuild it key by key through the refused __setitem__.
+        return (Record, (dict(self),))
+
+    def _read_only(self, *args: object, **kwargs: object) -> None:
+        raise TypeError("a Record is read-only")
+
+    __setitem__ = __delitem__ = update = pop = popitem = clear = setdefault = _read_only  # type: ignore[assignment]
 
 
 def rounds(name: str, doc: str, default: object = 0.0) -> Field:
@@ -295,6 +341,10 @@ class MapReader:
             return tuple(float(x) for x in numbers)
         if f.kind in ("points", "rounds", "graded"):
             return self._take_list(f, path, line, n)
+        if f.kind == "paths":
+            return self._take_paths(f, path, line, n)
+        if f.kind == "records":
+            return self._take_records(f, path, line, n)
         if not _is_number(v):
             self.problem(path, "must be a number" if f.kind == "number" else
                          "must be a whole number", line, n.plain(), f.allowed())
@@ -343,6 +393,36 @@ class MapReader:
         if f.kind == "points" and len(items) < 2:
             self.problem(path, "has fewer than two points", line, len(items), f.allowed())
             return None
+        return None if any(v is None for v in out) else tuple(out)
+
+    def _take_paths(self, f: Field, path: str, line: int | None, n: Node) -> Any:
+        """A ``paths`` value: a list of ``points`` lists, each read as one."""
+        items = n.value if isinstance(n.value, list) else None
+        if items is None or not items or len(items) > MAX_PATHS:
+            self.problem(path, "must be a list" if items is None else
+                         "has too many items" if items else "must not be empty", line,
+                         n.plain() if items is None else len(items), f.allowed())
+            return None
+        one = Field(f.name, "points", f.doc, f.default, f.unit, f.lo, f.hi, False,
+                    gap_below=f.gap_below, coords=f.coords)
+        out = [self._take_list(one, join_path(path, i), item.line, item)
+               for i, item in enumerate(items)]
+        return None if any(v is None for v in out) else tuple(out)
+
+    def _take_records(self, f: Field, path: str, line: int | None, n: Node) -> Any:
+        """A ``records`` value: a list of mappings, each read against ``f.fields``."""
+        items = n.value if isinstance(n.value, list) else None
+        if items is None or not items or len(items) > MAX_RECORDS:
+            self.problem(path, "must be a list" if items is None else
+                         "has too many items" if items else "must not be empty", line,
+                         n.plain() if items is None else len(items), f.allowed())
+            return None
+        out = []
+        for i, item in enumerate(items):
+            r = MapReader(item, join_path(path, i), self.problems, item.line)
+            got = r.take_all(f.fields)
+            r.finish()
+            out.append(Record(got) if r.ok and isinstance(item.value, dict) else None)
         return None if any(v is None for v in out) else tuple(out)
 
     def _take_grade(self, f: Field, path: str, n: Node) -> Grade | None:

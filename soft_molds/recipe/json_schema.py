@@ -15,7 +15,7 @@ import json
 import re
 from typing import Any
 
-from .fields import MAX_POINTS, Field
+from .fields import MAX_PATHS, MAX_POINTS, MAX_RECORDS, Field
 from .load import LABEL_RE, MAX_VOIDS, NAME_RE, TAG_RE
 from .registry import body_kinds, void_kinds
 from .schema import BLOCKS, LIST_BLOCKS, TOP_FIELDS
@@ -65,6 +65,13 @@ def _value(f: Field, pattern: re.Pattern[str] | None = None) -> Schema:
     if f.kind == "points":
         point = {"type": "array", "items": _bounded(f), "minItems": 2, "maxItems": 2}
         return {"type": "array", "items": point, "minItems": 2, "maxItems": MAX_POINTS}
+    if f.kind == "paths":
+        point = {"type": "array", "items": _bounded(f), "minItems": 2, "maxItems": 2}
+        one = {"type": "array", "items": point, "minItems": 2, "maxItems": MAX_POINTS}
+        return {"type": "array", "items": one, "minItems": 1, "maxItems": MAX_PATHS}
+    if f.kind == "records":
+        return {"type": "array", "items": block_schema(f.fields), "minItems": 1,
+                "maxItems": MAX_RECORDS}
     if f.kind == "rounds":
         return {"anyOf": [_bounded(f), {"type": "array", "items": _bounded(f), "minItems": 1,
                                         "maxItems": MAX_POINTS}]}

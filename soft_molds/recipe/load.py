@@ -206,14 +206,22 @@ def _read_kind(node: Node | None, path: str, registry: dict, problems: list[Prob
 
 
 def _field_line(r: MapReader, sub: str) -> int | None:
-    """The line of a kind's field (``round_mm``) or of an item of it (``profile_mm[3]``)
-    as the recipe wrote it; None when it was not written there."""
-    m = re.fullmatch(r"([A-Za-z0-9_]+)((?:\[\d+\])*)", sub)
+    """The line of a kind's field (``round_mm``), of an item of it (``profile_mm[3]``) or
+    of a key of such an item (``rows[1].count``) as the recipe wrote it; None when it was
+    not written there."""
+    m = re.fullmatch(r"([A-Za-z0-9_]+)((?:\[\d+\]|\.[A-Za-z0-9_]+)*)", sub)
     if m is None or m.group(1) not in r.items:
         return None
     node = r.items[m.group(1)]
     line = r.line_of(m.group(1))
-    for index in re.findall(r"\[(\d+)\]", m.group(2)):
+    for index, key in re.findall(r"\[(\d+)\]|\.([A-Za-z0-9_]+)", m.group(2)):
+        if key:
+            child = node.value.get(key) if isinstance(node.value, dict) else None
+            if child is None:
+                return line
+            node = child
+            line = child.key_line if child.key_line is not None else child.line
+            continue
         items = node.value if isinstance(node.value, list) else []
         if int(index) >= len(items):
             return line

@@ -813,6 +813,176 @@ class RoundedRing:
         return (c - half, c + half)
 
 
+# ---- TurnedBar: a bar turned about z (channel segments and chambers along a path) -------
+
+@dataclass(frozen=True)
+class TurnedBar:
+    """A bar centred on ``center_mm``: ``length_mm`` along the horizontal direction at
+    ``angle_deg`` from +x (counter-clockwise seen from +z), ``width_mm`` across it in the
+    x-y plane and ``height_mm`` along z. With ``round_ends`` every edge and corner is
+    rounded with ``radius_mm`` (a box grown by a ball, as :class:`RoundedBox`); without,
+    only the four edges along its length are, and its ends are flat (the rounded rectangle
+    section swept straight), so bars meeting end to end at a joint leave no notch. mm."""
+
+    center_mm: tuple[float, float, float]
+    length_mm: float
+    width_mm: float
+    height_mm: float
+    angle_deg: float
+    radius_mm: float = 0.0
+    round_ends: bool = True
+
+    @property
+    def _cs(self) -> tuple[float, float]:
+        t = np.radians(self.angle_deg)
+        return float(np.cos(t)), float(np.sin(t))
+
+    def local(self, p: np.ndarray) -> np.ndarray:
+        """Points (n, 3) in the bar's frame: (along, across, up) from its centre (mm)."""
+        c, s = self._cs
+        d = p - np.asarray(self.center_mm)
+        return np.stack([d[:, 0] * c + d[:, 1] * s, -d[:, 0] * s + d[:, 1] * c, d[:, 2]],
+                        axis=1)
+
+    def sdf(self, p: np.ndarray) -> np.ndarray:
+        """Exact signed distance (mm): a rounded box in the bar's frame, or the exact
+        distance of a straight extrusion of the rounded rectangle (b, z) section."""
+        q = np.abs(self.local(p))
+        r = self.radius_mm
+        half = np.array([self.length_mm, self.width_mm, self.height_mm]) / 2.0
+        if self.round_ends:
+            d = q - (half - r)
+            return (np.linalg.norm(np.maximum(d, 0.0), axis=1) + np.minimum(d.max(axis=1), 0.0)
+                    - r)
+        d2 = q[:, 1:] - (half[1:] - r)
+        sec = (np.linalg.norm(np.maximum(d2, 0.0), axis=1) + np.minimum(d2.max(axis=1), 0.0)
+               - r)
+        da = q[:, 0] - half[0]
+        w = np.stack([sec, da], axis=1)
+        return np.linalg.norm(np.maximum(w, 0.0), axis=1) + np.minimum(w.max(axis=1), 0.0)
+
+    def _plan_half(self) -> tuple[float, float, float]:
+        """The plan view at its widest: the rectangle of half sizes (along, across) grown
+        by the returned radius."""
+        r = self.radius_mm
+        if self.round_ends:
+            return self.length_mm / 2.0 - r, self.width_mm / 2.0 - r, r
+        return self.length_mm / 2.0, self.width_mm / 2.0, 0.0
+
+    def bounds(self) -> tuple[np.ndarray, np.ndarray]:
+        c, s = self._cs
+        ha, hb, g = self._plan_half()
+        hx, hy = abs(c) * ha + abs(s) * hb + g, abs(s) * ha + abs(c) * hb + g
+        half = np.array([hx, hy, self.height_mm / 2.0])
+        return np.asarray(self.center_mm) - half, np.asarray(self.center_mm) + half
+
+    def volume_mm3(self) -> float:
+        """Closed form: Steiner's formula of the inner box grown by the ball (round ends),
+        or the rounded rectangle's area times the length (flat ends)."""
+        r, lx, ly, lz = self.radius_mm, self.length_mm, self.width_mm, self.height_mm
+        if self.round_ends:
+            a, b, c = lx - 2 * r, ly - 2 * r, lz - 2 * r
+            return (a * b * c + 2 * r * (a * b + b * c + c * a) + np.pi * r * r * (a + b + c)
+                    + 4.0 / 3.0 * np.pi * r ** 3)
+        return lx * (ly * lz - (4.0 - np.pi) * r * r)
+
+    def surface_samples(self, spacing_mm: float) -> np.ndarray:
+        return _project_to_surface(self, _box_shell_grid(*self.bounds(), spacing_mm))
+
+    def section_extent(self, v: int, w: int, t: float) -> tuple[float, float] | None:
+        """Extent (lo, hi) along axis ``v`` of the section by the plane ``coord[w] = t``,
+        taken over the third axis (None: the plane misses). Exact: across z the plan
+        rectangle grown by the rounding left at that height; across x or y the line's
+        chord of the widest plan (rectangle, or rectangle grown by a disc), or along z the
+        height left where the line comes nearest the bar's axis."""
+        r, cz, hz = self.radius_mm, self.center_mm[2], self.height_mm / 2.0
+        c, s = self._cs
+        ha, hb, g = self._plan_half()
+        if w == 2:
+            off = abs(t - cz)
+            if off > hz:
+                return None
+            d = off - (hz - r)
+            left = float(np.sqrt(max(r * r - d * d, 0.0))) if d > 0.0 else r
+            if self.round_ends:
+                g = left
+            else:
+                hb = self.width_mm / 2.0 - r + left
+            half = (abs(c) * ha + abs(s) * hb if v == 0 else abs(s) * ha + abs(c) * hb) + g
+            return (self.center_mm[v] - half, self.center_mm[v] + half)
+        # A vertical plane: its line in plan, points (x, y) = o + u * k along axis k.
+        k = 1 - w if v == 2 else v
+        o = np.zeros(2)
+        o[w] = t - self.center_mm[w]
+        u = np.zeros(2)
+        u[k] = 1.0
+        a0, b0 = o[0] * c + o[1] * s, -o[0] * s + o[1] * c
+        ka, kb = u[0] * c + u[1] * s, -u[0] * s + u[1] * c
+        if v != 2:
+            span = _line_in_grown_rect(a0, b0, ka, kb, ha, hb, g)
+            if span is None:
+                return None
+            return (self.center_mm[v] + span[0], self.center_mm[v] + span[1])
+        if self.round_ends:
+            dist = _line_to_rect_distance(a0, b0, ka, kb, ha, hb)
+            if dist > r:
+                return None
+            half = hz - r + float(np.sqrt(r * r - dist * dist))
+            return (cz - half, cz + half)
+        span = _line_in_grown_rect(a0, b0, ka, kb, ha, hb, 0.0)
+        if span is None:
+            return None
+        bs = (b0 + kb * span[0], b0 + kb * span[1])
+        nearest = 0.0 if bs[0] * bs[1] <= 0.0 else min(abs(bs[0]), abs(bs[1]))
+        e = nearest - (self.width_mm / 2.0 - r)
+        half = hz - r + float(np.sqrt(max(r * r - e * e, 0.0))) if e > 0.0 else hz
+        return (cz - half, cz + half)
+
+
+def _line_in_grown_rect(a0: float, b0: float, ka: float, kb: float, ha: float, hb: float,
+                        g: float) -> tuple[float, float] | None:
+    """Parameter interval of the line (a0 + s ka, b0 + s kb) (unit direction) inside the
+    rectangle |a| <= ha, |b| <= hb grown by a disc of radius g (None: it misses). The grown
+    rectangle is convex and the union of two rectangles and four discs, so its chord is
+    the hull of theirs."""
+    spans = [_line_in_rect(a0, b0, ka, kb, ha + g, hb), _line_in_rect(a0, b0, ka, kb, ha, hb + g)]
+    if g > 0.0:
+        for ca in (-ha, ha):
+            for cb in (-hb, hb):
+                pa, pb = a0 - ca, b0 - cb
+                mid = -(pa * ka + pb * kb)
+                disc = mid * mid - (pa * pa + pb * pb - g * g)
+                if disc >= 0.0:
+                    spans.append((mid - float(np.sqrt(disc)), mid + float(np.sqrt(disc))))
+    found = [x for x in spans if x is not None]
+    if not found:
+        return None
+    return (min(x[0] for x in found), max(x[1] for x in found))
+
+
+def _line_in_rect(a0: float, b0: float, ka: float, kb: float, ha: float, hb: float
+                  ) -> tuple[float, float] | None:
+    lo, hi = -np.inf, np.inf
+    for p0, k, h in ((a0, ka, ha), (b0, kb, hb)):
+        if abs(k) < 1e-15:
+            if abs(p0) > h:
+                return None
+            continue
+        s0, s1 = sorted(((-h - p0) / k, (h - p0) / k))
+        lo, hi = max(lo, s0), min(hi, s1)
+    return (float(lo), float(hi)) if lo <= hi else None
+
+
+def _line_to_rect_distance(a0: float, b0: float, ka: float, kb: float, ha: float,
+                           hb: float) -> float:
+    """Least distance (mm) from the line (a0 + s ka, b0 + s kb) to the rectangle |a| <= ha,
+    |b| <= hb: 0 when it crosses; else the nearest of the corners to the line (a line
+    missing a convex polygon comes nearest it at a vertex)."""
+    if _line_in_rect(a0, b0, ka, kb, ha, hb) is not None:
+        return 0.0
+    return min(abs((ca - a0) * kb - (cb - b0) * ka) for ca in (-ha, ha) for cb in (-hb, hb))
+
+
 # ---- Slab: a plane outline in (x, y) pushed along z ----------------------------------------
 
 
@@ -882,7 +1052,8 @@ class Slab:
         return (float(a[0]), float(b[0]))
 
 
-Primitive = RoundedBox | RoundedRod | Revolved | Extruded | RoundedRing | Slab | MeshSolid
+Primitive = (RoundedBox | RoundedRod | Revolved | Extruded | RoundedRing | Slab | MeshSolid
+             | TurnedBar)
 
 
 def union_sdf(prims: tuple[Primitive, ...], p: np.ndarray) -> np.ndarray:

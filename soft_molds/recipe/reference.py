@@ -27,6 +27,9 @@ def _table(fields: tuple[Field, ...]) -> list[str]:
     rows = ["| key | meaning | default | allowed |", "|---|---|---|---|"]
     for f in fields:
         rows.append(f"| `{f.name}` | {f.doc} | {_default(f)} | {f.allowed()} |")
+    for f in fields:
+        if f.kind == "records":
+            rows += ["", f"Each item of `{f.name}`:", "", *_table(f.fields)]
     return rows
 
 

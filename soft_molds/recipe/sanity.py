@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable
+from dataclasses import replace
 from functools import partial
 
 import numpy as np
@@ -75,8 +76,13 @@ def sanity_problems(r: Recipe, lines: dict[str, int]) -> list[Problem]:
         inside_self = union_sdf(prims, samples) < -EPS
         inside_socket = union_sdf(sockets, samples) < EPS
         samples = samples[~inside_self & ~inside_socket]
-        _wall_problems(out, path, line(path), body, samples, min_wall,
-                       partial(_wall_keys, void, path))
+        own_walls = getattr(void, "wall_problems", None)
+        if own_walls is not None:  # a network: located by the piece, joints measured
+            out.extend(replace(p, line=line(p.path))
+                       for p in own_walls(body, sockets, min_wall, path))
+        else:
+            _wall_problems(out, path, line(path), body, samples, min_wall,
+                           partial(_wall_keys, void, path))
         for j in range(len(r.inlets)):
             _socket_wall_problems(out, r, j, void, path, line, per_prim)
         if i in lost:

@@ -18,6 +18,7 @@ drawn recipe's text.
 
 from __future__ import annotations
 
+import math
 import os
 import re
 from collections import Counter
@@ -223,7 +224,49 @@ def block(draw, name: str) -> dict:
 
 PAIRS = (("bar", "chambers"), ("bar", "bore"), ("rod", "bore"), ("rod", "chambers"),
          ("revolved", "bellows"), ("section", "chambers"), ("section", "bore"),
-         ("bar", "slits"), ("ring", "annulus"))
+         ("bar", "slits"), ("ring", "annulus"), ("bar", "channels"))
+
+
+@st.composite
+def channels(draw, size: tuple[float, float, float], edge_mm: float) -> tuple[dict, dict]:
+    """A channel network on the bond face of a layered bar of ``size`` with edges rounded
+    ``edge_mm``, and its process block: a feed along the bar's axis from the inlet face,
+    perhaps a branch off it to one side, and a chamber row on the feed."""
+    fields = void_kinds()["channels"].FIELDS
+    rows = declared(fields, "rows").fields
+    length, width, height = size
+    # The socket round the groove's mouth needs its radius and a wall below it.
+    least = max(3.0, edge_mm + 0.5)
+    base = number(draw, declared(BLOCKS["process"], "base_mm"), least,
+                  max(least, height / 2.0))
+    z = -height / 2.0 + base
+    w = number(draw, declared(fields, "width_mm"), 1.0, 2.5)
+    h = number(draw, declared(fields, "height_mm"), 0.8, 2.0)
+    split = number(draw, declared(fields, "width_mm"), 0.3 * length, 0.5 * length)
+    end = 0.85 * length
+    paths = [[[0.0, 0.0], [split, 0.0], [end, 0.0]]]
+    side = width / 2.0 - 3.0
+    if side > w + 2.0 and draw(st.booleans()):
+        off = number(draw, declared(fields, "width_mm"), w + 2.0, side)
+        paths.append([[split, 0.0], [split + 4.0, off], [end, off]])
+    along = number(draw, declared(rows, "length_mm"), 2.0, 4.0)
+    pitch = number(draw, declared(rows, "pitch_mm"), along + 1.0, along + 3.0)
+    start = number(draw, declared(rows, "start_mm"), split + 3.0, split + 6.0)
+    # As many chambers as the feed's second segment holds (more are refused by a line).
+    room = max(int((end - start - along) / pitch) + 1, 1)
+    count = number(draw, declared(rows, "count"), 1, min(room, 4))
+    row = {"path": 0, "count": count, "pitch_mm": pitch, "start_mm": start,
+           "length_mm": along,
+           "width_mm": number(draw, declared(rows, "width_mm"), w + 1.0, max(w + 1.0,
+                                                                           width - 4.0)),
+           "height_mm": number(draw, declared(rows, "height_mm"), h + 0.5,
+                               max(h + 0.5, height - base - 2.0)),
+           "corner_radius_mm": number(draw, declared(rows, "corner_radius_mm"), 0.0, 0.5)}
+    net = {"kind": "channels", "width_mm": w, "height_mm": h,
+           "corner_radius_mm": number(draw, declared(fields, "corner_radius_mm"), 0.0,
+                                      0.3 * min(w, h)),
+           "z_mm": z, "paths": paths, "rows": [row]}
+    return net, {"kind": "layered", "base_mm": base, "draft_deg": 1.0}
 
 
 @st.composite
@@ -248,9 +291,15 @@ def recipe_text(draw) -> str:
     body_kind, void_kind = draw(st.sampled_from(PAIRS))
     b, size = draw(body(body_kind))
     cut = void_kind == "slits"
-    v = draw(void("chambers" if cut else void_kind, size))
+    process = None
+    if void_kind == "channels":
+        v, process = draw(channels(size, b.get("edge_radius_mm", 0.0)))
+    else:
+        v = draw(void("chambers" if cut else void_kind, size))
     upright = b.pop("parting", 0) is None
     doc: dict = {"name": "drawn", "body": b, "voids": [v]}
+    if process is not None:
+        doc["process"] = process
     if cut:
         # Slits sit between the chambers of a row and need a plane across z below them.
         doc["voids"].append(draw(slits(v, size)))
@@ -265,6 +314,10 @@ def recipe_text(draw) -> str:
                                                  max(3.0, entry + 0.5) + 4.0),
                     "socket_depth_mm": number(draw, declared(BLOCKS["inlet"],
                                                              "socket_depth_mm"), 3.0, 10.0)}
+    if process is not None:  # the groove's mouth, its section inside the socket
+        reach = math.hypot(v["width_mm"] / 2.0, v["height_mm"] / 2.0)
+        doc["inlet"]["socket_diameter_mm"] = 2.0 * reach + 0.5
+        doc["inlet"]["center_mm"] = [0.0, v["z_mm"] + v["height_mm"] / 2.0]
     doc["material"] = {"grade": draw(st.sampled_from(GRADE_NAMES))}
     if void_kind == "annulus":
         # A closed channel's core is lost (a pulled one is refused by a line, which the
@@ -293,10 +346,18 @@ def report(request):
                                  HealthCheck.filter_too_much))
 @given(recipe_text())
 def test_drawn_recipe_is_refused_by_a_field_line_or_builds_to_a_verdict(text):
-    from soft_molds.pipeline import build
+    from soft_molds.pipeline import build, build_steps
 
     try:
         recipe = planned_from_text(text, "drawn.yaml", "drawn")
+        if recipe.multi_step:  # a channel network, cast layered: every step's parts
+            steps = build_steps(recipe)
+            v = verdict(steps.findings)
+            OUTCOMES[f"built {v}"] += 1
+            event(f"built {v}")
+            assert all(p.report.ok for s in steps.steps for p in s.parts)
+            assert steps.silicone_volume_mm3 > 0.0
+            return
         molds = build(recipe)
     except RecipeError as exc:
         lines = exc.lines()

@@ -37,20 +37,30 @@ PICK_TOL_MM = 0.05
 
 
 def fin_drafts(mesh: TriMesh, cuts: Sequence[SlitCut], pull: Sequence[float],
-               y_range_mm: tuple[float, float]) -> tuple[float, tuple[float, float, float]]:
+               y_range_mm: tuple[float, float] | None, inside_span_mm: float = 0.0
+               ) -> tuple[float, tuple[float, float, float]]:
     """Least draft (deg) over the side-wall facets of every fin, and where (mm); (nan,
-    origin) when no facet is found."""
+    origin) when no facet is found. Facets are picked in each slit's own frame (a turned
+    slit's x runs along its row): within ``y_range_mm`` of world y (the body's extent), or
+    without it within each slit's span less ``inside_span_mm`` at either end."""
     c, n, _ = face_normals(mesh)
     p = np.asarray(pull, dtype=np.float64)
     pick = np.zeros(len(c), dtype=bool)
     for cut in cuts:
-        z = c[:, 2]
+        local = cut.to_local(c)
+        z = local[:, 2]
         inside_z = (z > cut.bottom_z_mm + cut.round_mm) & (z < cut.top_z_mm - PICK_TOL_MM)
         half = cut.width_bottom_mm / 2.0 + (z - cut.bottom_z_mm) * cut.lean
-        inside_x = np.abs(c[:, 0] - cut.center_x_mm) <= half + PICK_TOL_MM
-        pick |= inside_z & inside_x
-    pick &= (c[:, 1] > y_range_mm[0]) & (c[:, 1] < y_range_mm[1])
-    pick &= np.abs(n[:, 0]) >= WALL_NORMAL_X
+        inside_x = np.abs(local[:, 0] - cut.center_x_mm) <= half + PICK_TOL_MM
+        t = math.radians(cut.angle_deg)
+        across = np.abs(n[:, 0] * math.cos(t) + n[:, 1] * math.sin(t)) >= WALL_NORMAL_X
+        here = inside_z & inside_x & across
+        if y_range_mm is None:
+            here &= (np.abs(local[:, 1] - cut.center_y_mm)
+                     < cut.span_mm / 2.0 - inside_span_mm)
+        pick |= here
+    if y_range_mm is not None:
+        pick &= (c[:, 1] > y_range_mm[0]) & (c[:, 1] < y_range_mm[1])
     if not pick.any():
         return math.nan, (0.0, 0.0, 0.0)
     draft = np.degrees(np.arcsin(np.clip(-(n[pick] @ p), -1.0, 1.0)))

@@ -104,8 +104,11 @@ def predict_motion(r: Recipe, cast: TriMesh, walls: Sequence[WallPressure],
     None."""
     e = r.material.silicone.youngs_modulus_mpa()
     # A body without a long axis (a ring) is no beam along x: no model applies (the
-    # ``motion`` check's note says so).
+    # ``motion`` check's note says so); nor does one to voids without one (a channel
+    # network whose arms turn away from x).
     if e is None or not r.voids or not getattr(type(r.body), "LONG_AXIS", True):
+        return None
+    if not all(getattr(type(v), "LONG_AXIS", True) for v in r.voids):
         return None
     voids = r.void_primitives()
     lo, hi = bounds_of(tuple(p for i in pressurised(r) for p in voids[i]))

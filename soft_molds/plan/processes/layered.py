@@ -25,12 +25,14 @@ import numpy as np
 
 from ...errors import Problem
 from ...recipe.fields import MIN_SIZE_MM
+from ...recipe.kinds.channels import Channels
 from ...recipe.model import Recipe
 from ...recipe.outline import PieceOutline, RoundedPolygon
 from ...recipe.primitives import RoundedBox, Slab
 from ..lines import LineOf
 from ..model import CastingStep, Footprint, Layer, LayerKind, Post
 from . import casting_process
+from .layered_network import network_posts, network_problems
 
 #: Step names, in pour order (output folders step-1-chambered, step-2-base).
 CHAMBERED, BASE = "chambered", "base"
@@ -49,7 +51,7 @@ def _problems(r: Recipe, line: LineOf) -> list[Problem]:
 def steps(r: Recipe) -> tuple[CastingStep, ...]:
     bond = bond_z_mm(r)
     foot = footprint(r)
-    posts = chamber_posts(r) + (feed_post(r),)
+    posts = all_posts(r)
     hole = (None if foot.outline is None
             else overflow_xy_mm(foot, posts, r.mold.vent_diameter_mm))
     chambered = Layer(LayerKind.CHAMBERED, bond, foot, posts, r.mold.clearance_mm,
@@ -58,6 +60,22 @@ def steps(r: Recipe) -> tuple[CastingStep, ...]:
     base = Layer(LayerKind.BASE, bond, foot, (), r.mold.clearance_mm, r.mold.wall_mm, inset)
     return (CastingStep(CHAMBERED, (), (), None, None, layer=chambered),
             CastingStep(BASE, (), (), None, None, layer=base))
+
+
+def all_posts(r: Recipe) -> tuple[Post, ...]:
+    """Every post of the chambered step: a channel network's, or a chamber row's and its
+    feed groove's."""
+    net = network(r)
+    if net is not None:
+        return network_posts(net, 0, bond_z_mm(r), r.process.draft_deg, FEED_OVERRUN_MM)
+    return chamber_posts(r) + (feed_post(r),)
+
+
+def network(r: Recipe) -> Channels | None:
+    """The recipe's channel network, when its one void is one."""
+    if len(r.voids) == 1 and isinstance(r.voids[0], Channels):
+        return r.voids[0]
+    return None
 
 
 def body_box(r: Recipe) -> RoundedBox | None:
@@ -221,10 +239,13 @@ def row_problems(r: Recipe, line: LineOf) -> list[Problem]:
         return [Problem(path, "cannot be cast layered", line(path),
                         [i.face.value for i in r.inlets],
                         "one inlet on the start face (x = 0)")]
+    net = network(r)
+    if net is not None:
+        return out + network_problems(r, net, 0, bond, line)
     if len(r.voids) != 1 or getattr(r.voids[0], "KIND", None) != "chambers":
         return [Problem("voids", "cannot be cast layered", line("voids"),
                         ", ".join(getattr(v, "KIND", "?") for v in r.voids),
-                        "one chambers entry")]
+                        "one chambers entry or one channels entry")]
     tan = math.tan(math.radians(r.process.draft_deg))
     for p, c in zip(chamber_posts(r), r.voids[0].chamber_boxes(r.body_length_mm)):  # type: ignore[attr-defined]
         bottom = c.center_mm[2] - c.size_mm[2] / 2.0

@@ -23,6 +23,8 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any, ClassVar
 
+import numpy as np
+
 from ...errors import Problem
 from ..contracts import BodyKind, Entry
 from ..cuts import SlitCut
@@ -31,6 +33,7 @@ from ..membranes import Membrane
 from ..primitives import Primitive, union_sdf
 from ..registry import void_kind
 from .chambers import Chambers
+from .channels import Channels, point_along
 
 #: Body kinds a slit row can be cut into: a flat top face over the whole row.
 BODY_KINDS = ("bar",)
@@ -115,6 +118,9 @@ class Slits:
     def cuts(self, body: BodyKind, voids: Sequence[object]) -> tuple[SlitCut, ...]:
         """One cut per gap of the chamber row (x order), for a body and row that passed
         :meth:`fit`."""
+        net = _network(voids)
+        if net is not None:
+            return self._network_cuts(body, net)
         row = _row(voids)
         if row is None:
             return ()
@@ -135,6 +141,9 @@ class Slits:
         in, the walls it leaves to the chambers and the feed channel, the top land between
         two slits (it must hold a vent of ``vent_mm``), the span, the parting plane its fins
         need and the process."""
+        net = _network(voids)
+        if net is not None:
+            return self._fit_network(body, net, min_wall_mm, process_kind, path)
         kind = getattr(body, "KIND", "?")
         if kind not in BODY_KINDS:
             return [Problem(f"{path}.kind", f"is cut into a {' or '.join(BODY_KINDS)} body "
@@ -205,6 +214,77 @@ class Slits:
         return out
 
 
+    def _network_cuts(self, body: BodyKind, net: Channels) -> tuple[SlitCut, ...]:
+        """One cut in the middle of each gap between neighbouring chambers of every row of
+        a channel network, turned with the row's path (row order, then along the row); its
+        span runs across the path through both side faces of the body there (or
+        ``span_mm``)."""
+        _, hi = _body_bounds(body)
+        prims = body.primitives()
+        out = []
+        for j in range(len(net.rows)):
+            row = net.row(j)
+            spans = row.spans_mm()
+            for (_, a_end), (b_start, _) in zip(spans, spans[1:]):
+                (x, y), ang = point_along(net.paths[row.path], (a_end + b_start) / 2.0)
+                if self.span_mm is None:
+                    z = hi[2] - self.depth_mm / 2.0
+                    span = 2.0 * (_reach_across(prims, (x, y, z), ang) + THROUGH_MM)
+                else:
+                    span = self.span_mm
+                out.append(SlitCut(x, y, span, hi[2], self.depth_mm, self.width_mm,
+                                   self.round_mm, self.draft_deg, ang))
+        return tuple(out)
+
+    def _fit_network(self, body: BodyKind, net: Channels, min_wall_mm: float,
+                     process_kind: str, path: str) -> list[Problem]:
+        """Slits between the chambers of a channel network's rows: the layered process (the
+        chambered tray's floor is the top face, its fins stand on it), room for the slit
+        and the least wall on either side of it in every gap, the least wall above the
+        channel under it, and the least wall to every other part of the network."""
+        if process_kind != "layered":
+            return [Problem("process.kind", "does not cut slits between the chambers of a "
+                            "channel network (the layered tray's floor carries their fins)",
+                            None, process_kind, "layered")]
+        out: list[Problem] = []
+        if all(net.row(j).count < 2 for j in range(len(net.rows))):
+            return [Problem(f"{path}.kind", "needs a chamber row to sit between", None,
+                            "rows of 1 chamber", "a row of the channel network with count "
+                            "2 or more")]
+        for j in range(len(net.rows)):
+            row = net.row(j)
+            if row.count < 2:
+                continue
+            gap = row.pitch_mm - row.length_mm
+            most = gap - 2.0 * min_wall_mm
+            if self.width_mm > most:
+                return [Problem(f"{path}.width_mm", f"leaves less than checks.min_wall_mm "
+                                f"({min_wall_mm:g} mm) to the chambers of rows[{j}] (the gap "
+                                f"between them is {gap:g} mm)", None, self.width_mm,
+                                f"at most {max(most, 0.0):.3g} mm")]
+        _, hi = _body_bounds(body)
+        floor = net.z_mm + net.height_mm + min_wall_mm
+        if self.depth_mm > hi[2] - floor:
+            return [Problem(f"{path}.depth_mm", "leaves less than checks.min_wall_mm "
+                            f"({min_wall_mm:g} mm) above the channels (their top at z = "
+                            f"{net.z_mm + net.height_mm:g} mm)", None, self.depth_mm,
+                            f"at most {hi[2] - floor:.3g} mm")]
+        prims = net.primitives(0.0)
+        for c in self._network_cuts(body, net):
+            pts = c.surface_samples(SAMPLE_SPACING_MM, y_range_mm=(
+                c.center_y_mm - c.span_mm / 2.0 + THROUGH_MM,
+                c.center_y_mm + c.span_mm / 2.0 - THROUGH_MM))
+            wall = float(union_sdf(prims, pts).min())
+            if wall < min_wall_mm - 1e-6:
+                out.append(Problem(f"{path}.depth_mm", f"leaves {max(wall, 0.0):.2f} mm of "
+                                   f"silicone to the channel network (the slit at ("
+                                   f"{c.center_x_mm:.3g}, {c.center_y_mm:.3g}) mm)", None,
+                                   self.depth_mm, f"a slit at least checks.min_wall_mm "
+                                   f"({min_wall_mm:g} mm) from every chamber and channel: "
+                                   "shallower or narrower"))
+                break
+        return out
+
     def _other_voids(self, row: Chambers, voids: Sequence[object], body: BodyKind,
                      min_wall_mm: float, path: str) -> list[Problem]:
         """A slit closer than ``min_wall_mm`` to a cavity void other than its chamber row
@@ -230,6 +310,39 @@ class Slits:
                                     f"a slit at least checks.min_wall_mm ({min_wall_mm:g} mm) "
                                     f"from voids[{j}]: shallower, or move that void")]
         return []
+
+
+def _network(voids: Sequence[object]) -> Channels | None:
+    nets = [v for v in voids if isinstance(v, Channels)]
+    return nets[0] if len(nets) == 1 else None
+
+
+def _reach_across(prims: Sequence[Primitive], at: tuple[float, float, float],
+                  angle_deg: float) -> float:
+    """How far the body reaches from ``at`` across the direction ``angle_deg`` (mm): the
+    larger of the two distances, left and right, to where the body's exact distance first
+    turns positive, found on a 0.1 mm grid over the body's bounds and refined twice on
+    grids a hundred times finer (to 1e-5 mm)."""
+    t = math.radians(angle_deg)
+    perp = np.array([-math.sin(t), math.cos(t), 0.0])
+    base = np.asarray(at, dtype=float)
+    body = tuple(prims)
+    lo = np.min([p.bounds()[0] for p in body], axis=0)
+    hi = np.max([p.bounds()[1] for p in body], axis=0)
+    far = float(np.linalg.norm(hi - lo)) + 1.0
+    most = 0.0
+    for sign in (1.0, -1.0):
+        start, step, n = 0.0, 0.1, int(far / 0.1) + 2
+        for _ in range(3):
+            ds = start + step * np.arange(n)
+            outside = np.flatnonzero(union_sdf(body, base + sign * ds[:, None] * perp) > 0.0)
+            if len(outside) == 0:
+                break
+            k = int(outside[0])
+            start, step, n = float(ds[max(k - 1, 0)]), step / 100.0, 101
+        else:
+            most = max(most, start + 100.0 * step)
+    return most
 
 
 def _row(voids: Sequence[object]) -> Chambers | None:
