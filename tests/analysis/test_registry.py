@@ -31,7 +31,8 @@ from soft_molds.analysis.registry import (
 )
 from soft_molds.analysis.review import run_checks
 
-BUILT_IN = ("draft", "core-draft", "core-extraction", "drain", "core-support", "silicone-wall",
+BUILT_IN = ("draft", "core-draft", "plate-release", "core-extraction", "drain", "core-support",
+            "silicone-wall",
             "trapped-air", "build-volume", "fin-print", "fin-draft", "pressure", "motion")
 
 
