@@ -59,7 +59,7 @@ MAX_VOIDS = 16
 #: recipe is far likelier written in centimetres than meant (a 7 x 1.6 x 1.4 "bar").
 SCALE_HINT_BELOW_MM = 5.0
 #: A network's mouth this close to x = 0 (mm, float noise) is on the inlet face, where a
-#: socket block is still read.
+#: socket block is still read; this close to the outline, on it.
 MOUTH_ON_FACE_MM = 1e-6
 
 Progress = Callable[[int, int], None]
@@ -350,7 +350,8 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
         inlets_v = [dict(inlets_v[0], center_mm=(0.0, 0.0))]
     elif getattr(voids[0], "MOUTH_ON_OUTLINE", False):
         # A network opening on the outline: its mouth is the first path's first point.
-        problems.extend(_mouth_problems(top, voids[0].mouth_mm()))
+        problems.extend(_mouth_problems(top, voids[0].mouth_mm(), abs(
+            voids[0].mouth_offset_mm(body.primitives())) <= MOUTH_ON_FACE_MM))
         if problems:
             raise refused()
         socketless = not any(top.node(k) is not None for k in ("inlet", "inlets"))
@@ -533,14 +534,16 @@ def _no_socket_problems(top: MapReader, outer: list) -> list[Problem]:
     return []
 
 
-def _mouth_problems(top: MapReader, mouth_mm: tuple[float, float]) -> list[Problem]:
+def _mouth_problems(top: MapReader, mouth_mm: tuple[float, float], on_outline: bool
+                    ) -> list[Problem]:
     """A void whose mouth lies on the body's outline (a kind with ``MOUTH_ON_OUTLINE``,
     see :mod:`.kinds.channels`) needs no tube socket: the tube is sealed into the groove
     where it opens. A socket block is still read where a socket can be (the mouth on the
-    inlet face x = 0, where it is checked as before); with the mouth elsewhere it is
-    refused (one line)."""
+    inlet face x = 0, where it is checked as before); with the mouth elsewhere on the
+    outline it is refused (one line). A mouth off the outline is the void's own problem
+    (its wall check says where), whatever socket is given."""
     x0, y0 = mouth_mm
-    if abs(x0) <= MOUTH_ON_FACE_MM:
+    if abs(x0) <= MOUTH_ON_FACE_MM or not on_outline:
         return []
     for key in ("inlet", "inlets"):
         node = top.node(key)

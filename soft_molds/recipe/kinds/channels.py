@@ -274,6 +274,12 @@ class Channels:
         x0, y0 = self.paths[0][0]
         return (x0, y0)
 
+    def mouth_offset_mm(self, body: Sequence[Primitive]) -> float:
+        """The body's signed distance at the mouth, on the channel's mid-height (mm; 0 on
+        the outline, negative inside)."""
+        x0, y0 = self.mouth_mm()
+        return float(union_sdf(tuple(body), np.array([[x0, y0, self._z_mid]]))[0])
+
     def in_mouth(self, pts: np.ndarray, min_wall_mm: float) -> np.ndarray:
         """Which points (n, 3) lie in the open mouth, where the groove meets the outline on
         purpose: within the section's half diagonal + ``min_wall_mm`` of the mouth (mm,
@@ -324,7 +330,7 @@ class Channels:
         pieces that do not join keeping ``min_wall_mm`` apart: one located line each."""
         out: list[Problem] = []
         x0, y0 = self.paths[0][0]
-        off = union_sdf(body, np.array([[x0, y0, self._z_mid]]))[0]
+        off = self.mouth_offset_mm(body)
         if abs(off) > ON_PATH_MM:
             where = "inside" if off < 0.0 else "outside"
             out.append(Problem(f"{path}.paths[0][0]", f"puts the inlet {where} the body",
