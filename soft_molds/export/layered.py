@@ -22,6 +22,8 @@ from ..analysis.overmold import OvermoldMoldSet, OvermoldStep
 from ..analysis.plates import PlateItem, posed_vertices
 from ..analysis.printability import PrintPlan
 from ..plan.model import Footprint
+from ..recipe.kinds.channels import Channels
+from ..recipe.model import Recipe
 from ..recipe.outline import Arc2, Line2
 from ..units import mm3_to_cm3
 from ..version import __version__
@@ -177,8 +179,7 @@ def card_text(m: LayeredMoldSet, files: Mapping[str, bytes]) -> bytes:
              "Posts drafted "
              f"{r.process.draft_deg:g} deg (least measured on the mesh: "
              f"{first.least_post_draft_deg:.3f} deg).", "",
-             "The feed groove opens on the inlet face: seal a tube into it with a drop of "
-             "the same silicone.", ""]
+             mouth_text(r), ""]
     lines += _motion_lines(m)
     lines += ["## Parts to print", ""]
     lines += print_lines(m, files)
@@ -190,6 +191,32 @@ def card_text(m: LayeredMoldSet, files: Mapping[str, bytes]) -> bytes:
     lines += ["", "## Cautions", ""]
     lines += [f"- {c}" for c in CAUTIONS]
     return ("\n".join(lines) + "\n").encode()
+
+
+def mouth_text(r: Recipe) -> str:
+    """Where the tube goes: the inlet face, or a channel network's mouth on the outline
+    with no socket (x, y in mm; on a hub, the mouth's bearing from its centre, deg
+    counter-clockwise from +x)."""
+    v = r.voids[0] if r.voids else None
+    if not isinstance(v, Channels) or r.inlets:
+        return ("The feed groove opens on the inlet face: seal a tube into it with a drop "
+                "of the same silicone.")
+    x0, y0 = v.mouth_mm()
+    where = f"x = {_r2(x0):g}, y = {_r2(y0):g} mm"
+    hub = getattr(r.body, "hub_center_mm", None)
+    centre = hub() if hub is not None else None
+    if centre is not None:
+        bearing = math.degrees(math.atan2(y0 - centre[1], x0 - centre[0])) % 360.0
+        radius = getattr(r.body, "hub_diameter_mm", 0.0) / 2.0
+        on_edge = abs(math.dist((x0, y0), centre) - radius) < 1e-3
+        where = (f"on the hub's edge at {_r2(bearing):g} deg, {where}" if on_edge else
+                 f"at {_r2(bearing):g} deg from the hub's centre, {where}")
+    return (f"The feed groove opens on the body's outline {where} (there is no socket): "
+            "seal a tube into it with a drop of the same silicone.")
+
+
+def _r2(x: float) -> float:
+    return round(float(x), 2) + 0.0  # + 0.0: no "-0.0" in the text
 
 
 def _r4(x: float) -> float:

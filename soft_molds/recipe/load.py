@@ -58,6 +58,9 @@ MAX_VOIDS = 16
 #: even the thinnest wall allowed (checks.min_wall_mm >= 0.3 mm a side: 4.6 mm), so such a
 #: recipe is far likelier written in centimetres than meant (a 7 x 1.6 x 1.4 "bar").
 SCALE_HINT_BELOW_MM = 5.0
+#: A network's mouth this close to x = 0 (mm, float noise) is on the inlet face, where a
+#: socket block is still read; this close to the outline, on it.
+MOUTH_ON_FACE_MM = 1e-6
 
 Progress = Callable[[int, int], None]
 """Called as ``progress(done, total)`` after each variant is validated."""
@@ -338,19 +341,29 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
     if problems:
         raise refused()
 
+    socketless = not voids
     if not voids:
         # No cavity void: the outside cut inflates (an open groove); there is no socket.
         problems.extend(_no_socket_problems(top, outer))
         if problems:
             raise refused()
         inlets_v = [dict(inlets_v[0], center_mm=(0.0, 0.0))]
+    elif getattr(voids[0], "MOUTH_ON_OUTLINE", False):
+        # A network opening on the outline: its mouth is the first path's first point.
+        problems.extend(_mouth_problems(top, voids[0].mouth_mm(), abs(
+            voids[0].mouth_offset_mm(body.primitives())) <= MOUTH_ON_FACE_MM))
+        if problems:
+            raise refused()
+        socketless = not any(top.node(k) is not None for k in ("inlet", "inlets"))
+        if socketless or inlets_v[0]["center_mm"] is None:
+            inlets_v[0] = dict(inlets_v[0], center_mm=voids[0].entry()[0])
     elif inlets_v[0]["center_mm"] is None:
         inlets_v[0]["center_mm"] = voids[0].entry()[0]
     inlet_v = inlets_v[0]
     # Default placements keep clear of the start face's sockets (the only face a void's
     # default placement starts from).
     start_depth = max((v["socket_depth_mm"] for v in inlets_v if v["face"] == "start"),
-                      default=0.0)
+                      default=0.0) if not socketless else 0.0
     voids = _after_socket(body, voids, start_depth + blocks["checks"]["min_wall_mm"])
     parting_v = blocks["parting"]
     if parting_v["axis"] is None and parting_v["offset_mm"] is None:
@@ -409,7 +422,7 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
         name=name, label=label, description=vals["description"] or "", body=body,
         voids=tuple(voids),
         inlets=tuple(Inlet(**dict(v, face=InletFace(v["face"]))) for v in inlets_v
-                     if voids),
+                     if not socketless),
         parting=Parting(**parting_v),
         mold=MoldSettings(**blocks["mold"]), checks=Checks(**blocks["checks"]),
         mesh=MeshSettings(**blocks["mesh"]),
@@ -518,6 +531,29 @@ def _no_socket_problems(top: MapReader, outer: list) -> list[Problem]:
                             "enters through the collar that closes the groove", node.key_line
                             or node.line, node.plain(), "leave out the inlet block (put "
                             "the tube's port in the collar, at the groove's mid-height)")]
+    return []
+
+
+def _mouth_problems(top: MapReader, mouth_mm: tuple[float, float], on_outline: bool
+                    ) -> list[Problem]:
+    """A void whose mouth lies on the body's outline (a kind with ``MOUTH_ON_OUTLINE``,
+    see :mod:`.kinds.channels`) needs no tube socket: the tube is sealed into the groove
+    where it opens. A socket block is still read where a socket can be (the mouth on the
+    inlet face x = 0, where it is checked as before); with the mouth elsewhere on the
+    outline it is refused (one line). A mouth off the outline is the void's own problem
+    (its wall check says where), whatever socket is given."""
+    x0, y0 = mouth_mm
+    if abs(x0) <= MOUTH_ON_FACE_MM or not on_outline:
+        return []
+    for key in ("inlet", "inlets"):
+        node = top.node(key)
+        if node is not None:
+            return [Problem(key, f"is given, but the channels' mouth (voids[0].paths[0][0] "
+                            f"= [{x0:g}, {y0:g}]) is not on the inlet face x = 0: the "
+                            "groove opens on the outline there and the tube is sealed into "
+                            "it, with no socket", node.key_line or node.line, node.plain(),
+                            "leave out the inlet block (a socket is read only round a "
+                            "mouth on x = 0)")]
     return []
 
 

@@ -65,7 +65,10 @@ def sanity_problems(r: Recipe, lines: dict[str, int]) -> list[Problem]:
     # first void, after that void's wall findings; one per group reaching two.
     void_prims = r.void_primitives()
     fed = fed_groups(r)
-    lost = {g[0]: g for g, js in fed if not js}
+    # A network opening on the outline with no socket is reached through its mouth.
+    lost = {g[0]: g for g, js in fed if not js
+            and not (not r.inlets and any(getattr(r.voids[i], "MOUTH_ON_OUTLINE", False)
+                                          for i in g))}
     for i, (void, prims) in enumerate(zip(r.voids, void_prims)):
         path = f"voids[{i}]"
         spacing = _spacing(prims)
@@ -74,7 +77,8 @@ def sanity_problems(r: Recipe, lines: dict[str, int]) -> list[Problem]:
         # Surface inside another primitive of the same void, or inside a socket, is not
         # a cast surface; keep only points on the void set's own boundary.
         inside_self = union_sdf(prims, samples) < -EPS
-        inside_socket = union_sdf(sockets, samples) < EPS
+        inside_socket = (union_sdf(sockets, samples) < EPS if sockets
+                         else np.zeros(len(samples), dtype=bool))
         samples = samples[~inside_self & ~inside_socket]
         own_walls = getattr(void, "wall_problems", None)
         if own_walls is not None:  # a network: located by the piece, joints measured

@@ -9,6 +9,8 @@ a chamber row on each. Bar z in [-6, 6], base 4 mm: the bond face is z = -2.
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import pytest
 from recipe_text import edit, line_of
 from refusals import refused_once
@@ -171,3 +173,43 @@ def test_slits_with_no_row_of_two_chambers_exit_2_on_their_kind(tmp_path, capsys
     path, line = refused_once(text, tmp_path, capsys)
     assert line.startswith(f"{path}:{line_of(text, 'kind: slits')}: voids[1].kind"), line
     assert "needs a chamber row to sit between" in line, line
+
+
+#: The four-arm hub gripper, fed from its mouth on the hub's edge at 180 deg with no socket.
+HUB = (Path(__file__).resolve().parents[2] / "recipes" / "seedling-hub-gripper.yaml"
+       ).read_text()
+
+MOUTH_CASES = [
+    # A socket block round a mouth that is not on the x = 0 face: refused on its key.
+    ("socket-for-a-mouth-on-the-hubs-edge", ("mold:\n", "inlet:\n  socket_diameter_mm: 3.2\n"
+                                             "  socket_depth_mm: 2\nmold:\n"),
+     "inlet", "is not on the inlet face x = 0", "inlet:"),
+    ("socket-list-for-a-mouth-on-the-hubs-edge",
+     ("mold:\n", "inlets:\n  - {socket_diameter_mm: 3.2, socket_depth_mm: 2, "
+                 "center_mm: [0, -1]}\nmold:\n"),
+     "inlets", "is not on the inlet face x = 0", "inlets:"),
+    # With no socket the mouth must still lie on the outline: 0.1 mm in is refused.
+    ("mouth-inside-the-hub", ("[[20.526911934581, 0], [35", "[[20.626911934581, 0], [35"),
+     "voids[0].paths[0][0]", "inside the body", "[[20.626911934581, 0]"),
+]
+
+
+@pytest.mark.parametrize(("name", "change", "field", "words", "at"), MOUTH_CASES,
+                         ids=[c[0] for c in MOUTH_CASES])
+def test_a_mouth_on_the_outline_refuses_a_socket_off_x0_with_one_located_line(
+        name, change, field, words, at, tmp_path, capsys, no_cad_work):
+    text = edit(HUB, *change)
+    path, line = refused_once(text, tmp_path, capsys)
+    assert line.startswith(f"{path}:{line_of(text, at)}: {field}"), line
+    assert words in line, line
+
+
+def test_a_network_with_its_mouth_on_x0_needs_no_socket(no_cad_work):
+    # The pad's mouth is on its x = 0 face: without the inlet block it has no socket (the
+    # groove opens there); with it, the socket is read and checked as before.
+    from recipe_text import planned_from_text
+
+    without = edit(TEXT, "inlet:\n  socket_diameter_mm: 4\n  socket_depth_mm: 6\n"
+                   "  center_mm: [0, -1]\n", "")
+    assert planned_from_text(without).inlets == ()
+    assert len(planned_from_text(TEXT).inlets) == 1

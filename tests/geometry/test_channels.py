@@ -66,10 +66,27 @@ def test_a_square_branch_off_a_straight_groove_takes_a_2h_by_h_rectangle_off():
     assert net.channel_volume_mm3() == pytest.approx(want, rel=1e-9)
 
 
+def test_the_hub_joint_of_a_feed_and_four_diagonal_branches_takes_cot_half_gap_off():
+    # The hub gripper's joint: a feed along +x ending at the hub's centre and four branches
+    # leaving it along the diagonals (45, 135, 225, 315 deg), so the grooves leave the
+    # point at 45, 135, 180, 225 and 315 deg. Plane geometry, by hand: in the sector
+    # between neighbouring directions g <= 90 deg apart, the union of two unit half strips
+    # is their two half bands less the triangle of each outside the sector (cot g / 2
+    # each) and less the quadrilateral they share (the origin, the far corner where both
+    # inner edges meet, and the two points of the rays 1 / sin g out: area 1 / sin g);
+    # cot g + 1 / sin g = cot(g / 2). No gap exceeds 180 deg, so the round post is covered.
+    # Gaps 90, 45, 45, 90, 90 deg: figure = -3 cot 45 - 2 cot 22.5 = -5 - 2 sqrt 2
+    # (cot 22.5 deg = 1 + sqrt 2).
+    c, d = 15.0, 42.0 / math.sqrt(2.0)
+    net = network([[[0, 0], [c, 0]]] + [[[c, 0], [c + sx * d, sy * d]]
+                                          for sx, sy in ((1, 1), (-1, 1), (-1, -1), (1, -1))])
+    want = section_area() * (15.0 + 4.0 * 42.0) + k_by_hand() * (-5.0 - 2.0 * math.sqrt(2.0))
+    assert net.channel_volume_mm3() == pytest.approx(want, rel=1e-9)
+
+
 def test_a_cross_of_four_grooves_takes_four_h_by_h_squares_off():
-    # The hub gripper's joint: a feed ending at the hub's centre and three branches leaving
-    # it square to each other; neighbouring half strips overlap in an h by h square, the
-    # opposite ones only along a line, and together they cover the round post.
+    # Neighbouring half strips at a right angle overlap in an h by h square, the opposite
+    # ones only along a line, and together they cover the round post.
     net = network([[[0, 0], [45, 0]], [[45, 0], [45, -42]], [[45, 0], [87, 0]],
                    [[45, 0], [45, 42]]])
     want = section_area() * 171.0 - 4.0 * k_by_hand()

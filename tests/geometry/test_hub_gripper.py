@@ -31,6 +31,11 @@ import trimesh
 from conftest import built_layered
 
 NAME = "seedling-hub-gripper"
+#: The plate's placement by hand (plane geometry): its leftmost point is on the tip
+#: rounding of the 135 and 225 deg arms, (45 - 3 + 7 - 3) / sqrt(2) + 3 from the hub's
+#: centre along -x, and the plate is moved so that point is on x = 0.
+HUB_CENTRE_MM = (3.0 + 46.0 / math.sqrt(2.0), 0.0)
+HUB_RADIUS_MM = 15.0
 #: As tests/geometry/test_melted_core.py: overlap of parts touching face to face (per mm3
 #: of the smaller), and how far the air reaches beyond the closed mold (mm).
 TOUCH_FRACTION = 5e-4
@@ -188,9 +193,16 @@ def test_the_two_pours_are_the_body_less_the_posts_and_the_slits(hub):
     layer = hub.steps[0].layer
     posts = m3.Manifold.batch_boolean([post_hull(p, p.draft_deg) for p in layer.posts],
                                       m3.OpType.Add)
-    # The feed's post runs on beyond the inlet face x = 0 (the arm's flat tip there).
-    inside = m3.Manifold.cube([500.0, 500.0, 500.0]).translate([0.0, -250.0, -250.0])
-    grooves = (posts ^ inside).volume()
+    # The feed's post runs on beyond the mouth, on the hub's edge at 180 deg between the
+    # two left arms, by FEED_OVERRUN_MM (1 mm): in a box round that overrun only the hub's
+    # disc is silicone (a 1024-gon, inscribed: 15 (1 - cos(pi / 1024)) = 7e-5 mm inside
+    # the arc, some 1e-4 mm3 over the 2 mm groove).
+    cx, cy = HUB_CENTRE_MM
+    box = m3.Manifold.cube([3.0, 6.0, 20.0]).translate([cx - HUB_RADIUS_MM - 2.0, cy - 3.0,
+                                                        -10.0])
+    disc = m3.Manifold.cylinder(40.0, HUB_RADIUS_MM, HUB_RADIUS_MM, 1024).translate(
+        [cx, cy, -20.0])
+    grooves = (posts - (box - disc)).volume()
     arm = r.body.arm_width_mm
     slits = sum(c.removed_mm3(span_mm=arm) for c in r.outer_cuts())
     want = body.volume_mm3() - grooves - slits
@@ -203,7 +215,7 @@ def test_the_two_pours_are_the_body_less_the_posts_and_the_slits(hub):
 
 def test_the_network_posts_at_no_draft_have_the_channels_closed_form_volume(hub):
     """The segment and joint posts stood straight (no draft, no run into the joints or
-    beyond the inlet) with the channel's square section: manifold3d's union against the
+    beyond the mouth) with the channel's square section: manifold3d's union against the
     kind's closed form for that section."""
     from dataclasses import replace
 
@@ -224,3 +236,24 @@ def test_the_network_posts_at_no_draft_have_the_channels_closed_form_volume(hub)
                       .translate([j[0], j[1], layer.bond_z_mm]))
     union = m3.Manifold.batch_boolean(solids, m3.OpType.Add)
     assert union.volume() == pytest.approx(square.channel_volume_mm3(), rel=1e-3)
+
+
+def test_the_feed_opens_on_the_hubs_edge_at_180_deg_through_a_notch_in_the_tray(hub):
+    """The mouth is on the hub's circle at 180 deg (the placement by hand above), and the
+    chambered tray, turned back into the actuator frame, is open there: trimesh's
+    containment finds air on the groove's line 0.5 mm beyond the mouth at mid-height of
+    the groove, and tray on either side of the notch (the post's half width plus the
+    locating clearance plus 0.5 mm out)."""
+    r = hub.recipe
+    (net,) = r.voids
+    mouth = net.paths[0][0]
+    assert mouth[0] == pytest.approx(HUB_CENTRE_MM[0] - HUB_RADIUS_MM, abs=1e-9)
+    assert mouth[1] == 0.0
+    layer = hub.steps[0].layer
+    tray = hub.steps[0].part("tray").mesh.to_trimesh()
+    z = layer.bond_z_mm + net.height_mm / 2.0
+    side = net.width_mm / 2.0 + layer.clearance_mm + 0.5
+    x = mouth[0] - 0.5
+    # The chambered step's parts are turned over (a half turn about x: y, z -> -y, -z).
+    pts = np.array([[x, 0.0, -z], [x, side, -z], [x, -side, -z]])
+    assert tray.contains(pts).tolist() == [False, True, True]

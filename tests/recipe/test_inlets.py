@@ -22,8 +22,11 @@ from soft_molds.recipe.model import Inlet, InletFace
 ROOT = Path(__file__).resolve().parents[2]
 RECIPES = ROOT / "recipes"
 # An open groove has no socket at all (its collar feeds it): not a one-socket recipe.
+#: Recipes with one socket: not a list, not the open groove (fed through its collar) and
+#: not a channel network written without a socket block (fed at its mouth on the outline).
 ONE_SOCKET = sorted(p for p in RECIPES.glob("*.yaml")
-                    if "inlets:" not in p.read_text() and "opens_to: outside" not in p.read_text())
+                    if "inlets:" not in p.read_text() and "opens_to: outside" not in p.read_text()
+                    and ("kind: channels" not in p.read_text() or "\ninlet:" in p.read_text()))
 INLET_BLOCK = "inlet:\n  socket_diameter_mm: 4\n  socket_depth_mm: 6\n"
 
 

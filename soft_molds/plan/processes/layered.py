@@ -233,13 +233,15 @@ def row_problems(r: Recipe, line: LineOf) -> list[Problem]:
     out: list[Problem] = []
     lo, _ = r.body_bounds()
     bond = bond_z_mm(r)
+    net = network(r)
+    if net is not None and not r.inlets:  # the groove opens on the outline: no socket
+        return out + network_problems(r, net, 0, bond, line)
     if len(r.inlets) != 1 or r.inlet.at_end:
         # The feed groove runs from the x = 0 face to the one row: one socket, there.
         path = "inlets" if "inlets" in r.lines else "inlet.face"
         return [Problem(path, "cannot be cast layered", line(path),
                         [i.face.value for i in r.inlets],
                         "one inlet on the start face (x = 0)")]
-    net = network(r)
     if net is not None:
         return out + network_problems(r, net, 0, bond, line)
     if len(r.voids) != 1 or getattr(r.voids[0], "KIND", None) != "chambers":

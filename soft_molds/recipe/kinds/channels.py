@@ -106,6 +106,10 @@ class Channels:
     #: Its chambers turn with their paths: no beam along x models the network (the
     #: motion models leave it out).
     LONG_AXIS: ClassVar[bool] = False
+    #: Its mouth is the first path's first point, anywhere on the body's outline: the
+    #: groove opens there and the tube is sealed into it, so it needs no tube socket (the
+    #: reader leaves ``Recipe.inlets`` empty; a socket is accepted only on the x = 0 face).
+    MOUTH_ON_OUTLINE: ClassVar[bool] = True
 
     FIELDS: ClassVar[tuple[Field, ...]] = (
         number("width_mm", "channel width across its path"),
@@ -265,6 +269,27 @@ class Channels:
         reach = math.hypot(self.width_mm / 2.0 - r, self.height_mm / 2.0 - r) + r
         return Entry((y0, self._z_mid), reach, x0)
 
+    def mouth_mm(self) -> tuple[float, float]:
+        """The mouth (x, y): the first path's first point, on the body's outline."""
+        x0, y0 = self.paths[0][0]
+        return (x0, y0)
+
+    def mouth_offset_mm(self, body: Sequence[Primitive]) -> float:
+        """The body's signed distance at the mouth, on the channel's mid-height (mm; 0 on
+        the outline, negative inside)."""
+        x0, y0 = self.mouth_mm()
+        return float(union_sdf(tuple(body), np.array([[x0, y0, self._z_mid]]))[0])
+
+    def in_mouth(self, pts: np.ndarray, min_wall_mm: float) -> np.ndarray:
+        """Which points (n, 3) lie in the open mouth, where the groove meets the outline on
+        purpose: within the section's half diagonal + ``min_wall_mm`` of the mouth (mm,
+        in plan). There the outline is nearer the groove than the least wall because the
+        groove opens through it, as a socket's mouth opens through its face; beyond it a
+        groove entering the outline at a slant is measured like any other wall."""
+        reach = self.entry().radius_mm + min_wall_mm
+        x0, y0 = self.mouth_mm()
+        return np.hypot(pts[:, 0] - x0, pts[:, 1] - y0) < reach
+
     def membranes(self, body_length_mm: float) -> tuple[Membrane, ...]:
         """Top, bottom and both side walls of every chamber, and the end walls of the first
         and last of each row (between chambers the walls are pressed from both sides)."""
@@ -305,7 +330,7 @@ class Channels:
         pieces that do not join keeping ``min_wall_mm`` apart: one located line each."""
         out: list[Problem] = []
         x0, y0 = self.paths[0][0]
-        off = union_sdf(body, np.array([[x0, y0, self._z_mid]]))[0]
+        off = self.mouth_offset_mm(body)
         if abs(off) > ON_PATH_MM:
             where = "inside" if off < 0.0 else "outside"
             out.append(Problem(f"{path}.paths[0][0]", f"puts the inlet {where} the body",
@@ -318,6 +343,8 @@ class Channels:
             keep = pts
             if sockets:
                 keep = pts[union_sdf(sockets, pts) >= 1e-6]
+            else:
+                keep = pts[~self.in_mouth(pts, min_wall_mm)]
             if len(keep) == 0:
                 continue
             d = union_sdf(body, keep)
