@@ -437,8 +437,8 @@ def test_drawn_recipe_is_refused_by_a_field_line_or_builds_to_a_verdict(text):
 
 
 #: The plate's pairs, drawn on their own: the draws above, fixed by ``derandomize``,
-#: reach no plate in 12 examples. A plate builds in 1 to 4 s of one core; the four drawn
-#: here are a chamber row cast layered and a one-shot bore, each in a hub and in a pad.
+#: reach no plate in 12 examples. A plate builds in 1 to 4 s of one core; the three drawn
+#: here: a chamber row cast layered in a hub and in a pad, a one-shot bore in a hub.
 PLATE_PAIRS = tuple(p for p in PAIRS if p[0] == "plate")
 PLATE_EXAMPLES = int(os.environ.get("SOFT_MOLDS_PROPERTY_EXAMPLES", "3"))
 
