@@ -190,8 +190,9 @@ def plate(draw, out: dict, fields: tuple[Field, ...]
     hub = number(draw, declared(fields, "hub_diameter_mm"), 20.0, 36.0)
     # A default tip keeps a flat half of the width: room for a socket and its wall.
     w = number(draw, declared(fields, "arm_width_mm"), 12.0, hub - 4.0)
-    # As many arms as fit round the hub evenly spaced, a hub arc of 1 mm between
-    # neighbours' sides (recipe/kinds/plate.py), and at most 6.
+    # As many arms as fit round the hub evenly spaced with a hub arc of 1 mm between
+    # neighbours' sides (the kind asks for MIN_SIZE_MM, recipe/kinds/plate.py; 1 mm leaves
+    # room for the drawn turns below), and at most 6.
     need = 2.0 * math.asin(w / hub) + 1.0 / (hub / 2.0)
     count = number(draw, declared(fields, "arm_count"), 2,
                    max(2, min(6, int(2.0 * math.pi / need))))
