@@ -39,6 +39,10 @@ SERVE_RADIAL_SLACK_MM = 0.05
 """Extra radius when deciding whether an opening reaches a plateau vertex (float noise)."""
 
 FLAT_MOUTH_TOL_MM = 0.01
+#: Least band of flat ceiling kept between a mouth and the ceiling's rim (mm): a mouth that
+#: only touches the rim leaves a face of zero width between them, which the mesher cannot
+#: triangulate (and the mold a knife edge there).
+MOUTH_RIM_BAND_MM = 0.1
 """A mouth whose lowest ceiling lies within this of its centre's height (mm) sits wholly on
 a flat top (float and chord noise)."""
 
@@ -609,8 +613,8 @@ def _rim_clearance(hp: HighPoint, q: np.ndarray, u: np.ndarray) -> np.ndarray | 
 def _mouth_point(hp: HighPoint, p: np.ndarray, radius_mm: float, u: np.ndarray) -> np.ndarray:
     """A point near ``p`` (the nearest on a quarter-radius grid within three radii, else
     the nearest on the way to the plateau's centre) whose whole vent mouth (a disc of
-    ``radius_mm`` seen along ``u``) lies over the plateau, i.e. at least ``radius_mm`` from
-    the plateau's rim in plan; ``p`` itself when there is none.
+    ``radius_mm`` seen along ``u``) lies over the plateau, i.e. at least ``radius_mm`` +
+    MOUTH_RIM_BAND_MM from the plateau's rim in plan; ``p`` itself when there is none.
 
     A mouth hanging over the rounded edge of a flat ceiling would leave a knife edge of
     mold between the vent and the cavity, too thin to print and apt to break into the cast.
@@ -631,7 +635,7 @@ def _mouth_point(hp: HighPoint, p: np.ndarray, radius_mm: float, u: np.ndarray) 
     clear = _rim_clearance(hp, q, u)
     if clear is None:
         return p
-    for k in np.flatnonzero(clear >= radius_mm - 1e-6).tolist():
+    for k in np.flatnonzero(clear >= radius_mm + MOUTH_RIM_BAND_MM).tolist():
         inside, b1, b2 = _shadow_coords(tris, q[k], u)
         if inside.any():
             j = int(np.flatnonzero(inside)[0])
