@@ -45,6 +45,13 @@ JOIN_MM = 1e-6
 #: Where the recipe's path points are measured from: the body's frame, or the centre of a
 #: plate's hub.
 ORIGINS = ("body", "hub")
+#: Decimals (of a mm) the points moved into the body's frame keep: the hub's centre is an
+#: irrational sum, and its last bits would otherwise reach the output's bytes; 1e-12 mm is
+#: far below anything printed, and a network written from the hub then has the same points
+#: as the one written in the body's frame to 12 decimals.
+MOVED_DECIMALS = 12
+#: A mouth nearer the outline than this (mm) is on it already (the rounding above).
+ON_OUTLINE_MM = 1e-12
 #: Step (mm) of the central differences that find the outline's normal at the mouth.
 NORMAL_STEP_MM = 1e-4
 
@@ -173,9 +180,9 @@ class Channels:
     def follow_body(self, body: BodyKind, path: str) -> tuple[Channels | None, list[Problem]]:
         """This network in the body's frame: as written with ``origin: body``; with
         ``origin: hub`` every point moved by the hub's centre (``hub_center_mm()`` of a
-        plate drawn with a hub), the mouth snapped onto the outline when it is within
-        ``ON_PATH_MM`` of it (float noise), or None and the problem (line None: the reader
-        locates it by path)."""
+        plate drawn with a hub; rounded to ``MOVED_DECIMALS``), the mouth snapped onto the
+        outline when it is within ``ON_PATH_MM`` of it (float noise), or None and the
+        problem (line None: the reader locates it by path)."""
         if self.origin == "body" or self.__dict__.get("_written") is not None:
             return self, []
         centre_of = getattr(body, "hub_center_mm", None)
@@ -188,7 +195,9 @@ class Channels:
                                   "body (paths in the body's frame), or hub with a plate "
                                   "drawn with hub_diameter_mm")]
         cx, cy = centre
-        moved = tuple(tuple((x + cx, y + cy) for x, y in pts) for pts in self.paths)
+        moved = tuple(tuple((round(x + cx, MOVED_DECIMALS) + 0.0,
+                             round(y + cy, MOVED_DECIMALS) + 0.0) for x, y in pts)
+                      for pts in self.paths)
         fitted = replace(self, paths=moved)
         fitted = replace(fitted, paths=fitted._snapped_mouth(tuple(body.primitives())))
         object.__setattr__(fitted, "_written", self.paths)
@@ -198,12 +207,13 @@ class Channels:
     def _snapped_mouth(self, body: tuple[Primitive, ...]
                        ) -> tuple[tuple[tuple[float, float], ...], ...]:
         """The paths with the mouth (and every point equal to it) moved onto the outline
-        along the outline's normal when it lies within ``ON_PATH_MM`` of it: a mouth
+        along the outline's normal when it lies within ``ON_PATH_MM`` of it (beyond the rounding
+        ``ON_OUTLINE_MM``): a mouth
         written on the hub's edge is on the outline by construction, and only float
         rounding of the hub's centre puts it a hair off. Farther off, unchanged (the wall
         check refuses it)."""
         off = self.mouth_offset_mm(body)
-        if off == 0.0 or abs(off) > ON_PATH_MM:
+        if abs(off) <= ON_OUTLINE_MM or abs(off) > ON_PATH_MM:
             return self.paths
         x0, y0 = self.mouth_mm()
         h, z = NORMAL_STEP_MM, self._z_mid
@@ -426,9 +436,9 @@ class Channels:
         off = self.mouth_offset_mm(body)
         if abs(off) > ON_PATH_MM:
             where = "inside" if off < 0.0 else "outside"
+            written = ", written from the hub's centre" if self._frame_words() else ""
             out.append(Problem(f"{path}.paths[0][0]", f"puts the inlet {where} the body",
-                               None, [x0, y0], "a point on the body's outline"
-                               f"{self._frame_words() and ', written from the hub centre'} "
+                               None, [x0, y0], f"a point on the body's outline{written} "
                                "(the groove opens there, where the tube is sealed in)"))
             return out
         pieces = self.pieces()
