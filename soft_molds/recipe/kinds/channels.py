@@ -235,12 +235,14 @@ class Channels:
         """The echo writes the paths as the recipe did, beside ``origin``."""
         return {"paths": self.written_paths()}
 
-    def _as_written(self, x: float, y: float) -> tuple[float, float]:
+    def as_written(self, x: float, y: float) -> tuple[float, float]:
         """A point (x, y) of the body's frame in the frame the recipe writes (mm)."""
         cx, cy = self.__dict__.get("_centre", (0.0, 0.0))
         return (x - cx + 0.0, y - cy + 0.0)
 
-    def _frame_words(self) -> str:
+    def frame_words(self) -> str:
+        """What follows a point written in the recipe's frame in a message ("" for the
+        body's frame)."""
         return " from the hub's centre" if self.__dict__.get("_centre") is not None else ""
 
     def mouth_written(self) -> str:
@@ -254,8 +256,8 @@ class Channels:
 
     def _fmt(self, p: np.ndarray) -> str:
         """A point of the body's frame (x, y, z) written in the recipe's frame."""
-        x, y = self._as_written(float(p[0]), float(p[1]))
-        return _fmt(np.array([x, y, float(p[2])])) + self._frame_words()
+        x, y = self.as_written(float(p[0]), float(p[1]))
+        return _fmt(np.array([x, y, float(p[2])])) + self.frame_words()
 
     # ---- geometry -------------------------------------------------------------------
 
@@ -298,8 +300,8 @@ class Channels:
             out.append(Piece(f"paths[{i}][{k + 1}]", f"paths[{i}] segment {k + 1}",
                              self.segment_bar(a, b), (a, b)))
         for p in self.joints():
-            jx, jy = self._as_written(*p)
-            out.append(Piece("paths", f"joint at ({jx:g}, {jy:g}){self._frame_words()}",
+            jx, jy = self.as_written(*p)
+            out.append(Piece("paths", f"joint at ({jx:g}, {jy:g}){self.frame_words()}",
                              RoundedRod("z", self.z_mm, self.height_mm, p, self.width_mm / 2.0,
                                         self.corner_radius_mm), (p, p)))
         for j, k, c, ang in self.chamber_frames():
@@ -436,7 +438,7 @@ class Channels:
         off = self.mouth_offset_mm(body)
         if abs(off) > ON_PATH_MM:
             where = "inside" if off < 0.0 else "outside"
-            written = ", written from the hub's centre" if self._frame_words() else ""
+            written = ", written from the hub's centre" if self.frame_words() else ""
             out.append(Problem(f"{path}.paths[0][0]", f"puts the inlet {where} the body",
                                None, [x0, y0], f"a point on the body's outline{written} "
                                "(the groove opens there, where the tube is sealed in)"))
