@@ -153,8 +153,10 @@ def integer(name: str, doc: str, default: object = REQUIRED, *, lo: int = 1,
     return Field(name, "integer", doc, default, "", lo, hi, False)
 
 
-def choice(name: str, doc: str, choices: Iterable[str], default: object = REQUIRED) -> Field:
-    return Field(name, "choice", doc, default, choices=tuple(choices))
+def choice(name: str, doc: str, choices: Iterable[str], default: object = REQUIRED, *,
+           echo_default: bool = True) -> Field:
+    return Field(name, "choice", doc, default, choices=tuple(choices),
+                 echo_default=echo_default)
 
 
 def text(name: str, doc: str, default: object = REQUIRED) -> Field:

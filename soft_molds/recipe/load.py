@@ -350,8 +350,9 @@ def _document_recipe(root: Node, source: str, default_name: str = "recipe",
         inlets_v = [dict(inlets_v[0], center_mm=(0.0, 0.0))]
     elif getattr(voids[0], "MOUTH_ON_OUTLINE", False):
         # A network opening on the outline: its mouth is the first path's first point.
-        problems.extend(_mouth_problems(top, voids[0].mouth_mm(), abs(
-            voids[0].mouth_offset_mm(body.primitives())) <= MOUTH_ON_FACE_MM))
+        problems.extend(_mouth_problems(top, voids[0].mouth_mm(), voids[0].mouth_written(),
+                                        abs(voids[0].mouth_offset_mm(body.primitives()))
+                                        <= MOUTH_ON_FACE_MM))
         if problems:
             raise refused()
         socketless = not any(top.node(k) is not None for k in ("inlet", "inlets"))
@@ -534,14 +535,15 @@ def _no_socket_problems(top: MapReader, outer: list) -> list[Problem]:
     return []
 
 
-def _mouth_problems(top: MapReader, mouth_mm: tuple[float, float], on_outline: bool
-                    ) -> list[Problem]:
+def _mouth_problems(top: MapReader, mouth_mm: tuple[float, float], written: str,
+                    on_outline: bool) -> list[Problem]:
     """A void whose mouth lies on the body's outline (a kind with ``MOUTH_ON_OUTLINE``,
     see :mod:`.kinds.channels`) needs no tube socket: the tube is sealed into the groove
     where it opens. A socket block is still read where a socket can be (the mouth on the
     inlet face x = 0, where it is checked as before); with the mouth elsewhere on the
     outline it is refused (one line). A mouth off the outline is the void's own problem
-    (its wall check says where), whatever socket is given."""
+    (its wall check says where), whatever socket is given. ``mouth_mm`` is in the body's
+    frame; ``written`` names the mouth as the recipe wrote it."""
     x0, y0 = mouth_mm
     if abs(x0) <= MOUTH_ON_FACE_MM or not on_outline:
         return []
@@ -549,7 +551,7 @@ def _mouth_problems(top: MapReader, mouth_mm: tuple[float, float], on_outline: b
         node = top.node(key)
         if node is not None:
             return [Problem(key, f"is given, but the channels' mouth (voids[0].paths[0][0] "
-                            f"= [{x0:g}, {y0:g}]) is not on the inlet face x = 0: the "
+                            f"= {written}) is not on the inlet face x = 0: the "
                             "groove opens on the outline there and the tube is sealed into "
                             "it, with no socket", node.key_line or node.line, node.plain(),
                             "leave out the inlet block (a socket is read only round a "

@@ -189,8 +189,10 @@ MOUTH_CASES = [
                  "center_mm: [0, -1]}\nmold:\n"),
      "inlets", "is not on the inlet face x = 0", "inlets:"),
     # With no socket the mouth must still lie on the outline: 0.1 mm in is refused.
-    ("mouth-inside-the-hub", ("[[20.526911934581, 0], [35", "[[20.626911934581, 0], [35"),
-     "voids[0].paths[0][0]", "inside the body", "[[20.626911934581, 0]"),
+    # (the line names the mouth as written, from the hub's centre).
+    ("mouth-inside-the-hub", ("[[-15, 0], [0, 0]]", "[[-14.9, 0], [0, 0]]"),
+     "voids[0].paths[0][0]", "(got [-14.9, 0.0]); allowed: a point on the body's outline, "
+     "written from the hub's centre", "[[-14.9, 0]"),
 ]
 
 
@@ -213,3 +215,29 @@ def test_a_network_with_its_mouth_on_x0_needs_no_socket(no_cad_work):
                    "  center_mm: [0, -1]\n", "")
     assert planned_from_text(without).inlets == ()
     assert len(planned_from_text(TEXT).inlets) == 1
+
+
+#: Paths measured from a hub's centre need a plate drawn with a hub: on a plate drawn by its
+#: corners and on a bar, ``origin: hub`` is refused on its own key.
+ORIGIN_CASES = [
+    ("hub-origin-on-a-polygon-plate",
+     edit(HUB, """  hub_diameter_mm: 30
+  arm_count: 4
+  arm_angles_deg: [45, 135, 225, 315]
+  arm_length_mm: 45          # hub centre to tip
+  arm_width_mm: 14
+  tip_round_mm: 3
+""", "  outline_mm: [[0, -40], [90, -40], [90, 40], [0, 40]]\n"), "drawn by outline_mm"),
+    ("hub-origin-on-a-bar", edit(TEXT, "    paths:\n", "    origin: hub\n    paths:\n"),
+     "body.kind is bar"),
+]
+
+
+@pytest.mark.parametrize(("name", "text", "words"), ORIGIN_CASES,
+                         ids=[c[0] for c in ORIGIN_CASES])
+def test_paths_from_a_hub_on_a_body_without_one_exit_2_on_origin(
+        name, text, words, tmp_path, capsys, no_cad_work):
+    path, line = refused_once(text, tmp_path, capsys)
+    where = line_of(text, "    origin: hub")
+    assert line.startswith(f"{path}:{where}: voids[0].origin"), line
+    assert words in line and "(got 'hub')" in line and "hub_diameter_mm" in line, line

@@ -43,8 +43,9 @@ def network_posts(v: Channels, index: int, bond_z_mm: float, draft_deg: float,
         out.append(Post(f"voids[{index}].paths[{i}] segment {k + 1}", centre,
                         (length + back + ahead, w), 0.0, bond_z_mm, h, draft_deg, ang))
     for p in joints:
-        out.append(Post(f"voids[{index}] joint at ({p[0]:g}, {p[1]:g})", p, (w, w), w / 2.0,
-                        bond_z_mm, h, draft_deg))
+        jx, jy = v.as_written(*p)  # named as the recipe wrote it
+        out.append(Post(f"voids[{index}] joint at ({jx:g}, {jy:g}){v.frame_words()}", p,
+                        (w, w), w / 2.0, bond_z_mm, h, draft_deg))
     for j, k, c, ang in v.chamber_frames():
         row = v.row(j)
         out.append(Post(f"voids[{index}].rows[{j}] chamber {k + 1}", c,

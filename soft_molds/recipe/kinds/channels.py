@@ -9,7 +9,11 @@ groove and chamber on the bond face (a branched core could not leave through one
 so the one-shot process refuses it).
 
 Frame (mm, deg): x from the inlet face x = 0, y across, z up; every path is a list of
-(x, y) points in the plane z = ``z_mm`` (the channels' and chambers' floor). A channel's
+(x, y) points in the plane z = ``z_mm`` (the channels' and chambers' floor). With
+``origin: hub`` the recipe writes them from the hub's centre of a plate drawn with a hub
+(x along +x, y along +y): :meth:`Channels.follow_body` moves them into the body's frame,
+which every method below works in, and keeps the points as written for the echo and for
+every message that names a point. A channel's
 section across its path is a ``width_mm`` by ``height_mm`` rectangle with its four edges
 rounded ``corner_radius_mm``; a chamber's along its path is ``length_mm`` by ``width_mm``
 by ``height_mm``, turned with its path's segment.
@@ -20,14 +24,14 @@ from __future__ import annotations
 import itertools
 import math
 from collections.abc import Mapping, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Any, ClassVar
 
 import numpy as np
 
 from ...errors import Problem
-from ..contracts import Entry
-from ..fields import Field, Record, integer, number, paths, records
+from ..contracts import BodyKind, Entry
+from ..fields import Field, Record, choice, integer, number, paths, records
 from ..membranes import Membrane
 from ..primitives import Primitive, RoundedRod, TurnedBar, union_sdf
 from ..registry import void_kind
@@ -38,6 +42,18 @@ ON_PATH_MM = 1e-6
 SAMPLE_MM = 0.5
 #: Overlap (mm) above which two pieces of the network are joined, not merely touching.
 JOIN_MM = 1e-6
+#: Where the recipe's path points are measured from: the body's frame, or the centre of a
+#: plate's hub.
+ORIGINS = ("body", "hub")
+#: Decimals (of a mm) the points moved into the body's frame keep: the hub's centre is an
+#: irrational sum, and its last bits would otherwise reach the output's bytes; 1e-12 mm is
+#: far below anything printed, and a network written from the hub then has the same points
+#: as the one written in the body's frame to 12 decimals.
+MOVED_DECIMALS = 12
+#: A mouth nearer the outline than this (mm) is on it already (the rounding above).
+ON_OUTLINE_MM = 1e-12
+#: Step (mm) of the central differences that find the outline's normal at the mouth.
+NORMAL_STEP_MM = 1e-4
 
 ROW_FIELDS: tuple[Field, ...] = (
     integer("path", "index of the path the row lies along (0: the first)", lo=0, hi=31),
@@ -121,6 +137,9 @@ class Channels:
         paths("paths", "polylines of the channels, [[x, y], ...]: the first from the inlet "
               "on the body's outline, each later one starting on an earlier one"),
         records("rows", "rows of chambers along the paths", ROW_FIELDS),
+        choice("origin", "where the points of paths are measured from: body (the body's "
+               "frame, x from the inlet face) or hub (the centre of a plate's hub, x along "
+               "+x, y along +y)", ORIGINS, "body", echo_default=False),
     )
     width_mm: float
     height_mm: float
@@ -128,6 +147,7 @@ class Channels:
     z_mm: float
     paths: tuple[tuple[tuple[float, float], ...], ...]
     rows: tuple[Record, ...]
+    origin: str = "body"
 
     @classmethod
     def cross_check(cls, v: Mapping[str, Any], path: str, line: int | None) -> list[Problem]:
@@ -154,6 +174,90 @@ class Channels:
         for j, rec in enumerate(v["rows"]):
             out += _row_problems(ChamberRow.of(rec), rec, lines, f"{path}.rows[{j}]", line)
         return out
+
+    # ---- frame ----------------------------------------------------------------------
+
+    def follow_body(self, body: BodyKind, path: str) -> tuple[Channels | None, list[Problem]]:
+        """This network in the body's frame: as written with ``origin: body``; with
+        ``origin: hub`` every point moved by the hub's centre (``hub_center_mm()`` of a
+        plate drawn with a hub; rounded to ``MOVED_DECIMALS``), the mouth snapped onto the
+        outline when it is within ``ON_PATH_MM`` of it (float noise), or None and the
+        problem (line None: the reader locates it by path)."""
+        if self.origin == "body" or self.__dict__.get("_written") is not None:
+            return self, []
+        centre_of = getattr(body, "hub_center_mm", None)
+        centre = centre_of() if centre_of is not None else None
+        if centre is None:
+            has = (f"body.kind is {body.KIND}" if centre_of is None else
+                   "the plate is drawn by outline_mm")
+            return None, [Problem(f"{path}.origin", "measures paths from the hub's centre, "
+                                  f"and the body has no hub ({has})", None, self.origin,
+                                  "body (paths in the body's frame), or hub with a plate "
+                                  "drawn with hub_diameter_mm")]
+        cx, cy = centre
+        moved = tuple(tuple((round(x + cx, MOVED_DECIMALS) + 0.0,
+                             round(y + cy, MOVED_DECIMALS) + 0.0) for x, y in pts)
+                      for pts in self.paths)
+        fitted = replace(self, paths=moved)
+        fitted = replace(fitted, paths=fitted._snapped_mouth(tuple(body.primitives())))
+        object.__setattr__(fitted, "_written", self.paths)
+        object.__setattr__(fitted, "_centre", (cx, cy))
+        return fitted, []
+
+    def _snapped_mouth(self, body: tuple[Primitive, ...]
+                       ) -> tuple[tuple[tuple[float, float], ...], ...]:
+        """The paths with the mouth (and every point equal to it) moved onto the outline
+        along the outline's normal when it lies within ``ON_PATH_MM`` of it (beyond the rounding
+        ``ON_OUTLINE_MM``): a mouth
+        written on the hub's edge is on the outline by construction, and only float
+        rounding of the hub's centre puts it a hair off. Farther off, unchanged (the wall
+        check refuses it)."""
+        off = self.mouth_offset_mm(body)
+        if abs(off) <= ON_OUTLINE_MM or abs(off) > ON_PATH_MM:
+            return self.paths
+        x0, y0 = self.mouth_mm()
+        h, z = NORMAL_STEP_MM, self._z_mid
+        probe = np.array([[x0 + h, y0, z], [x0 - h, y0, z], [x0, y0 + h, z], [x0, y0 - h, z]])
+        d = union_sdf(body, probe)
+        gx, gy = (d[0] - d[1]) / (2.0 * h), (d[2] - d[3]) / (2.0 * h)
+        norm = math.hypot(gx, gy)
+        if norm == 0.0:
+            return self.paths
+        to = (x0 - off * gx / norm, y0 - off * gy / norm)
+        return tuple(tuple(to if p == (x0, y0) else p for p in pts) for pts in self.paths)
+
+    def written_paths(self) -> tuple[tuple[tuple[float, float], ...], ...]:
+        """The paths as the recipe wrote them (from the hub's centre with ``origin: hub``)."""
+        written = self.__dict__.get("_written")
+        return written if written is not None else self.paths
+
+    def echo_extra(self) -> dict[str, Any]:
+        """The echo writes the paths as the recipe did, beside ``origin``."""
+        return {"paths": self.written_paths()}
+
+    def as_written(self, x: float, y: float) -> tuple[float, float]:
+        """A point (x, y) of the body's frame in the frame the recipe writes (mm)."""
+        cx, cy = self.__dict__.get("_centre", (0.0, 0.0))
+        return (x - cx + 0.0, y - cy + 0.0)
+
+    def frame_words(self) -> str:
+        """What follows a point written in the recipe's frame in a message ("" for the
+        body's frame)."""
+        return " from the hub's centre" if self.__dict__.get("_centre") is not None else ""
+
+    def mouth_written(self) -> str:
+        """The mouth as the recipe wrote it, with its frame, for messages."""
+        x0, y0 = self.written_paths()[0][0]
+        if self.__dict__.get("_centre") is None:
+            return f"[{x0:g}, {y0:g}]"
+        bx, by = self.mouth_mm()
+        return (f"[{x0:g}, {y0:g}] from the hub's centre, [{bx:g}, {by:g}] in the body's "
+                "frame")
+
+    def _fmt(self, p: np.ndarray) -> str:
+        """A point of the body's frame (x, y, z) written in the recipe's frame."""
+        x, y = self.as_written(float(p[0]), float(p[1]))
+        return _fmt(np.array([x, y, float(p[2])])) + self.frame_words()
 
     # ---- geometry -------------------------------------------------------------------
 
@@ -196,7 +300,8 @@ class Channels:
             out.append(Piece(f"paths[{i}][{k + 1}]", f"paths[{i}] segment {k + 1}",
                              self.segment_bar(a, b), (a, b)))
         for p in self.joints():
-            out.append(Piece("paths", f"joint at ({p[0]:g}, {p[1]:g})",
+            jx, jy = self.as_written(*p)
+            out.append(Piece("paths", f"joint at ({jx:g}, {jy:g}){self.frame_words()}",
                              RoundedRod("z", self.z_mm, self.height_mm, p, self.width_mm / 2.0,
                                         self.corner_radius_mm), (p, p)))
         for j, k, c, ang in self.chamber_frames():
@@ -329,13 +434,14 @@ class Channels:
         inlet's mouth, inside a socket, left out), the inlet on the outline, and
         pieces that do not join keeping ``min_wall_mm`` apart: one located line each."""
         out: list[Problem] = []
-        x0, y0 = self.paths[0][0]
+        x0, y0 = self.written_paths()[0][0]
         off = self.mouth_offset_mm(body)
         if abs(off) > ON_PATH_MM:
             where = "inside" if off < 0.0 else "outside"
+            written = ", written from the hub's centre" if self.frame_words() else ""
             out.append(Problem(f"{path}.paths[0][0]", f"puts the inlet {where} the body",
-                               None, [x0, y0], "a point on the body's outline (the groove "
-                               "opens there, where the tube is sealed in)"))
+                               None, [x0, y0], f"a point on the body's outline{written} "
+                               "(the groove opens there, where the tube is sealed in)"))
             return out
         pieces = self.pieces()
         samples = [p.prim.surface_samples(SAMPLE_MM) for p in pieces]
@@ -353,7 +459,7 @@ class Channels:
                 what = ("leaves the body" if d[worst] > -1e-6 else
                         f"comes {-d[worst]:.2f} mm from the body's surface")
                 out.append(Problem(f"{path}.{p.field}", f"{what}: {p.what} at "
-                                   f"{_fmt(keep[worst])}", None, None,
+                                   f"{self._fmt(keep[worst])}", None, None,
                                    f"at least checks.min_wall_mm = {min_wall_mm:g} mm of "
                                    "silicone to the body's surface"))
                 return out
