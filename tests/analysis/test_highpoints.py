@@ -19,6 +19,7 @@ from meshes import from_manifold, from_trimesh
 
 from soft_molds.analysis.highpoints import (
     FIT_STEP,
+    MOUTH_RIM_BAND_MM,
     HighPoint,
     Opening,
     find_high_points,
@@ -156,11 +157,13 @@ def test_long_flat_bar_sprue_at_centre_vents_at_both_far_ends():
     assert [o.kind for o in ops] == ["sprue", "vent", "vent"]
     sprue, first, second = ops
     assert sprue.center_mm == pytest.approx((0.0, 0.0, 2.5), abs=1e-9)
-    # the farthest top vertex is a corner (50, 5); the vent goes to the nearest point whose
-    # 1 mm mouth stays on the top face, one radius in from both edges: (49, 4) (closed
-    # form); then the same at a corner of the other end
-    assert np.abs(first.center_mm) == pytest.approx((49.0, 4.0, 2.5), abs=1e-6)
-    assert np.abs(second.center_mm) == pytest.approx((49.0, 4.0, 2.5), abs=1e-6)
+    # the farthest top vertex is a corner (50, 5); the vent goes to the nearest point of the
+    # quarter-radius search grid round it whose 1 mm mouth stays on the top face with the
+    # rim band (0.1 mm) to spare, i.e. at least 1.1 mm in from both edges: 1.25 mm, five
+    # grid steps, so (48.75, 3.75) (closed form); then the same at a corner of the other end
+    assert MOUTH_RIM_BAND_MM == 0.1
+    assert np.abs(first.center_mm) == pytest.approx((48.75, 3.75, 2.5), abs=1e-6)
+    assert np.abs(second.center_mm) == pytest.approx((48.75, 3.75, 2.5), abs=1e-6)
     assert first.center_mm[0] * second.center_mm[0] < 0.0
     # afterwards every top vertex is within far_vent_min_mm (15 mm) of an opening
     top = bar.vertices[np.isclose(bar.vertices[:, 2], 2.5)]

@@ -190,13 +190,20 @@ def test_a_two_worker_dask_cluster_on_loopback_writes_the_same_bytes(one_job, re
     assert sorted(a) == sorted(b) and all(a[k] == b[k] for k in a)
 
 
+def _sigint_at_default() -> None:
+    signal.signal(signal.SIGINT, signal.SIG_DFL)
+
+
 def test_ctrl_c_finishes_the_running_variant_and_reports_what_is_done(recipe_file,
                                                                       tmp_path):
     out = tmp_path / "out"
     cmd = [sys.executable, "-m", "soft_molds", "sweep", str(recipe_file), "--jobs", "1",
            "--out", str(out)]
+    # Started as a shell starts a foreground command: Ctrl-C at its default, whatever the
+    # test process inherited (Python installs its KeyboardInterrupt handler only over the
+    # default, so an inherited "ignore" would make the sweep deaf to the signal).
     proc = subprocess.Popen(cmd, cwd=ROOT, stdout=subprocess.PIPE, stderr=subprocess.PIPE,
-                            text=True)
+                            text=True, preexec_fn=_sigint_at_default)
     first = out / "cushion-sweep" / "A" / "manifest.json"
     deadline = time.monotonic() + 120
     while not first.exists() and time.monotonic() < deadline and proc.poll() is None:
