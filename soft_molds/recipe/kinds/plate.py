@@ -26,7 +26,8 @@ from typing import Any, ClassVar
 
 from ...errors import Problem
 from ..fields import MIN_SIZE_MM, Field, integer, number, points, rounds
-from ..outline import PieceOutline, PlaneOutline, RoundedPolygon, hub_pieces, polygon_problems
+from ..outline import PieceOutline, PlaneOutline, RoundedPolygon, hub_pieces
+from ..polygon_fields import per_point, polygon_field_problems
 from ..primitives import Primitive, Slab
 from ..registry import body_kind
 
@@ -96,7 +97,8 @@ class Plate:
                 return [Problem(f"{path}.{given[0]}", f"is not used with outline_mm{more}",
                                 line, _plain(v[given[0]]), "only one way of giving the "
                                 "outline: outline_mm with corner_radius_mm, or the hub fields")]
-            return _polygon_problems(v["outline_mm"], v["corner_radius_mm"], path, line)
+            return polygon_field_problems(v["outline_mm"], v["corner_radius_mm"], path, line,
+                                          "outline_mm", "corner_radius_mm", "[x, y]")[:1]
         if v["hub_diameter_mm"] is None:
             return [Problem(f"{path}.outline_mm", "is required (or the hub fields)", line,
                             None, "outline_mm: corners [x, y]; or hub_diameter_mm with "
@@ -157,15 +159,6 @@ class Plate:
         return (self.solid(),)
 
 
-def per_point(pts: tuple[tuple[float, float], ...], round_mm: float | tuple[float, ...] | None
-              ) -> tuple[float, ...]:
-    """One rounding per corner: none given is 0 for every corner, one number applies to all."""
-    if round_mm is None:
-        return (0.0,) * len(pts)
-    if isinstance(round_mm, float):
-        return (round_mm,) * len(pts)
-    return round_mm
-
 
 def arm_angles(count: int, given: float | tuple[float, ...] | None) -> tuple[float, ...]:
     """The arms' directions (deg, brought into [0, 360), ascending): as given, or evenly
@@ -178,21 +171,6 @@ def arm_angles(count: int, given: float | tuple[float, ...] | None) -> tuple[flo
         raw = given
     return tuple(sorted(a % 360.0 + 0.0 for a in raw))
 
-
-def _polygon_problems(pts: tuple[tuple[float, float], ...],
-                      round_mm: float | tuple[float, ...] | None, path: str,
-                      line: int | None) -> list[Problem]:
-    if len(pts) < 3:
-        return [Problem(f"{path}.outline_mm", "has fewer than three points", line, len(pts),
-                        "at least three points [x, y]")]
-    if isinstance(round_mm, tuple) and len(round_mm) != len(pts):
-        return [Problem(f"{path}.corner_radius_mm", "does not give one rounding per point",
-                        line, len(round_mm), f"one number, or a list of {len(pts)} (one per "
-                        "point of outline_mm)")]
-    found = polygon_problems(pts, per_point(pts, round_mm), MIN_SIZE_MM)
-    return [Problem(f"{path}.outline_mm[{i}]", what.replace("[y, z]", "[x, y]"), line,
-                    list(pts[i]), allowed.replace("[y, z]", "[x, y]"))
-            for i, what, allowed in found][:1]
 
 
 def _hub_problems(v: Mapping[str, Any], path: str, line: int | None) -> list[Problem]:

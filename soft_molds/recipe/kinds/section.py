@@ -16,6 +16,7 @@ from typing import Any, ClassVar
 from ...errors import Problem
 from ..fields import MIN_SIZE_MM, Field, choice, number, pair, points, rounds
 from ..outline import Ellipse, Outline, RoundedPolygon, polygon_problems
+from ..polygon_fields import per_point, polygon_field_problems
 from ..primitives import Extruded, Primitive
 from ..registry import body_kind
 
@@ -97,7 +98,8 @@ class Section:
                                 line, v["corner_radius_mm"],
                                 f"at most {limit:g} mm (half the smaller of width and height)")]
         if kind == "polygon":
-            return _polygon_problems(v["points_mm"], v["round_mm"], path, line)
+            return polygon_field_problems(v["points_mm"], v["round_mm"], path, line,
+                                          "points_mm", "round_mm", "[y, z]")
         return []
 
     def shape(self) -> Outline:
@@ -137,29 +139,6 @@ class Section:
         return (self.solid(),)
 
 
-def per_point(pts: tuple[tuple[float, float], ...], round_mm: float | tuple[float, ...] | None
-              ) -> tuple[float, ...]:
-    """One rounding per point: none given is 0 for every corner, one number applies to all."""
-    if round_mm is None:
-        return (0.0,) * len(pts)
-    if isinstance(round_mm, float):
-        return (round_mm,) * len(pts)
-    return round_mm
-
-
-def _polygon_problems(pts: tuple[tuple[float, float], ...],
-                      round_mm: float | tuple[float, ...] | None, path: str,
-                      line: int | None) -> list[Problem]:
-    if len(pts) < 3:
-        return [Problem(f"{path}.points_mm", "has fewer than three points", line, len(pts),
-                        "at least three points [y, z]")]
-    if isinstance(round_mm, tuple) and len(round_mm) != len(pts):
-        return [Problem(f"{path}.round_mm", "does not give one rounding per point", line,
-                        len(round_mm), f"one number, or a list of {len(pts)} (one per point "
-                        "of points_mm)")]
-    found = polygon_problems(pts, per_point(pts, round_mm), MIN_SIZE_MM)
-    return [Problem(f"{path}.points_mm[{i}]", what, line, list(pts[i]), allowed)
-            for i, what, allowed in found]
 
 
 def _field(name: str) -> Field:
