@@ -1,4 +1,5 @@
-"""Mesh helpers shared by the tests: convert reference-library meshes to TriMesh."""
+"""Mesh helpers shared by the tests: convert between TriMesh and the reference libraries'
+meshes."""
 
 from __future__ import annotations
 
@@ -13,6 +14,12 @@ def from_manifold(man: m3.Manifold) -> TriMesh:
     me = man.to_mesh()
     return TriMesh(np.asarray(me.vert_properties)[:, :3].astype(np.float64),
                    np.asarray(me.tri_verts).astype(np.int64))
+
+
+def manifold(mesh) -> m3.Manifold:
+    """A TriMesh (or anything with vertices and faces) as a manifold3d solid."""
+    return m3.Manifold(m3.Mesh64(vert_properties=np.array(mesh.vertices, dtype=np.float64),
+                                 tri_verts=np.array(mesh.faces, dtype=np.uint64)))
 
 
 def from_trimesh(t: trimesh.Trimesh) -> TriMesh:

@@ -16,6 +16,7 @@ import manifold3d as m3
 import numpy as np
 import pytest
 from conftest import built_variant
+from meshes import manifold
 
 from soft_molds.plan.magnets import (
     POCKET_DEPTH_CLEARANCE_MM,
@@ -139,10 +140,6 @@ def test_the_pockets_are_in_the_rigid_parts_and_none_reaches_the_cast(pad):
         inside = molds.part(name).mesh.to_trimesh().contains(np.array(pts))
         assert not inside.any(), name
 
-
-def manifold(mesh) -> m3.Manifold:
-    return m3.Manifold(m3.Mesh64(vert_properties=np.array(mesh.vertices, dtype=np.float64),
-                                 tri_verts=np.array(mesh.faces, dtype=np.uint64)))
 
 
 def test_the_pocketed_parts_are_closed_and_apart(pad):

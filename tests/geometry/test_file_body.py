@@ -16,10 +16,10 @@ import math
 from collections import Counter
 
 import manifold3d as m3
-import numpy as np
 import pytest
 import stepfiles
 from conftest import ROOT, built, recipe_path
+from meshes import manifold
 
 
 def _volumes():
@@ -92,10 +92,6 @@ def test_the_cast_holds_the_closed_form_volume(drawn):
     assert drawn.volumes_mm3["body"] == pytest.approx(
         rounded_box_volume(f["L"], f["W"], f["H"], f["R"]), rel=1e-6)
 
-
-def manifold(mesh) -> m3.Manifold:
-    return m3.Manifold(m3.Mesh64(vert_properties=np.array(mesh.vertices, dtype=np.float64),
-                                 tri_verts=np.array(mesh.faces, dtype=np.uint64)))
 
 
 def test_parts_are_closed_and_do_not_interpenetrate(drawn):

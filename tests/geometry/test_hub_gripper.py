@@ -29,6 +29,7 @@ import numpy as np
 import pytest
 import trimesh
 from conftest import built_layered
+from meshes import manifold
 
 NAME = "seedling-hub-gripper"
 #: The plate's placement by hand (plane geometry): its leftmost point is on the tip
@@ -46,10 +47,6 @@ MARGIN_MM = 10.0
 def hub():
     return built_layered(NAME)
 
-
-def manifold(mesh) -> m3.Manifold:
-    return m3.Manifold(m3.Mesh64(vert_properties=np.array(mesh.vertices, dtype=np.float64),
-                                 tri_verts=np.array(mesh.faces, dtype=np.uint64)))
 
 
 def turned_back(man: m3.Manifold) -> m3.Manifold:

@@ -20,6 +20,7 @@ import numpy as np
 import pytest
 import trimesh
 from conftest import built_layered
+from meshes import manifold
 
 NAME = "seedling-layered-finger"
 #: Agreement of the built actuator with the closed form (relative).
@@ -30,10 +31,6 @@ VOLUME_TOL = 0.002
 def layered():
     return built_layered(NAME)
 
-
-def manifold(mesh) -> m3.Manifold:
-    return m3.Manifold(m3.Mesh64(vert_properties=np.array(mesh.vertices, dtype=np.float64),
-                                 tri_verts=np.array(mesh.faces, dtype=np.uint64)))
 
 
 def turned_back(mesh) -> trimesh.Trimesh:

@@ -26,6 +26,7 @@ import pytest
 import trimesh
 from conftest import built_layered
 from matplotlib.path import Path
+from meshes import manifold
 
 NAME = "seed-tray-pad"
 VOLUME_TOL = 0.002
@@ -35,10 +36,6 @@ VOLUME_TOL = 0.002
 def layered():
     return built_layered(NAME)
 
-
-def manifold(mesh) -> m3.Manifold:
-    return m3.Manifold(m3.Mesh64(vert_properties=np.array(mesh.vertices, dtype=np.float64),
-                                 tri_verts=np.array(mesh.faces, dtype=np.uint64)))
 
 
 def turned_back(mesh) -> trimesh.Trimesh:

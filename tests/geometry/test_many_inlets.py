@@ -23,6 +23,7 @@ import manifold3d as m3
 import numpy as np
 import pytest
 from conftest import built
+from meshes import manifold
 from recipe_text import END_FED
 
 PI = math.pi
@@ -108,10 +109,6 @@ def test_each_group_of_voids_gets_its_own_core_pulled_out_of_its_sockets_face(
         else:
             assert hi[0] > length + molds.recipe.mold.wall_mm and lo[0] > 0.0
 
-
-def manifold(mesh) -> m3.Manifold:
-    return m3.Manifold(m3.Mesh64(vert_properties=np.array(mesh.vertices, dtype=np.float64),
-                                 tri_verts=np.array(mesh.faces, dtype=np.uint64)))
 
 
 #: (x, y, z) -> (y, z, x): the body's axis becomes the third one, which project() drops.

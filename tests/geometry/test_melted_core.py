@@ -23,6 +23,7 @@ import numpy as np
 import pytest
 import trimesh
 from conftest import MELTED, built_steps
+from meshes import manifold
 
 #: As in test_mold_release.py: overlap of parts touching face to face (per mm3 of the
 #: smaller), and how far the air reaches beyond the closed mold (mm).
@@ -34,10 +35,6 @@ MARGIN_MM = 10.0
 def melted(request):
     return built_steps(request.param)
 
-
-def manifold(mesh) -> m3.Manifold:
-    return m3.Manifold(m3.Mesh64(vert_properties=np.array(mesh.vertices, dtype=np.float64),
-                                 tri_verts=np.array(mesh.faces, dtype=np.uint64)))
 
 
 def test_the_recipe_is_built_in_two_named_steps(melted):

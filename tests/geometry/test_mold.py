@@ -11,6 +11,7 @@ import numpy as np
 import pytest
 import trimesh
 from conftest import BUNDLED, built_variant, bundled_variants
+from meshes import manifold
 
 from soft_molds.plan.layout import key_symmetry_clashes
 from soft_molds.recipe.model import ISO273_MEDIUM_MM
@@ -20,10 +21,6 @@ NAMES = BUNDLED
 VARIANTS = bundled_variants()
 VARIANT_IDS = [f"{stem}-{label}" for stem, label in VARIANTS]
 
-
-def manifold(mesh) -> m3.Manifold:
-    return m3.Manifold(m3.Mesh64(vert_properties=np.array(mesh.vertices, dtype=np.float64),
-                                 tri_verts=np.array(mesh.faces, dtype=np.uint64)))
 
 
 @pytest.mark.parametrize(("stem", "label"), VARIANTS, ids=VARIANT_IDS)

@@ -26,6 +26,7 @@ import manifold3d as m3
 import numpy as np
 import pytest
 from conftest import built_variant, bundled_variants
+from meshes import manifold
 
 VARIANTS = bundled_variants()
 VARIANT_IDS = [f"{stem}-{label}" for stem, label in VARIANTS]
@@ -36,10 +37,6 @@ TOUCH_FRACTION = 5e-4
 #: How far beyond the closed mold the surrounding air reaches (mm).
 MARGIN_MM = 10.0
 
-
-def manifold(mesh) -> m3.Manifold:
-    return m3.Manifold(m3.Mesh64(vert_properties=np.array(mesh.vertices, dtype=np.float64),
-                                 tri_verts=np.array(mesh.faces, dtype=np.uint64)))
 
 
 def _rigid(molds) -> dict[str, m3.Manifold]:

@@ -19,6 +19,7 @@ import manifold3d as m3
 import numpy as np
 import pytest
 from conftest import built_steps
+from meshes import manifold
 
 from soft_molds.plan.processes.overmold import CROSSING_CLEAR_RAD, GUIDE_MARGIN_MM
 
@@ -35,10 +36,6 @@ TOUCH_MM3 = 0.05
 def om():
     return built_steps(NAME)
 
-
-def manifold(mesh) -> m3.Manifold:
-    return m3.Manifold(m3.Mesh64(vert_properties=np.array(mesh.vertices, dtype=np.float64),
-                                 tri_verts=np.array(mesh.faces, dtype=np.uint64)))
 
 
 def figures(om):

@@ -14,6 +14,7 @@ import numpy as np
 import pytest
 import trimesh
 from conftest import built_steps
+from meshes import manifold
 
 NAMES = ["seedling-wound-finger", "seedling-bend-wound-finger"]
 #: Two parts only touching share less than this (mm3): coincident faces meshed apart.
@@ -24,10 +25,6 @@ TOUCH_MM3 = 0.05
 def om(request):
     return built_steps(request.param)
 
-
-def manifold(mesh) -> m3.Manifold:
-    return m3.Manifold(m3.Mesh64(vert_properties=np.array(mesh.vertices, dtype=np.float64),
-                                 tri_verts=np.array(mesh.faces, dtype=np.uint64)))
 
 
 def area_mm2(mesh) -> float:

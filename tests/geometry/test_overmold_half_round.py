@@ -25,6 +25,7 @@ import numpy as np
 import pytest
 import trimesh
 from conftest import built_steps
+from meshes import manifold
 
 from soft_molds.plan.processes.overmold import CROSSING_CLEAR_RAD, GUIDE_MARGIN_MM
 
@@ -40,10 +41,6 @@ TOUCH_MM3 = 0.05
 def om():
     return built_steps(NAME)
 
-
-def manifold(mesh) -> m3.Manifold:
-    return m3.Manifold(m3.Mesh64(vert_properties=np.array(mesh.vertices, dtype=np.float64),
-                                 tri_verts=np.array(mesh.faces, dtype=np.uint64)))
 
 
 def figures(om):

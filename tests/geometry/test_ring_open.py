@@ -13,11 +13,11 @@ from __future__ import annotations
 
 import math
 
-import manifold3d as m3
 import numpy as np
 import pytest
 import trimesh
 from conftest import built
+from meshes import manifold
 
 NAME = "stem-ring-cuff-open"
 R_IN, R_OUT, H, F = 8.0, 16.0, 12.0, 1.0
@@ -44,10 +44,6 @@ def close(got: float, want: float, rel: float) -> bool:
 def groove_volume() -> float:
     return math.pi * (R_OUT ** 2 - R_G ** 2) * G
 
-
-def manifold(mesh) -> m3.Manifold:
-    return m3.Manifold(m3.Mesh64(vert_properties=np.array(mesh.vertices, dtype=np.float64),
-                                 tri_verts=np.array(mesh.faces, dtype=np.uint64)))
 
 
 @pytest.fixture(scope="module")
