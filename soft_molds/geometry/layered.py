@@ -12,7 +12,6 @@ from __future__ import annotations
 from dataclasses import dataclass, field, replace
 
 import cadquery as cq
-import numpy as np
 
 from ..plan.model import CastingStep, Footprint, LayerKind, Post
 from ..recipe.model import Recipe
@@ -138,8 +137,7 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
     # cleanly on the inlet face): the wall takes a notch open to the rim, the post's shape
     # with the locating clearance on every side, so the bridge drops in wherever its skirt
     # lets it sit.
-    notches = [post_solid(_grown(p, layer.clearance_mm)) for p in layer.posts
-               if crosses_edge(p, layer.footprint)]
+    notches = [post_solid(_grown(p, layer.clearance_mm)) for p in layer.notched_posts()]
     tray = cut(_block(r, wall, bond, hi[2] + wall), [above, *notches], "tray",
                "chambered tray")
     lo, _ = r.body_bounds()
@@ -151,8 +149,7 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
                    bond + SKIRT_DROP_MM)
     pocket = _block(r, wall + layer.clearance_mm, bond, bond + SKIRT_DROP_MM + 1.0)
     cutters = [pocket]
-    hole = (_overflow_hole(r, layer.posts, bond) if layer.footprint.outline is None
-            else _hole_at(layer.overflow_xy_mm, r, bond))
+    hole = _hole_at(layer.overflow_xy_mm, r, bond)
     if hole is not None:
         cutters.append(hole)
     plate = cut(plate, cutters, "post-bridge", "bridge plate")
@@ -171,34 +168,10 @@ def _chambered(r: Recipe, step: CastingStep, above: cq.Shape) -> LayerSolids:
     return LayerSolids(parts, cast, boxes)
 
 
-def crosses_edge(p: Post, f: Footprint) -> bool:
-    """Whether post ``p`` reaches beyond the footprint's edge at the bond face (a groove
-    opening on the outline): a corner of its outline outside the footprint (a plate's
-    outline by its exact distance; a bar's rectangle)."""
-    pts = np.asarray(p.outline_mm(), dtype=float)
-    if f.outline is not None:
-        return bool((f.outline.sdf(pts) > 0.0).any())
-    (cx, cy), (lx, ly) = f.center_mm, f.size_mm
-    return bool(((np.abs(pts[:, 0] - cx) > lx / 2.0) | (np.abs(pts[:, 1] - cy) > ly / 2.0)).any())
-
-
 def _grown(p: Post, by_mm: float) -> Post:
     """``p`` wider by ``by_mm`` on every side (same height and draft)."""
     return replace(p, name=f"{p.name} notch", size_mm=(p.size_mm[0] + 2 * by_mm,
                                                        p.size_mm[1] + 2 * by_mm))
-
-
-def _overflow_hole(r: Recipe, posts: tuple[Post, ...], bond: float) -> cq.Shape | None:
-    """A hole through the plate midway between the last post and the body's far end, where
-    the excess silicone rises when the bridge is lowered (None: no room for it)."""
-    _, hi = r.body_bounds()
-    far = max(p.x_span_mm()[1] for p in posts)
-    d = r.mold.vent_diameter_mm
-    if hi[0] - far < d + 2.0:
-        return None
-    return cq.Solid.makeCylinder(d / 2.0, PLATE_MM + 2.0,
-                                 cq.Vector((far + hi[0]) / 2.0, 0.0, bond - PLATE_MM - 1.0),
-                                 cq.Vector(0, 0, 1))
 
 
 def _hole_at(xy: tuple[float, float] | None, r: Recipe, bond: float) -> cq.Shape | None:

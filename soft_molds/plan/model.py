@@ -14,6 +14,8 @@ import math
 from dataclasses import dataclass, replace
 from enum import StrEnum
 
+import numpy as np
+
 from ..recipe.model import InletFace, Recipe
 from ..recipe.outline import PieceOutline, offset_outline
 from .layout import Layout
@@ -335,6 +337,17 @@ class Footprint:
         lx, ly = self.size_mm
         return lx * ly - (4.0 - math.pi) * self.corner_radius_mm ** 2
 
+    def reached_past_by(self, post: Post) -> bool:
+        """Whether ``post`` reaches beyond this footprint's edge at the bond face (a groove
+        opening on the outline, whose post the tray wall takes in a notch): a corner of its
+        outline outside (a plate's outline by its exact distance; a bar's rectangle)."""
+        pts = np.asarray(post.outline_mm(), dtype=float)
+        if self.outline is not None:
+            return bool((self.outline.sdf(pts) > 0.0).any())
+        (cx, cy), (lx, ly) = self.center_mm, self.size_mm
+        return bool(((np.abs(pts[:, 0] - cx) > lx / 2.0)
+                     | (np.abs(pts[:, 1] - cy) > ly / 2.0)).any())
+
 
 @dataclass(frozen=True)
 class Layer:
@@ -350,9 +363,13 @@ class Layer:
     clearance_mm: float
     wall_mm: float
     sheet_inset_mm: float | None = None
-    #: Where the post bridge's overflow hole goes (x, y) for a plate's outline (None: a
-    #: bar's, beyond the last post, or no room).
+    #: Where the post bridge's overflow hole goes (x, y; None: no room for one or no
+    #: bridge).
     overflow_xy_mm: tuple[float, float] | None = None
+
+    def notched_posts(self) -> tuple[Post, ...]:
+        """The posts the tray wall takes in a notch: those reaching past the footprint."""
+        return tuple(p for p in self.posts if self.footprint.reached_past_by(p))
 
     @property
     def turned_over(self) -> bool:

@@ -52,7 +52,7 @@ def steps(r: Recipe) -> tuple[CastingStep, ...]:
     bond = bond_z_mm(r)
     foot = footprint(r)
     posts = all_posts(r)
-    hole = (None if foot.outline is None
+    hole = (bar_overflow_xy_mm(r, posts) if foot.outline is None
             else overflow_xy_mm(foot, posts, r.mold.vent_diameter_mm))
     chambered = Layer(LayerKind.CHAMBERED, bond, foot, posts, r.mold.clearance_mm,
                       r.mold.wall_mm, overflow_xy_mm=hole)
@@ -108,6 +108,17 @@ def footprint(r: Recipe) -> Footprint:
     slab = body_slab(r)
     assert slab is not None
     return Footprint.of_outline(PieceOutline(slab.outline.pieces()))
+
+
+def bar_overflow_xy_mm(r: Recipe, posts: tuple[Post, ...]) -> tuple[float, float] | None:
+    """Where a bar's overflow hole goes (x, y): midway between the last post and the body's
+    far end on y = 0, where the excess silicone rises when the bridge is lowered (None: less
+    than the vent diameter + 2 mm between them, no room for it)."""
+    _, hi = r.body_bounds()
+    far = max(p.x_span_mm()[1] for p in posts)
+    if hi[0] - far < r.mold.vent_diameter_mm + 2.0:
+        return None
+    return ((far + hi[0]) / 2.0, 0.0)
 
 
 #: Grid step (mm) on which a plate's overflow hole is placed.
