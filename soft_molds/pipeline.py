@@ -11,10 +11,10 @@ exactly as the completed plan says.
 from __future__ import annotations
 
 import time
-from collections.abc import Callable, Iterator
+from collections.abc import Callable, Iterator, Mapping
 from contextlib import contextmanager
 from dataclasses import replace
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 from .analysis.integrity import check_mesh, require_ok
 from .analysis.layered import LayeredMoldSet
@@ -26,6 +26,7 @@ from .moldset import MoldSet, Part
 from .plan import (
     MoldPlan,
     Opening,
+    PartPlan,
     PlaneScore,
     Role,
     plan_mold,
@@ -135,17 +136,9 @@ def _build_one_shot(plan: MoldPlan, progress: Callable[[str], None] | None = Non
               **{sup.part: c for c, sup in zip(cs.cores, step.core_supports)},
               **{g.part: c for c, g in zip(plates, step.plates)},
               "cast": cs.cast}
-    parts = []
     say("tessellate and check")
-    for spec in step.parts:
-        solid = solids[spec.name]
-        with _stage(timings, "tessellate", label):
-            vol = cs.volumes_mm3.get(spec.name) or float(solid.Volume())
-            mesh = cast_mesh if spec.role is Role.CAST else tessellate_within(
-                solid, chord, angle, spec.name, vol)
-            report = check_mesh(mesh, spec.name, vol)
-        require_ok(report, label)
-        parts.append(Part(spec.name, str(spec.role), solid, mesh, vol, spec.pull_dir, report))
+    parts = meshed_parts(recipe, step.parts, solids, cs.volumes_mm3, cast_mesh, "", timings,
+                         measure=lambda solid: float(solid.Volume()))
     say("manufacturability checks")
     with _stage(timings, "analysis", label):
         labels = tuple(x for x in (*shells.labels, *core_labels, *plate_labels)
@@ -162,6 +155,30 @@ def _build_one_shot(plan: MoldPlan, progress: Callable[[str], None] | None = Non
         motion = predict_motion(recipe, cast_mesh, rev.pressures)
     return MoldSet(plan, tuple(parts), volumes, shells.funnel_diameter_mm, timings, rev,
                    casting, labels, motion)
+
+
+def meshed_parts(recipe: Recipe, specs: tuple[PartPlan, ...], solids: Mapping[str, Any],
+                 known_mm3: Mapping[str, float], cast_mesh: TriMesh | None, prefix: str,
+                 timings: dict[str, float], measure: Callable[[Any], float] | None = None
+                 ) -> list[Part]:
+    """The parts ``specs`` names, in order: each solid's volume (mm3: ``known_mm3`` by part
+    name, else measured on the solid, by :func:`k_volume` unless ``measure`` is given), its
+    mesh within the recipe's chord and angle (the cast's ``cast_mesh`` when given, already
+    made), checked against that volume under the name ``prefix + name``."""
+    from .geometry.tessellate import tessellate_within
+
+    chord, angle = recipe.mesh.chord_mm, recipe.mesh.angle_deg
+    parts = []
+    for spec in specs:
+        solid, name = solids[spec.name], prefix + spec.name
+        with _stage(timings, "tessellate", recipe.label):
+            vol = known_mm3.get(spec.name) or (measure or k_volume)(solid)
+            mesh = (cast_mesh if cast_mesh is not None and spec.role is Role.CAST
+                    else tessellate_within(solid, chord, angle, name, vol))
+            report = check_mesh(mesh, name, vol)
+        require_ok(report, recipe.label)
+        parts.append(Part(spec.name, str(spec.role), solid, mesh, vol, spec.pull_dir, report))
+    return parts
 
 
 def k_volume(shape: object) -> float:
@@ -199,7 +216,6 @@ def build_layered(recipe: Recipe, progress: Callable[[str], None] | None = None
     """Plan, build, tessellate and check both steps of a layered recipe (see
     :mod:`soft_molds.plan.processes.layered`). Raises like :func:`build`."""
     from .analysis.findings import worst_first
-    from .analysis.integrity import check_mesh, require_ok
     from .analysis.layered import (
         LayerStep,
         is_chambered,
@@ -210,12 +226,10 @@ def build_layered(recipe: Recipe, progress: Callable[[str], None] | None = None
     from .analysis.motion import predict_motion
     from .analysis.pressure import pressure_findings, wall_pressures
     from .geometry.layered import build_layers
-    from .geometry.tessellate import tessellate_within
 
     say = progress or (lambda _msg: None)
     timings: dict[str, float] = {}
     label = recipe.label
-    chord, angle = recipe.mesh.chord_mm, recipe.mesh.angle_deg
     plan = plan_mold(recipe)
     say("layers")
     with _stage(timings, "layers", label):
@@ -224,16 +238,8 @@ def build_layered(recipe: Recipe, progress: Callable[[str], None] | None = None
     for i, step in enumerate(plan.steps, start=1):
         layer = step.layer
         assert layer is not None
-        parts = []
-        for spec in step.parts:
-            solid = solids[step.name].parts[spec.name]
-            with _stage(timings, "tessellate", label):
-                vol = k_volume(solid)
-                mesh = tessellate_within(solid, chord, angle, f"{step.name} {spec.name}", vol)
-                report = check_mesh(mesh, f"{step.name} {spec.name}", vol)
-            require_ok(report, label)
-            parts.append(Part(spec.name, str(spec.role), solid, mesh, vol, spec.pull_dir,
-                              report))
+        parts = meshed_parts(recipe, step.parts, solids[step.name].parts, {}, None,
+                             f"{step.name} ", timings)
         cast = next(p for p in parts if p.role == Role.CAST)
         draft = (least_post_draft_deg(next(p for p in parts if p.name == "post-bridge"), layer)
                  if is_chambered(layer) else None)
@@ -326,18 +332,8 @@ def build_overmold(recipe: Recipe, progress: Callable[[str], None] | None = None
             shells = g.build_shells(om, cavities[step.name], casts.core, step.openings)
         solids = {"shell-lower": shells.lower, "shell-upper": shells.upper,
                   "core": casts.core, "cast": cast}
-        parts = []
-        for spec in step.parts:
-            solid = solids[spec.name]
-            name = f"{step.name} {spec.name}"
-            with _stage(timings, "tessellate", label):
-                v = vol if spec.role is Role.CAST else k_volume(solid)
-                mesh = cast_mesh if spec.role is Role.CAST else tessellate_within(
-                    solid, chord, angle, name, v)
-                report = check_mesh(mesh, name, v)
-            require_ok(report, label)
-            parts.append(Part(spec.name, str(spec.role), solid, mesh, v, spec.pull_dir,
-                              report))
+        parts = meshed_parts(recipe, step.parts, solids, {"cast": vol}, cast_mesh,
+                             f"{step.name} ", timings)
         with _stage(timings, "analysis", label):
             rel = releases([p for p in parts if p.role != Role.CAST], cast_mesh)
         steps.append(OvermoldStep(i, step.name, om, tuple(parts),
@@ -403,14 +399,12 @@ def build_melted(recipe: Recipe, progress: Callable[[str], None] | None = None
     from .analysis.overmold import releases
     from .analysis.printability import plan_print
     from .geometry import mold
-    from .geometry.tessellate import tessellate_within
     from .plan.layout import layout_problems, plan_layout
     from .plan.processes.melted_core import core_bounds
     from .plan.rules import printer_problems
 
     say = progress or (lambda _msg: None)
     label = recipe.label
-    chord, angle = recipe.mesh.chord_mm, recipe.mesh.angle_deg
     plan = plan_mold(recipe)
     core_step, pour = plan.steps
     cm = core_step.core_mold
@@ -442,17 +436,8 @@ def build_melted(recipe: Recipe, progress: Callable[[str], None] | None = None
     with _stage(timings, "shell", label):
         shells = mold.build_shells(recipe, step, cast)
     solids = {"shell-lower": shells.lower, "shell-upper": shells.upper, "cast": core.brep}
-    parts = []
-    for spec in step.parts:
-        solid = solids[spec.name]
-        name = f"{step.name} {spec.name}"
-        with _stage(timings, "tessellate", label):
-            v = vol if spec.role is Role.CAST else k_volume(solid)
-            mesh = core.mesh if spec.role is Role.CAST else tessellate_within(
-                solid, chord, angle, name, v)
-            report = check_mesh(mesh, name, v)
-        require_ok(report, label)
-        parts.append(Part(spec.name, str(spec.role), solid, mesh, v, spec.pull_dir, report))
+    parts = meshed_parts(recipe, step.parts, solids, {"cast": vol}, core.mesh,
+                         f"{step.name} ", timings)
     say("manufacturability checks")
     with _stage(timings, "analysis", label):
         rel = releases([p for p in parts if p.role != Role.CAST], core.mesh)
